@@ -1,0 +1,286 @@
+//! The one time type of the workspace.
+//!
+//! Conventions, written once:
+//! - [`UtcTime`] is an instant on the UTC scale, stored as seconds since
+//!   2000-01-01T12:00:00 UTC counted at 86,400 s per day. Leap seconds are not
+//!   counted: an interval across a leap second is one second short, as in the
+//!   element sets' own producers and in the `sgp4` crate (which works in UTC).
+//! - The f64 count keeps about 0.1 µs of resolution for decades around 2000,
+//!   far below the 1 ms the planners promise.
+//! - UT1 is UTC plus a user-set offset (`ut1_utc_s`, default 0); see
+//!   [`crate::frames::EarthOrientation`].
+//! - Text form everywhere (command line, files): ISO 8601 UTC with a `Z`,
+//!   e.g. `2026-12-01T12:00:00.000Z`. Output always carries milliseconds.
+
+use std::fmt;
+
+use chrono::{DateTime, Datelike, NaiveDate, NaiveDateTime, TimeZone, Timelike, Utc};
+
+/// Seconds in a UTC day (no leap seconds).
+pub const SECONDS_PER_DAY: f64 = 86_400.0;
+/// Julian date of the J2000 reference instant 2000-01-01T12:00:00.
+pub const JD_J2000: f64 = 2_451_545.0;
+
+/// An instant on the UTC scale (see the module docs for the conventions).
+#[derive(Copy, Clone, PartialEq, PartialOrd, Debug, Default)]
+pub struct UtcTime {
+    s_since_j2000: f64,
+}
+
+/// A time string that could not be read as ISO 8601 UTC.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TimeParseError {
+    pub input: String,
+    pub reason: String,
+}
+
+impl fmt::Display for TimeParseError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(
+            f,
+            "cannot read {:?} as an ISO 8601 UTC time (e.g. 2026-12-01T12:00:00Z): {}",
+            self.input, self.reason
+        )
+    }
+}
+
+impl std::error::Error for TimeParseError {}
+
+impl UtcTime {
+    /// The J2000 reference instant, 2000-01-01T12:00:00 UTC.
+    pub const J2000: UtcTime = UtcTime { s_since_j2000: 0.0 };
+
+    pub const fn from_s_since_j2000(s: f64) -> Self {
+        UtcTime { s_since_j2000: s }
+    }
+
+    pub const fn s_since_j2000(self) -> f64 {
+        self.s_since_j2000
+    }
+
+    /// Days since J2000 on the UTC scale.
+    pub fn days_since_j2000(self) -> f64 {
+        self.s_since_j2000 / SECONDS_PER_DAY
+    }
+
+    /// Julian date on the UTC scale.
+    pub fn julian_date(self) -> f64 {
+        JD_J2000 + self.days_since_j2000()
+    }
+
+    /// Julian centuries since J2000 on the UTC scale (used as TT for the
+    /// low-precision Sun series, where the ~69 s difference is negligible).
+    pub fn centuries_since_j2000(self) -> f64 {
+        self.days_since_j2000() / 36_525.0
+    }
+
+    /// Builds a time from calendar fields; `second` may carry a fraction.
+    /// Returns `None` for an impossible date or time of day.
+    pub fn from_calendar(
+        year: i32,
+        month: u32,
+        day: u32,
+        hour: u32,
+        minute: u32,
+        second: f64,
+    ) -> Option<Self> {
+        if !(0.0..61.0).contains(&second) || hour > 23 || minute > 59 {
+            return None;
+        }
+        let date = NaiveDate::from_ymd_opt(year, month, day)?;
+        let days = (date - j2000_date()).num_days() as f64;
+        Some(UtcTime {
+            s_since_j2000: days * SECONDS_PER_DAY - 43_200.0
+                + f64::from(hour) * 3600.0
+                + f64::from(minute) * 60.0
+                + second,
+        })
+    }
+
+    /// Start of day `day_of_year` (1-based, may carry a fraction) of `year`,
+    /// as in the TLE epoch field.
+    pub fn from_year_and_day(year: i32, day_of_year: f64) -> Option<Self> {
+        if !(1.0..367.0).contains(&day_of_year) {
+            return None;
+        }
+        let jan1 = Self::from_calendar(year, 1, 1, 0, 0, 0.0)?;
+        Some(jan1.add_s((day_of_year - 1.0) * SECONDS_PER_DAY))
+    }
+
+    /// Parses ISO 8601 / RFC 3339 UTC text: `2026-12-01T12:00:00Z`,
+    /// `2026-12-01T12:00:00.250Z`, `2026-12-01 12:00:00`, `2026-12-01T12:00:00+00:00`,
+    /// or a bare date `2026-12-01` (midnight). Text without a zone is read as UTC.
+    pub fn parse_iso(text: &str) -> Result<Self, TimeParseError> {
+        let t = text.trim();
+        let err = |reason: &str| TimeParseError {
+            input: text.to_string(),
+            reason: reason.to_string(),
+        };
+        if t.is_empty() {
+            return Err(err("empty"));
+        }
+        if let Ok(dt) = DateTime::parse_from_rfc3339(t) {
+            return Ok(Self::from_chrono(dt.with_timezone(&Utc)));
+        }
+        let naive = t.strip_suffix('Z').unwrap_or(t);
+        for fmt in ["%Y-%m-%dT%H:%M:%S%.f", "%Y-%m-%d %H:%M:%S%.f", "%Y-%m-%dT%H:%M"] {
+            if let Ok(n) = NaiveDateTime::parse_from_str(naive, fmt) {
+                return Ok(Self::from_naive(n));
+            }
+        }
+        if let Ok(d) = NaiveDate::parse_from_str(naive, "%Y-%m-%d") {
+            return Ok(Self::from_naive(d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?));
+        }
+        // Day-of-year form used by some OMM producers: 2026-335T12:00:00.
+        if let Ok(n) = NaiveDateTime::parse_from_str(naive, "%Y-%jT%H:%M:%S%.f") {
+            return Ok(Self::from_naive(n));
+        }
+        Err(err("expected YYYY-MM-DDTHH:MM:SS[.fff]Z"))
+    }
+
+    pub fn from_naive(n: NaiveDateTime) -> Self {
+        let days = (n.date() - j2000_date()).num_days() as f64;
+        let tod = f64::from(n.num_seconds_from_midnight()) + f64::from(n.nanosecond()) * 1e-9;
+        UtcTime {
+            s_since_j2000: days * SECONDS_PER_DAY - 43_200.0 + tod,
+        }
+    }
+
+    pub fn from_chrono(dt: DateTime<Utc>) -> Self {
+        Self::from_naive(dt.naive_utc())
+    }
+
+    /// The nearest microsecond as a chrono UTC time.
+    pub fn to_naive(self) -> NaiveDateTime {
+        let us_total = (self.s_since_j2000 * 1e6).round() as i64;
+        let base = j2000_noon();
+        base + chrono::TimeDelta::microseconds(us_total)
+    }
+
+    pub fn to_chrono(self) -> DateTime<Utc> {
+        Utc.from_utc_datetime(&self.to_naive())
+    }
+
+    /// ISO 8601 UTC with milliseconds and `Z`, rounded to the nearest millisecond.
+    pub fn to_iso_ms(self) -> String {
+        let ms_total = (self.s_since_j2000 * 1e3).round() as i64;
+        let n = j2000_noon() + chrono::TimeDelta::milliseconds(ms_total);
+        n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string()
+    }
+
+    /// ISO 8601 UTC rounded to the second, without fraction (for tables).
+    pub fn to_iso_s(self) -> String {
+        let s_total = self.s_since_j2000.round() as i64;
+        let n = j2000_noon() + chrono::TimeDelta::seconds(s_total);
+        n.format("%Y-%m-%dT%H:%M:%SZ").to_string()
+    }
+
+    /// Calendar year of this instant.
+    pub fn year(self) -> i32 {
+        self.to_naive().year()
+    }
+
+    pub fn add_s(self, s: f64) -> Self {
+        UtcTime {
+            s_since_j2000: self.s_since_j2000 + s,
+        }
+    }
+
+    /// `self - earlier`, in seconds.
+    pub fn s_since(self, earlier: UtcTime) -> f64 {
+        self.s_since_j2000 - earlier.s_since_j2000
+    }
+
+    pub fn is_finite(self) -> bool {
+        self.s_since_j2000.is_finite()
+    }
+
+    pub fn min(self, other: Self) -> Self {
+        if other < self { other } else { self }
+    }
+
+    pub fn max(self, other: Self) -> Self {
+        if other > self { other } else { self }
+    }
+}
+
+impl fmt::Display for UtcTime {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.to_iso_ms())
+    }
+}
+
+impl std::str::FromStr for UtcTime {
+    type Err = TimeParseError;
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        Self::parse_iso(s)
+    }
+}
+
+impl serde::Serialize for UtcTime {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(&self.to_iso_ms())
+    }
+}
+
+impl<'de> serde::Deserialize<'de> for UtcTime {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        let text = <std::borrow::Cow<'de, str>>::deserialize(d)?;
+        UtcTime::parse_iso(&text).map_err(serde::de::Error::custom)
+    }
+}
+
+fn j2000_date() -> NaiveDate {
+    // Invariant: 2000-01-01 is a valid calendar date.
+    NaiveDate::from_ymd_opt(2000, 1, 1).unwrap_or_default()
+}
+
+fn j2000_noon() -> NaiveDateTime {
+    j2000_date().and_hms_opt(12, 0, 0).unwrap_or_default()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn iso_round_trip_keeps_milliseconds() {
+        let t = UtcTime::parse_iso("2026-12-01T12:34:56.789Z").unwrap();
+        assert_eq!(t.to_iso_ms(), "2026-12-01T12:34:56.789Z");
+        let t = UtcTime::parse_iso("2026-12-01T23:59:59.9996Z").unwrap();
+        assert_eq!(t.to_iso_ms(), "2026-12-02T00:00:00.000Z");
+    }
+
+    #[test]
+    fn j2000_is_noon_of_first_january_2000() {
+        // Definition of the J2000.0 epoch (IAU): JD 2451545.0 = 2000-01-01T12:00 TT;
+        // here on the UTC scale by the module's convention.
+        let t = UtcTime::parse_iso("2000-01-01T12:00:00Z").unwrap();
+        assert_eq!(t.s_since_j2000(), 0.0);
+        assert_eq!(t.julian_date(), 2_451_545.0);
+    }
+
+    #[test]
+    fn accepts_the_usual_spellings() {
+        let a = UtcTime::parse_iso("2026-12-01T12:00:00Z").unwrap();
+        for s in [
+            "2026-12-01T12:00:00",
+            "2026-12-01 12:00:00",
+            "2026-12-01T12:00:00+00:00",
+            "2026-12-01T13:00:00+01:00",
+            "2026-12-01T12:00",
+            "2026-335T12:00:00",
+        ] {
+            assert_eq!(UtcTime::parse_iso(s).unwrap(), a, "{s}");
+        }
+        assert!(UtcTime::parse_iso("yesterday").is_err());
+        assert!(UtcTime::parse_iso("").is_err());
+    }
+
+    #[test]
+    fn tle_day_of_year() {
+        // 26335.5 = 2026-12-01T12:00Z (1 December is day 335 of a common year).
+        let t = UtcTime::from_year_and_day(2026, 335.5).unwrap();
+        assert_eq!(t.to_iso_ms(), "2026-12-01T12:00:00.000Z");
+    }
+}

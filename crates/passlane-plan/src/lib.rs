@@ -1,0 +1,1 @@
+//! Planning: contact windows, close approaches, schedules and exports.
