@@ -1,0 +1,380 @@
+//! The scenario file: one JSON document that holds an operator's fleet
+//! (element files by path), stations, planning window, network demands and
+//! screening settings.
+//!
+//! This module parses and writes text only; reading files, resolving paths
+//! and atomic saves belong to the caller. Every scenario carries a
+//! `format_version`: older versions are migrated on load, newer ones are
+//! refused with a clear message.
+
+use passlane_orbit::{EarthOrientation, UtcTime};
+use serde::{Deserialize, Serialize};
+
+use crate::station::{Station, StationError};
+
+/// The format version this build writes.
+pub const SCENARIO_FORMAT_VERSION: u32 = 1;
+
+/// The planning window.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Window {
+    pub start: UtcTime,
+    pub end: UtcTime,
+}
+
+/// What one spacecraft needs from the network each day, and how much it matters.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SatelliteNeeds {
+    pub catalog_number: u32,
+    /// Larger is more important (weights the planner's objective). Default 1.
+    #[serde(default = "one")]
+    pub priority: f64,
+    /// Shortest contact worth scheduling, s.
+    #[serde(default)]
+    pub min_contact_s: f64,
+    /// Contacts wanted per day.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub contacts_per_day: Option<f64>,
+    /// Data to bring down per day, megabytes.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub downlink_mb_per_day: Option<f64>,
+    /// May two antennas serve this spacecraft at the same time?
+    #[serde(default)]
+    pub allow_simultaneous: bool,
+    /// Hard-body radius for collision probability, m.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hard_body_radius_m: Option<f64>,
+}
+
+fn one() -> f64 {
+    1.0
+}
+
+/// Settings for close-approach screening.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ScreeningSettings {
+    #[serde(default = "default_threshold")]
+    pub threshold_km: f64,
+    /// Hard-body radius used when an object has none of its own, m.
+    #[serde(default = "default_hbr")]
+    pub default_hard_body_radius_m: f64,
+    /// Assumed 1-σ position uncertainty at element epoch, radial/in-track/cross-track, m.
+    #[serde(default = "default_sigma_epoch")]
+    pub assumed_sigma_at_epoch_m: [f64; 3],
+    /// Assumed growth of that 1-σ per day of element age, m/day.
+    #[serde(default = "default_sigma_growth")]
+    pub assumed_sigma_growth_m_per_day: [f64; 3],
+}
+
+fn default_threshold() -> f64 {
+    5.0
+}
+fn default_hbr() -> f64 {
+    5.0
+}
+// Typical element-set uncertainties for LEO (common practice, order of
+// magnitude only: ~100 m radial, ~1 km in-track, ~100 m cross-track at epoch,
+// in-track growing by about a kilometre per day).
+fn default_sigma_epoch() -> [f64; 3] {
+    [100.0, 1000.0, 100.0]
+}
+fn default_sigma_growth() -> [f64; 3] {
+    [50.0, 1000.0, 50.0]
+}
+
+impl Default for ScreeningSettings {
+    fn default() -> Self {
+        ScreeningSettings {
+            threshold_km: default_threshold(),
+            default_hard_body_radius_m: default_hbr(),
+            assumed_sigma_at_epoch_m: default_sigma_epoch(),
+            assumed_sigma_growth_m_per_day: default_sigma_growth(),
+        }
+    }
+}
+
+/// A whole scenario.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Scenario {
+    pub format_version: u32,
+    #[serde(default)]
+    pub name: String,
+    #[serde(default)]
+    pub operator: String,
+    /// The operator's own element files (TLE or OMM), relative to the scenario file.
+    #[serde(default)]
+    pub element_files: Vec<String>,
+    /// Other objects to screen against (catalog files), relative to the scenario file.
+    #[serde(default)]
+    pub catalog_files: Vec<String>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub window: Option<Window>,
+    #[serde(default)]
+    pub earth_orientation: EarthOrientation,
+    #[serde(default)]
+    pub stations: Vec<Station>,
+    #[serde(default)]
+    pub satellites: Vec<SatelliteNeeds>,
+    #[serde(default)]
+    pub screening: ScreeningSettings,
+}
+
+impl Default for Scenario {
+    fn default() -> Self {
+        Scenario {
+            format_version: SCENARIO_FORMAT_VERSION,
+            name: String::new(),
+            operator: String::new(),
+            element_files: Vec::new(),
+            catalog_files: Vec::new(),
+            window: None,
+            earth_orientation: EarthOrientation::default(),
+            stations: Vec::new(),
+            satellites: Vec::new(),
+            screening: ScreeningSettings::default(),
+        }
+    }
+}
+
+/// Why a scenario could not be read.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScenarioError {
+    pub file: String,
+    pub line: usize,
+    pub column: usize,
+    /// The field at fault, when known (e.g. `stations[1].latitude_deg`).
+    pub field: String,
+    pub message: String,
+}
+
+impl std::fmt::Display for ScenarioError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}", self.file)?;
+        if self.line > 0 {
+            write!(f, ":{}:{}", self.line, self.column)?;
+        }
+        if !self.field.is_empty() {
+            write!(f, ": {}", self.field)?;
+        }
+        write!(f, ": {}", self.message)
+    }
+}
+
+impl std::error::Error for ScenarioError {}
+
+impl Scenario {
+    /// Parses, migrates and validates a scenario from JSON text.
+    pub fn from_json(text: &str, file: &str) -> Result<Scenario, ScenarioError> {
+        let err = |line, column, field: &str, message: String| ScenarioError {
+            file: file.to_string(),
+            line,
+            column,
+            field: field.to_string(),
+            message,
+        };
+        let value: serde_json::Value = serde_json::from_str(text)
+            .map_err(|e| err(e.line(), e.column(), "", format!("not valid JSON: {e}")))?;
+        let version = value
+            .get("format_version")
+            .and_then(|v| v.as_u64())
+            .ok_or_else(|| err(0, 0, "format_version", "missing or not a whole number".into()))?;
+        if version > u64::from(SCENARIO_FORMAT_VERSION) {
+            return Err(err(
+                0,
+                0,
+                "format_version",
+                format!(
+                    "this scenario was written by a newer Passlane (format {version}); this build reads up to format {SCENARIO_FORMAT_VERSION}: please update"
+                ),
+            ));
+        }
+        if version == 0 {
+            return Err(err(0, 0, "format_version", "0 is not a valid format version".into()));
+        }
+        let mut scenario: Scenario = serde_path_from_str(text)
+            .map_err(|(path, line, column, message)| err(line, column, &path, message))?;
+        scenario.format_version = SCENARIO_FORMAT_VERSION;
+        scenario.validate().map_err(|e| err(0, 0, &e.0, e.1))?;
+        for s in &mut scenario.stations {
+            s.normalise();
+        }
+        Ok(scenario)
+    }
+
+    /// Pretty JSON, ending with a newline.
+    pub fn to_json(&self) -> String {
+        let mut s = serde_json::to_string_pretty(self).unwrap_or_else(|_| "{}".to_string());
+        s.push('\n');
+        s
+    }
+
+    /// Checks every field the library relies on; returns (field path, reason).
+    pub fn validate(&self) -> Result<(), (String, String)> {
+        if let Some(w) = &self.window {
+            if !(w.end > w.start) {
+                return Err(("window.end".into(), format!("{} is not after window.start {}", w.end, w.start)));
+            }
+        }
+        if !self.earth_orientation.ut1_utc_s.is_finite() || self.earth_orientation.ut1_utc_s.abs() > 1.0 {
+            return Err((
+                "earth_orientation.ut1_utc_s".into(),
+                format!("{} s is outside ±1 s", self.earth_orientation.ut1_utc_s),
+            ));
+        }
+        let mut names = std::collections::HashSet::new();
+        for (i, s) in self.stations.iter().enumerate() {
+            s.validate().map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
+            if !names.insert(s.name.as_str()) {
+                return Err((format!("stations[{i}].name"), format!("{:?} is used by two stations", s.name)));
+            }
+        }
+        for (i, n) in self.satellites.iter().enumerate() {
+            let field = |f: &str| format!("satellites[{i}].{f}");
+            if !(n.priority.is_finite() && n.priority > 0.0) {
+                return Err((field("priority"), format!("{} must be positive", n.priority)));
+            }
+            if !(n.min_contact_s.is_finite() && n.min_contact_s >= 0.0) {
+                return Err((field("min_contact_s"), format!("{} must not be negative", n.min_contact_s)));
+            }
+            for (f, v) in [("contacts_per_day", n.contacts_per_day), ("downlink_mb_per_day", n.downlink_mb_per_day)] {
+                if let Some(v) = v {
+                    if !(v.is_finite() && v >= 0.0) {
+                        return Err((field(f), format!("{v} must not be negative")));
+                    }
+                }
+            }
+        }
+        let sc = &self.screening;
+        if !(sc.threshold_km.is_finite() && sc.threshold_km > 0.0) {
+            return Err(("screening.threshold_km".into(), format!("{} must be positive", sc.threshold_km)));
+        }
+        if !(sc.default_hard_body_radius_m.is_finite() && sc.default_hard_body_radius_m > 0.0) {
+            return Err((
+                "screening.default_hard_body_radius_m".into(),
+                format!("{} must be positive", sc.default_hard_body_radius_m),
+            ));
+        }
+        Ok(())
+    }
+}
+
+/// Deserialises with the path of the failing field in the error, by walking
+/// the value: serde_json reports line/column, and we add the field path.
+fn serde_path_from_str(text: &str) -> Result<Scenario, (String, usize, usize, String)> {
+    let mut de = serde_json::Deserializer::from_str(text);
+    match Scenario::deserialize(&mut de) {
+        Ok(s) => Ok(s),
+        Err(e) => {
+            let msg = e.to_string();
+            // serde_json's message ends in " at line L column C"; keep its reason.
+            let reason = msg.split(" at line ").next().unwrap_or(&msg).to_string();
+            let path = field_path_at(text, e.line(), e.column());
+            Err((path, e.line(), e.column(), reason))
+        }
+    }
+}
+
+/// Best-effort JSON path (e.g. `stations[1].latitude_deg`) of the position
+/// `line:column` in `text`, by scanning the text up to it.
+fn field_path_at(text: &str, line: usize, column: usize) -> String {
+    let mut offset = 0usize;
+    for (i, l) in text.split_inclusive('\n').enumerate() {
+        if i + 1 == line {
+            offset += column.min(l.len());
+            break;
+        }
+        offset += l.len();
+    }
+    let bytes = &text.as_bytes()[..offset.min(text.len())];
+    enum Frame {
+        Obj(Option<String>),
+        Arr(usize),
+    }
+    let mut stack: Vec<Frame> = Vec::new();
+    let mut i = 0;
+    let mut last_string: Option<String> = None;
+    while i < bytes.len() {
+        match bytes[i] {
+            b'"' => {
+                let start = i + 1;
+                i += 1;
+                while i < bytes.len() && bytes[i] != b'"' {
+                    if bytes[i] == b'\\' {
+                        i += 1;
+                    }
+                    i += 1;
+                }
+                last_string = Some(String::from_utf8_lossy(&bytes[start..i.min(bytes.len())]).into_owned());
+            }
+            b':' => {
+                if let Some(Frame::Obj(key)) = stack.last_mut() {
+                    *key = last_string.take();
+                }
+            }
+            b'{' => stack.push(Frame::Obj(None)),
+            b'[' => stack.push(Frame::Arr(0)),
+            b'}' | b']' => {
+                stack.pop();
+            }
+            b',' => match stack.last_mut() {
+                Some(Frame::Arr(n)) => *n += 1,
+                Some(Frame::Obj(key)) => *key = None,
+                None => {}
+            },
+            _ => {}
+        }
+        i += 1;
+    }
+    let mut path = String::new();
+    for f in &stack {
+        match f {
+            Frame::Obj(Some(k)) => {
+                if !path.is_empty() {
+                    path.push('.');
+                }
+                path.push_str(k);
+            }
+            Frame::Obj(None) => {}
+            Frame::Arr(n) => path.push_str(&format!("[{n}]")),
+        }
+    }
+    path
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn errors_name_the_field() {
+        let text = r#"{
+  "format_version": 1,
+  "stations": [
+    {"name": "A", "latitude_deg": 10, "longitude_deg": 0},
+    {"name": "B", "latitude_deg": "north", "longitude_deg": 0}
+  ]
+}"#;
+        let e = Scenario::from_json(text, "s.json").unwrap_err();
+        assert_eq!(e.field, "stations[1].latitude_deg", "{e}");
+        assert_eq!(e.line, 5);
+        let text = r#"{"format_version": 1, "stations": [{"name": "A", "latitude_deg": 95, "longitude_deg": 0}]}"#;
+        let e = Scenario::from_json(text, "s.json").unwrap_err();
+        assert_eq!(e.field, "stations[0].latitude_deg", "{e}");
+    }
+
+    #[test]
+    fn newer_format_is_refused_clearly() {
+        let e = Scenario::from_json(r#"{"format_version": 99}"#, "s.json").unwrap_err();
+        assert_eq!(e.field, "format_version");
+        assert!(e.message.contains("newer"), "{e}");
+    }
+
+    #[test]
+    fn round_trip() {
+        let mut s = Scenario::default();
+        s.name = "t".into();
+        s.stations.push(Station::new("A", 1.0, 2.0, 3.0));
+        let back = Scenario::from_json(&s.to_json(), "x").unwrap();
+        assert_eq!(back, s);
+    }
+}
