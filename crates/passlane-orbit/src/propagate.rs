@@ -10,7 +10,7 @@
 
 use rayon::prelude::*;
 
-use crate::constants::{WGS84_A_KM, WGS84_F};
+use crate::constants::{EARTH_RADIUS_WGS72_KM, WGS84_A_KM, WGS84_F};
 use crate::elements::ElementSet;
 use crate::time::UtcTime;
 
@@ -177,7 +177,11 @@ impl Propagator {
                 time,
             })?;
         let altitude_km = approximate_altitude_km(&p.position);
-        if !(altitude_km >= self.decay_altitude_km) {
+        let r_km = (p.position[0].powi(2) + p.position[1].powi(2) + p.position[2].powi(2)).sqrt();
+        // Two tests: the user's altitude (default the ellipsoid surface), and the
+        // reference implementation's own decay test, radius below one Earth
+        // radius (Vallado et al. 2006, error code 6).
+        if !(altitude_km >= self.decay_altitude_km) || !(r_km >= EARTH_RADIUS_WGS72_KM) {
             return Err(PropagationError::Decayed {
                 catalog_number: self.catalog_number,
                 time,
