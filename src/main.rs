@@ -51,6 +51,8 @@ fn main() -> ExitCode {
     let flushed = out.flush();
     match result.and(flushed.map_err(anyhow::Error::from)) {
         Ok(()) => ExitCode::SUCCESS,
+        // A reader that stops early (`| head`) is not an error.
+        Err(e) if is_broken_pipe(&e) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("passlane {command}: error: {e:#}");
             eprintln!("usage: {usage}");
@@ -70,4 +72,11 @@ fn run_or_help(
         return Ok(());
     }
     f(rest, out)
+}
+
+fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
 }

@@ -128,7 +128,7 @@ fn write_table(
     writeln!(
         out,
         "{:<16} {:<14} {:<20} {:<8} {:<8} {:>6} {:>6} {:>6} {:>6}  {:<4} {:<9} notes",
-        "spacecraft", "station", "AOS (UTC)", "max el", "LOS", "dur", "max el", "AOS az", "LOS az", "dir", "sun"
+        "spacecraft", "station", "AOS (UTC)", "max at", "LOS", "dur", "max el", "AOS az", "LOS az", "dir", "sun"
     )?;
     let mut day = String::new();
     for p in passes {

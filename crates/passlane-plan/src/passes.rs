@@ -92,9 +92,9 @@ impl SkyAtStation {
     pub fn label(self) -> &'static str {
         match self {
             SkyAtStation::Daylight => "day",
-            SkyAtStation::CivilTwilight => "civil twilight",
-            SkyAtStation::NauticalTwilight => "nautical twilight",
-            SkyAtStation::AstronomicalTwilight => "astro twilight",
+            SkyAtStation::CivilTwilight => "civil",
+            SkyAtStation::NauticalTwilight => "nautical",
+            SkyAtStation::AstronomicalTwilight => "astro",
             SkyAtStation::Night => "night",
         }
     }
@@ -548,14 +548,14 @@ fn scan_segment(
             } else if fa > 0.0 && fb <= 0.0 {
                 let t = brent_root(clearance_at, ta, tb, fa, fb, 1e-4);
                 if let Some((aos, clipped)) = open.take() {
-                    passes.push(describe_pass(set, prop, st, track, options, aos, t, clipped, false));
+                    passes.push(describe_pass(set, st, track, options, aos, t, clipped, false));
                 }
             }
         }
         if let Some((aos, clipped)) = open {
             let last = points[points.len() - 1].0;
             let los_clipped = last >= total_s - 1e-9;
-            passes.push(describe_pass(set, prop, st, track, options, aos, last, clipped, los_clipped));
+            passes.push(describe_pass(set, st, track, options, aos, last, clipped, los_clipped));
         }
     }
 }
@@ -563,7 +563,6 @@ fn scan_segment(
 #[allow(clippy::too_many_arguments)]
 fn describe_pass(
     set: &ElementSet,
-    prop: &Propagator,
     st: &PreparedStation,
     track: &Track,
     options: &PassOptions,
@@ -629,9 +628,9 @@ fn describe_pass(
             max_rate_hz_s: (c.frequency_hz * range_accel / SPEED_OF_LIGHT_KM_S).abs(),
         })
         .collect();
-    let illumination = illumination_spans(prop, t0.add_s(aos_s), t0.add_s(los_s));
+    let illumination = illumination_spans(track, t0, aos_s, los_s, &eop);
     let mount_warnings = match &st.station.mount {
-        Some(m) => mount_warnings(&look, aos_s, los_s, t0, m),
+        Some(m) => mount_warnings(&look, aos_s, los_s, tmax_s, t0, m),
         None => Vec::new(),
     };
     Pass {
@@ -679,122 +678,146 @@ pub fn tuned_frequency_hz(f_hz: f64, direction: LinkDirection, range_rate_km_s: 
     }
 }
 
-/// Sunlit/penumbra/umbra stretches over [aos, los], from direct SGP4 states
-/// every 10 s with each transition bisected to 10 ms.
-fn illumination_spans(prop: &Propagator, aos: UtcTime, los: UtcTime) -> Vec<IlluminationSpan> {
-    let sun = sun_position_teme_km(aos.add_s(los.s_since(aos) / 2.0));
-    let state_at = |t: UtcTime| -> Option<Illumination> {
-        prop.state_at(t).ok().map(|s| shadow(&s.position_km, &sun).0)
+/// Sunlit/penumbra/umbra stretches over [aos, los], from the interpolated
+/// track every 10 s with each transition bisected to 10 ms. The Sun's
+/// direction is fixed over a pass (it moves 0.007° per 10 minutes) but is
+/// rotated into the Earth-fixed frame at each sample.
+fn illumination_spans(
+    track: &Track,
+    t0: UtcTime,
+    aos_s: f64,
+    los_s: f64,
+    eop: &EarthOrientation,
+) -> Vec<IlluminationSpan> {
+    let sun_teme = sun_position_teme_km(t0.add_s(0.5 * (aos_s + los_s)));
+    let state_at = |t_s: f64| -> Illumination {
+        let sun_ecef = TemeToEarthFixed::at(t0.add_s(t_s), eop).position(&sun_teme);
+        shadow(&track.at(t_s).position_km, &sun_ecef).0
     };
     let mut spans = Vec::new();
-    let Some(mut current) = state_at(aos) else {
-        return spans;
-    };
-    let mut span_start = aos;
-    let total = los.s_since(aos);
+    let mut current = state_at(aos_s);
+    let mut span_start = aos_s;
     let step = 10.0;
-    let mut prev_t = 0.0;
-    let mut k = 1;
+    let mut prev_t = aos_s;
     loop {
-        let t_s = (k as f64 * step).min(total);
-        let Some(s) = state_at(aos.add_s(t_s)) else {
-            break;
-        };
+        let t_s = (prev_t + step).min(los_s);
+        let s = state_at(t_s);
         if s != current {
-            // Bisect the change between prev_t and t_s.
             let (mut lo, mut hi) = (prev_t, t_s);
             while hi - lo > 0.01 {
                 let mid = 0.5 * (lo + hi);
-                if state_at(aos.add_s(mid)) == Some(current) {
+                if state_at(mid) == current {
                     lo = mid;
                 } else {
                     hi = mid;
                 }
             }
-            let change = aos.add_s(hi);
             spans.push(IlluminationSpan {
                 state: current,
-                start: span_start,
-                end: change,
+                start: t0.add_s(span_start),
+                end: t0.add_s(hi),
             });
-            span_start = change;
-            current = state_at(change).unwrap_or(s);
+            span_start = hi;
+            current = state_at(hi);
         }
         prev_t = t_s;
-        if t_s >= total {
+        if t_s >= los_s {
             break;
         }
-        k += 1;
     }
     spans.push(IlluminationSpan {
         state: current,
-        start: span_start,
-        end: los,
+        start: t0.add_s(span_start),
+        end: t0.add_s(los_s),
     });
     spans
 }
 
-/// Where the pass needs more azimuth or elevation rate than the mount has,
-/// sampled every 0.5 s (rates change over seconds near culmination).
+/// Where the pass needs more azimuth or elevation rate than the mount has.
+/// Rates are central differences over 0.5 s, checked every 5 s and at
+/// culmination (where the azimuth rate peaks); wherever a rate comes within
+/// half of its limit, that stretch is re-checked every 0.5 s.
 fn mount_warnings(
     look: &dyn Fn(f64) -> LookAngles,
     aos_s: f64,
     los_s: f64,
+    tmax_s: f64,
     t0: UtcTime,
     limits: &crate::station::MountLimits,
 ) -> Vec<MountWarning> {
-    let dt = 0.5;
+    let rates = |t: f64| -> (f64, f64) {
+        let a = (t - 0.25).max(aos_s);
+        let b = (t + 0.25).min(los_s);
+        if b <= a {
+            return (0.0, 0.0);
+        }
+        let (la, lb) = (look(a), look(b));
+        let daz = (lb.azimuth_deg - la.azimuth_deg + 540.0).rem_euclid(360.0) - 180.0;
+        (
+            (daz / (b - a)).abs(),
+            ((lb.elevation_deg - la.elevation_deg) / (b - a)).abs(),
+        )
+    };
+    let limit = [limits.max_azimuth_rate_deg_s, limits.max_elevation_rate_deg_s];
+    // Coarse scan: which 5 s cells need a closer look?
+    let mut coarse: Vec<f64> = Vec::new();
+    let mut t = aos_s;
+    while t < los_s {
+        coarse.push(t);
+        t += 5.0;
+    }
+    coarse.push(los_s);
+    let mut hot = vec![false; coarse.len()];
+    for (k, &tc) in coarse.iter().enumerate() {
+        let (az, el) = rates(tc);
+        if az > 0.5 * limit[0] || el > 0.5 * limit[1] {
+            hot[k] = true;
+        }
+    }
+    let (az, el) = rates(tmax_s);
+    if az > 0.5 * limit[0] || el > 0.5 * limit[1] {
+        let k = coarse.partition_point(|&c| c <= tmax_s).saturating_sub(1);
+        hot[k] = true;
+    }
     let mut out = Vec::new();
-    for (axis, limit) in [
-        ("azimuth", limits.max_azimuth_rate_deg_s),
-        ("elevation", limits.max_elevation_rate_deg_s),
-    ] {
-        let mut t = aos_s;
-        let mut prev = look(t);
+    for (axis_index, axis) in ["azimuth", "elevation"].into_iter().enumerate() {
         let mut open: Option<(f64, f64)> = None; // (start, peak)
-        while t < los_s {
-            let t_next = (t + dt).min(los_s);
-            let next = look(t_next);
-            let rate = if axis == "azimuth" {
-                let mut d = next.azimuth_deg - prev.azimuth_deg;
-                if d > 180.0 {
-                    d -= 360.0;
-                }
-                if d < -180.0 {
-                    d += 360.0;
-                }
-                (d / (t_next - t)).abs()
-            } else {
-                ((next.elevation_deg - prev.elevation_deg) / (t_next - t)).abs()
-            };
-            if rate > limit {
-                open = Some(match open {
-                    None => (t, rate),
-                    Some((s, p)) => (s, p.max(rate)),
-                });
-            } else if let Some((s, p)) = open.take() {
+        let close = |open: &mut Option<(f64, f64)>, end: f64, out: &mut Vec<MountWarning>| {
+            if let Some((s, p)) = open.take() {
                 out.push(MountWarning {
                     axis: axis.to_string(),
                     start: t0.add_s(s),
-                    end: t0.add_s(t),
+                    end: t0.add_s(end),
                     required_rate_deg_s: p,
-                    limit_deg_s: limit,
-                    excess_deg_s: p - limit,
+                    limit_deg_s: limit[axis_index],
+                    excess_deg_s: p - limit[axis_index],
                 });
             }
-            prev = next;
-            t = t_next;
+        };
+        for k in 0..coarse.len() {
+            // A hot cell and its neighbours are scanned finely.
+            let near_hot = hot[k] || (k > 0 && hot[k - 1]) || (k + 1 < hot.len() && hot[k + 1]);
+            if !near_hot {
+                close(&mut open, coarse[k], &mut out);
+                continue;
+            }
+            let end = coarse.get(k + 1).copied().unwrap_or(los_s);
+            let mut tf = coarse[k];
+            while tf < end {
+                let r = rates(tf);
+                let rate = if axis_index == 0 { r.0 } else { r.1 };
+                if rate > limit[axis_index] {
+                    open = Some(match open {
+                        None => (tf, rate),
+                        Some((s0, p)) => (s0, p.max(rate)),
+                    });
+                } else {
+                    close(&mut open, tf, &mut out);
+                }
+                tf += 0.5;
+            }
         }
-        if let Some((s, p)) = open {
-            out.push(MountWarning {
-                axis: axis.to_string(),
-                start: t0.add_s(s),
-                end: t0.add_s(los_s),
-                required_rate_deg_s: p,
-                limit_deg_s: limit,
-                excess_deg_s: p - limit,
-            });
-        }
+        close(&mut open, los_s, &mut out);
     }
     out
 }
