@@ -98,6 +98,11 @@ impl<'f> Record<'f> {
         }
     }
 
+    /// Gives up on the record: only the errors found so far are reported.
+    pub(super) fn abandon(self, report: &mut LoadReport) {
+        report.diagnostics.extend(self.errors);
+    }
+
     fn get(&self, key: &str) -> Option<(&str, usize)> {
         self.values.get(key).map(|(v, l)| (v.trim(), *l))
     }
