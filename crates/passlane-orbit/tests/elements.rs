@@ -4,6 +4,8 @@
 //! 9xxxx, invented names). Sources of the format facts: TLE column layout and
 //! checksum rule: common practice; OMM keywords: CCSDS 502.0.
 
+#![allow(clippy::unwrap_used)]
+
 use passlane_orbit::elements::{
     self, LoadOptions, LoadReport, Severity, load, load_records, tle_checksum,
 };
@@ -241,7 +243,7 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
             "duplicate catalog number",
             vec![
                 "KRSL-1 HERON (NEWER)".to_string(),
-                edit(&HERON[1], 19, "26336.21354167"),
+                edit(HERON[1], 19, "26336.21354167"),
                 HERON[2].to_string(),
             ],
             STRICT,
@@ -264,7 +266,7 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
 fn duplicate_keeps_the_newest_epoch() {
     let newer = vec![
         "KRSL-1 HERON (NEWER)".to_string(),
-        edit(&HERON[1], 19, "26336.21354167"),
+        edit(HERON[1], 19, "26336.21354167"),
         HERON[2].to_string(),
     ];
     let r = load(&around(&newer), "case.tle", STRICT);

@@ -76,11 +76,9 @@ fn scan_value(b: &[u8], start: usize) -> Result<Scanned, (usize, String)> {
                 i = end;
                 continue;
             }
-            b':' => {
-                if stack.len() == 1 {
-                    if let Some(k) = last_string.take() {
-                        keys.push(k);
-                    }
+            b':' if stack.len() == 1 => {
+                if let Some(k) = last_string.take() {
+                    keys.push(k);
                 }
             }
             b'{' | b'[' => stack.push(c),
