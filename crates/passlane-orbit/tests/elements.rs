@@ -447,6 +447,9 @@ fn random_bytes_never_panic() {
 
 // ---------------------------------------------------------------- OMM
 
+/// A keyword to set (`Some`) or remove (`None`).
+type Change = (&'static str, Option<&'static str>);
+
 /// HERON as OMM keyword/value pairs (CCSDS 502.0 keywords).
 fn heron_omm() -> Vec<(&'static str, &'static str)> {
     vec![
@@ -586,9 +589,7 @@ fn json_obj(pairs: &[(&str, &str)], strings: bool) -> String {
     let body: Vec<String> = pairs
         .iter()
         .map(|(k, v)| {
-            if numeric(k) && !strings && !v.starts_with('"') {
-                format!("    \"{k}\": {v}")
-            } else if v.starts_with('"') {
+            if v.starts_with('"') || (numeric(k) && !strings) {
                 format!("    \"{k}\": {v}")
             } else {
                 format!("    \"{k}\": \"{v}\"")
@@ -673,7 +674,7 @@ fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
         )
     };
     // (name, changes to the middle record, keyword the error names, message text)
-    let cases: Vec<(&str, Vec<(&'static str, Option<&'static str>)>, &str, &str)> = vec![
+    let cases: Vec<(&str, Vec<Change>, &str, &str)> = vec![
         (
             "eccentricity 1",
             vec![("ECCENTRICITY", Some("1.0"))],
