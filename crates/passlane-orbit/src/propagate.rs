@@ -61,10 +61,7 @@ impl std::fmt::Display for PropagationError {
                 f,
                 "catalog {catalog_number}: the elements cannot start SGP4 (orbit inside the Earth or out of the model's range)"
             ),
-            PropagationError::Diverged {
-                catalog_number,
-                time,
-            } => write!(
+            PropagationError::Diverged { catalog_number, time } => write!(
                 f,
                 "catalog {catalog_number}: SGP4 diverged at {time} (the elements are too old or the orbit has decayed)"
             ),
@@ -327,9 +324,7 @@ pub fn propagate_grid(props: &[Propagator], grid: TimeGrid) -> Vec<GridSamples> 
         .par_iter()
         .map(|prop| {
             let mut cursor = prop.cursor();
-            (0..grid.count)
-                .map(|k| cursor.state_at(grid.time(k)))
-                .collect()
+            (0..grid.count).map(|k| cursor.state_at(grid.time(k))).collect()
         })
         .collect()
 }

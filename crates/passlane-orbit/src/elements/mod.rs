@@ -26,6 +26,8 @@ pub struct SourceRef {
 pub struct ElementSet {
     pub name: String,
     pub catalog_number: u32,
+    /// In the TLE form `26901A` (two-digit year, launch number, piece); an OMM
+    /// `OBJECT_ID` such as `2026-901A` is converted to it.
     pub international_designator: String,
     pub classification: char,
     pub epoch: UtcTime,

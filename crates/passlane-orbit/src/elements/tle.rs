@@ -516,18 +516,18 @@ fn read_record(
     let mean_motion = f.get(l2, 53, 63, "mean motion", parse_decimal);
     let revolution_number = f.get(l2, 64, 68, "revolution number", parse_count);
 
-    if let (Some(c1), Some(c2)) = (catalog1, catalog2) {
-        if c1 != c2 {
-            let d = f.reader.diag(
-                Severity::Error,
-                l2.number,
-                columns(3, 7, "catalog number"),
-                format!(
-                    "line 2 has catalog number {c2} but line 1 (line {n1}) has {c1}; record skipped"
-                ),
-            );
-            f.errors.push(d);
-        }
+    if let (Some(c1), Some(c2)) = (catalog1, catalog2)
+        && c1 != c2
+    {
+        let d = f.reader.diag(
+            Severity::Error,
+            l2.number,
+            columns(3, 7, "catalog number"),
+            format!(
+                "line 2 has catalog number {c2} but line 1 (line {n1}) has {c1}; record skipped"
+            ),
+        );
+        f.errors.push(d);
     }
     let errors = std::mem::take(&mut f.errors);
     if !errors.is_empty() {
@@ -780,6 +780,7 @@ fn parse_epoch(s: &str) -> Result<UtcTime, String> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

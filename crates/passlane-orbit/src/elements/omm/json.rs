@@ -76,11 +76,9 @@ fn scan_value(b: &[u8], start: usize) -> Result<Scanned, (usize, String)> {
                 i = end;
                 continue;
             }
-            b':' => {
-                if stack.len() == 1 {
-                    if let Some(k) = last_string.take() {
-                        keys.push(k);
-                    }
+            b':' if stack.len() == 1 => {
+                if let Some(k) = last_string.take() {
+                    keys.push(k);
                 }
             }
             b'{' | b'[' => stack.push(c),
@@ -174,7 +172,7 @@ pub(in crate::elements) fn load_json(bytes: &[u8], file: &str, report: &mut Load
                             line,
                             format!("not valid JSON: {msg}; the rest of the file is skipped"),
                         );
-                        break;
+                        return;
                     }
                 };
                 let line = line_of(pos);
@@ -273,16 +271,25 @@ fn read_object(
                 .rev()
                 .find(|(ks, _)| *ks <= offset)
                 .map_or(String::new(), |(_, k)| k.clone());
-            let reason = if e.to_string().contains("recursion limit") {
-                "nested more than 128 levels deep".to_string()
+            // serde_json's message ends with a position inside the object;
+            // the diagnostic carries the file's line instead.
+            let full = e.to_string();
+            let reason = match full.find(" at line ") {
+                Some(i) => &full[..i],
+                None => full.as_str(),
+            };
+            let reason = if reason.contains("recursion limit") {
+                "nested more than 128 levels deep"
             } else {
-                e.to_string()
+                reason
             };
             rec.error(
                 err_line,
                 &key,
                 format!("not valid JSON: {reason}; record skipped"),
             );
+            rec.abandon(report);
+            return;
         }
         Ok(Value::Object(map)) => {
             for (key, value) in map {

@@ -98,6 +98,11 @@ impl<'f> Record<'f> {
         }
     }
 
+    /// Gives up on the record: only the errors found so far are reported.
+    pub(super) fn abandon(self, report: &mut LoadReport) {
+        report.diagnostics.extend(self.errors);
+    }
+
     fn get(&self, key: &str) -> Option<(&str, usize)> {
         self.values.get(key).map(|(v, l)| (v.trim(), *l))
     }
@@ -219,14 +224,14 @@ impl<'f> Record<'f> {
                 }
             },
         };
-        if let Some((v, l)) = time_system {
-            if !v.eq_ignore_ascii_case("UTC") {
-                push_err(
-                    l,
-                    "TIME_SYSTEM",
-                    format!("{v:?} is not supported: SGP4 elements have UTC epochs"),
-                );
-            }
+        if let Some((v, l)) = time_system
+            && !v.eq_ignore_ascii_case("UTC")
+        {
+            push_err(
+                l,
+                "TIME_SYSTEM",
+                format!("{v:?} is not supported: SGP4 elements have UTC epochs"),
+            );
         }
         if let Some((v, l)) = theory {
             let v_up = v.to_ascii_uppercase();
@@ -248,16 +253,16 @@ impl<'f> Record<'f> {
                 ));
             }
         }
-        if let Some((v, l)) = ref_frame {
-            if !v.eq_ignore_ascii_case("TEME") {
-                warnings.push(diag(
+        if let Some((v, l)) = ref_frame
+            && !v.eq_ignore_ascii_case("TEME")
+        {
+            warnings.push(diag(
                     file,
                     Severity::Warning,
                     l,
                     "REF_FRAME",
                     format!("{v:?} is not TEME; SGP4 mean elements are TEME by definition, so they are used as TEME"),
                 ));
-            }
         }
 
         if !errors.is_empty() {
