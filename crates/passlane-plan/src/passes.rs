@@ -464,7 +464,7 @@ fn passes_of_satellite(
         if margin > near && !at_end {
             if in_segment {
                 track.push(t, ecef);
-                scan_segment(set, &prop, stations, &track, options, &mut passes);
+                scan_segment(set, stations, &track, options, &mut passes);
                 track.clear();
                 in_segment = false;
             }
@@ -480,7 +480,7 @@ fn passes_of_satellite(
         }
     }
     if in_segment && track.times_s.len() >= 2 {
-        scan_segment(set, &prop, stations, &track, options, &mut passes);
+        scan_segment(set, stations, &track, options, &mut passes);
     }
     (passes, fail)
 }
@@ -488,7 +488,6 @@ fn passes_of_satellite(
 /// Finds the passes inside one stretch of dense samples, for every station.
 fn scan_segment(
     set: &ElementSet,
-    prop: &Propagator,
     stations: &[PreparedStation],
     track: &Track,
     options: &PassOptions,
