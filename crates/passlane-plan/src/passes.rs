@@ -300,8 +300,9 @@ impl PreparedStation {
         sin_el - self.station.horizon_deg(az).to_radians().sin()
     }
 
-    fn central_angle_rad(&self, r_ecef: &Vec3) -> f64 {
-        (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0).acos()
+    /// Cosine of the Earth central angle between the station and a position.
+    fn cos_central_angle(&self, r_ecef: &Vec3) -> f64 {
+        (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0)
     }
 }
 
@@ -436,12 +437,15 @@ fn passes_of_satellite(
         .iter()
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
         .collect();
+    // "Near" a station: inside its cone widened by one step of travel. Compared
+    // as cosines so that the common case needs no acos.
+    let near = bounds.max_angle_rate_rad_s * bounds.step_s;
+    let cos_near: Vec<f64> = cones.iter().map(|c| (c + near).min(std::f64::consts::PI).cos()).collect();
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
     let mut track = Track::new(options.start);
     let total_s = options.end.s_since(options.start);
     let h = bounds.step_s;
-    let near = bounds.max_angle_rate_rad_s * h;
     let mut t_s = 0.0_f64;
     let mut in_segment = false;
     let mut fail = None;
@@ -455,16 +459,21 @@ fn passes_of_satellite(
             }
         };
         let ecef = TemeToEarthFixed::at(t, &eop).state(&teme.position_km, &teme.velocity_km_s);
-        let margin = stations
+        let cosines: Vec<f64> = stations
             .iter()
-            .zip(&cones)
-            .map(|(s, cone)| s.central_angle_rad(&ecef.position_km) - cone)
-            .fold(f64::INFINITY, f64::min);
+            .map(|s| s.cos_central_angle(&ecef.position_km))
+            .collect();
+        let far = cosines.iter().zip(&cos_near).all(|(c, cn)| c < cn);
         let at_end = t_s >= total_s;
-        if margin > near && !at_end {
+        if far && !at_end {
+            let margin = cosines
+                .iter()
+                .zip(&cones)
+                .map(|(c, cone)| c.acos() - cone)
+                .fold(f64::INFINITY, f64::min);
             if in_segment {
                 track.push(t, ecef);
-                scan_segment(set, stations, &track, options, &mut passes);
+                scan_segment(set, stations, &track, &bounds, options, &mut passes);
                 track.clear();
                 in_segment = false;
             }
@@ -480,7 +489,7 @@ fn passes_of_satellite(
         }
     }
     if in_segment && track.times_s.len() >= 2 {
-        scan_segment(set, stations, &track, options, &mut passes);
+        scan_segment(set, stations, &track, &bounds, options, &mut passes);
     }
     (passes, fail)
 }
@@ -490,6 +499,7 @@ fn scan_segment(
     set: &ElementSet,
     stations: &[PreparedStation],
     track: &Track,
+    bounds: &OrbitBounds,
     options: &PassOptions,
     passes: &mut Vec<Pass>,
 ) {
@@ -499,6 +509,20 @@ fn scan_segment(
     }
     let total_s = options.end.s_since(options.start);
     for st in stations {
+        let cone = st.cone_half_angle_rad(bounds.max_radius_km);
+        // Between two samples the central angle can shrink by at most
+        // rate × step; a station every sample of which stays farther than that
+        // outside its cone cannot see the satellite anywhere in the segment.
+        let reach = bounds.max_angle_rate_rad_s * bounds.step_s;
+        let cos_reach = (cone + reach).min(std::f64::consts::PI).cos();
+        let reachable_at: Vec<bool> = track
+            .states
+            .iter()
+            .map(|s| st.cos_central_angle(&s.position_km) >= cos_reach)
+            .collect();
+        if !reachable_at.iter().any(|&r| r) {
+            continue;
+        }
         let f: Vec<f64> = track
             .states
             .iter()
@@ -509,7 +533,8 @@ fn scan_segment(
         for i in 1..n - 1 {
             let is_max = f[i] >= f[i - 1] && f[i] >= f[i + 1];
             let is_min = f[i] <= f[i - 1] && f[i] <= f[i + 1];
-            if is_max && f[i] <= 0.0 {
+            let reachable = reachable_at[i - 1] || reachable_at[i] || reachable_at[i + 1];
+            if is_max && f[i] <= 0.0 && reachable {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.at(t).position_km),
                     track.time(i - 1),
@@ -678,7 +703,10 @@ pub fn tuned_frequency_hz(f_hz: f64, direction: LinkDirection, range_rate_km_s: 
 }
 
 /// Sunlit/penumbra/umbra stretches over [aos, los], from the interpolated
-/// track every 10 s with each transition bisected to 10 ms. The Sun's
+/// track every 20 s with each transition bisected to 10 ms; the scan resumes
+/// from each transition, so a penumbra shorter than the step is still found
+/// on the way into or out of the umbra. (A brush with the penumbra that starts
+/// and ends between two samples is not: the shadow's edge is ~10 s wide.) The Sun's
 /// direction is fixed over a pass (it moves 0.007° per 10 minutes) but is
 /// rotated into the Earth-fixed frame at each sample.
 fn illumination_spans(
@@ -689,14 +717,25 @@ fn illumination_spans(
     eop: &EarthOrientation,
 ) -> Vec<IlluminationSpan> {
     let sun_teme = sun_position_teme_km(t0.add_s(0.5 * (aos_s + los_s)));
+    // The Sun turns with the Earth-fixed frame by ~2.5° per 10 minutes; a
+    // straight blend of its directions at AOS and LOS is within 0.02° of it
+    // over a LEO pass (the shadow's edge is half a degree wide).
+    let sun_a = TemeToEarthFixed::at(t0.add_s(aos_s), eop).position(&sun_teme);
+    let sun_b = TemeToEarthFixed::at(t0.add_s(los_s), eop).position(&sun_teme);
+    let span = (los_s - aos_s).max(1e-9);
     let state_at = |t_s: f64| -> Illumination {
-        let sun_ecef = TemeToEarthFixed::at(t0.add_s(t_s), eop).position(&sun_teme);
-        shadow(&track.at(t_s).position_km, &sun_ecef).0
+        let u = ((t_s - aos_s) / span).clamp(0.0, 1.0);
+        let sun = [
+            sun_a[0] + u * (sun_b[0] - sun_a[0]),
+            sun_a[1] + u * (sun_b[1] - sun_a[1]),
+            sun_a[2] + u * (sun_b[2] - sun_a[2]),
+        ];
+        shadow(&track.at(t_s).position_km, &sun).0
     };
     let mut spans = Vec::new();
     let mut current = state_at(aos_s);
     let mut span_start = aos_s;
-    let step = 10.0;
+    let step = 20.0;
     let mut prev_t = aos_s;
     loop {
         let t_s = (prev_t + step).min(los_s);
@@ -718,6 +757,8 @@ fn illumination_spans(
             });
             span_start = hi;
             current = state_at(hi);
+            prev_t = hi;
+            continue;
         }
         prev_t = t_s;
         if t_s >= los_s {
@@ -821,42 +862,97 @@ fn mount_warnings(
     out
 }
 
-/// Golden-section search for the extremum of a unimodal function on [a, b],
-/// to 1 ms. Returns (argument, value).
+/// Extremum of a unimodal function on [a, b] to about 1 ms, by Brent's
+/// method (golden section with parabolic steps; Brent 1973, "Algorithms for
+/// Minimization without Derivatives", ch. 5). Returns (argument, value); the
+/// ends are considered too, as a clipped pass can peak on one.
 pub(crate) fn golden_extremum(
     f: impl Fn(f64) -> f64,
     a: f64,
     b: f64,
     maximise: bool,
 ) -> (f64, f64) {
-    let sign = if maximise { 1.0 } else { -1.0 };
+    let sign = if maximise { -1.0 } else { 1.0 };
     let g = |t: f64| sign * f(t);
-    let r = 0.618_033_988_749_894_9;
-    let (mut a, mut b) = (a, b);
-    let mut c = b - r * (b - a);
-    let mut d = a + r * (b - a);
-    let (mut fc, mut fd) = (g(c), g(d));
-    while b - a > 1e-3 {
-        if fc > fd {
-            b = d;
-            d = c;
-            fd = fc;
-            c = b - r * (b - a);
-            fc = g(c);
+    const CGOLD: f64 = 0.381_966_011_250_105_1;
+    let tol = 5e-4;
+    let (mut a, mut b) = (a.min(b), a.max(b));
+    let (lo, hi) = (a, b);
+    let mut x = a + CGOLD * (b - a);
+    let (mut w, mut v) = (x, x);
+    let mut fx = g(x);
+    let (mut fw, mut fv) = (fx, fx);
+    let mut d: f64 = 0.0;
+    let mut e: f64 = 0.0;
+    for _ in 0..100 {
+        let xm = 0.5 * (a + b);
+        let tol1 = tol + 1e-12 * x.abs();
+        let tol2 = 2.0 * tol1;
+        if (x - xm).abs() <= tol2 - 0.5 * (b - a) {
+            break;
+        }
+        let mut golden = true;
+        if e.abs() > tol1 {
+            // Parabola through x, w, v.
+            let r = (x - w) * (fx - fv);
+            let mut q = (x - v) * (fx - fw);
+            let mut p = (x - v) * q - (x - w) * r;
+            q = 2.0 * (q - r);
+            if q > 0.0 {
+                p = -p;
+            }
+            q = q.abs();
+            let e_old = e;
+            if p.abs() < (0.5 * q * e_old).abs() && p > q * (a - x) && p < q * (b - x) {
+                e = d;
+                d = p / q;
+                let u = x + d;
+                if u - a < tol2 || b - u < tol2 {
+                    d = if xm >= x { tol1 } else { -tol1 };
+                }
+                golden = false;
+            }
+        }
+        if golden {
+            e = if x >= xm { a - x } else { b - x };
+            d = CGOLD * e;
+        }
+        let u = if d.abs() >= tol1 { x + d } else { x + tol1.copysign(d) };
+        let fu = g(u);
+        if fu <= fx {
+            if u >= x {
+                a = x;
+            } else {
+                b = x;
+            }
+            v = w;
+            fv = fw;
+            w = x;
+            fw = fx;
+            x = u;
+            fx = fu;
         } else {
-            a = c;
-            c = d;
-            fc = fd;
-            d = a + r * (b - a);
-            fd = g(d);
+            if u < x {
+                a = u;
+            } else {
+                b = u;
+            }
+            if fu <= fw || w == x {
+                v = w;
+                fv = fw;
+                w = u;
+                fw = fu;
+            } else if fu <= fv || v == x || v == w {
+                v = u;
+                fv = fu;
+            }
         }
     }
-    // Also consider the ends: the extremum of a clipped pass can sit on one.
-    let mut best = (0.5 * (a + b), g(0.5 * (a + b)));
-    for t in [a, b] {
-        let v = g(t);
-        if v > best.1 {
-            best = (t, v);
+    let mut best = (x, fx);
+    for t in [lo, hi] {
+        let val = g(t);
+        if val < best.1 {
+            best = (t, val);
         }
     }
     (best.0, sign * best.1)
