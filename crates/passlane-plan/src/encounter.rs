@@ -220,8 +220,10 @@ pub fn encounter_plane(
     };
     let x_hat = cross(&y_hat, &z_hat);
 
-    let c1 = rtn_to_inertial_cov(cov1_rtn_m2, s1).ok_or(EncounterError::NoRtnFrame { object: 1 })?;
-    let c2 = rtn_to_inertial_cov(cov2_rtn_m2, s2).ok_or(EncounterError::NoRtnFrame { object: 2 })?;
+    let c1 =
+        rtn_to_inertial_cov(cov1_rtn_m2, s1).ok_or(EncounterError::NoRtnFrame { object: 1 })?;
+    let c2 =
+        rtn_to_inertial_cov(cov2_rtn_m2, s2).ok_or(EncounterError::NoRtnFrame { object: 2 })?;
     let mut c = [[0.0; 3]; 3];
     for i in 0..3 {
         for j in 0..3 {
@@ -263,7 +265,12 @@ mod tests {
         let Some(m) = rtn_basis(&s) else {
             panic!("frame exists")
         };
-        assert_eq!(m, [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]);
+        let want = [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]];
+        for i in 0..3 {
+            for j in 0..3 {
+                assert!(close(m[i][j], want[i][j], 1e-15), "{m:?}");
+            }
+        }
     }
 
     #[test]
