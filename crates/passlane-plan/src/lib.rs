@@ -1,1 +1,3 @@
 //! Planning: contact windows, close approaches, schedules and exports.
+
+pub mod screen;
