@@ -330,10 +330,8 @@ pub fn screen_with_progress(
             });
         for (oc, o) in cursors.iter_mut().zip(objects.iter()) {
             result.stats.sgp4_samples += oc.samples.len() as u64;
-            if oc.failed && oc.valid < oc.samples.len() {
-                if let Some(e) = oc.error.take() {
-                    result.diagnostics.push(diagnostic(o, &e));
-                }
+            if let Some(e) = oc.error.take() {
+                result.diagnostics.push(diagnostic(o, &e));
             }
         }
         let n_steps = (chunk_end.s_since(chunk_start) / h).ceil() as usize;
@@ -535,6 +533,45 @@ fn sample_step(set: &ElementSet, settings: &ScreeningSettings) -> (f64, f64) {
     // it adds that much again to the position the linear test extrapolates.
     let vel_err = 10.0 * pos_err / step;
     (step, pos_err + vel_err * h / 2.0)
+}
+
+/// How one object is sampled: its SGP4 sample step, s, and the position error
+/// allowance (interpolant position error plus velocity error over half a hash
+/// step), km, that widens the search.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct InterpolationPlan {
+    pub sample_step_s: f64,
+    pub margin_km: f64,
+}
+
+/// The sample step and error allowance the screening uses for `set`.
+pub fn interpolation_plan(set: &ElementSet, settings: &ScreeningSettings) -> InterpolationPlan {
+    let (sample_step_s, margin_km) = sample_step(set, settings);
+    InterpolationPlan {
+        sample_step_s,
+        margin_km,
+    }
+}
+
+/// Cubic Hermite interpolation between two states (position and velocity at
+/// both ends) at time `t`, which should lie between them. The screening uses
+/// this between SGP4 samples; it is public so that its accuracy can be checked.
+pub fn hermite_state(a: &StateTeme, b: &StateTeme, t: UtcTime) -> StateTeme {
+    let step_s = b.time.s_since(a.time);
+    let sa = Sample {
+        pos_km: a.position_km,
+        vel_km_s: a.velocity_km_s,
+    };
+    let sb = Sample {
+        pos_km: b.position_km,
+        vel_km_s: b.velocity_km_s,
+    };
+    let s = hermite(&sa, &sb, step_s, t.s_since(a.time) / step_s);
+    StateTeme {
+        time: t,
+        position_km: s.pos_km,
+        velocity_km_s: s.vel_km_s,
+    }
 }
 
 /// Fleet-vs-catalog: keep catalog objects whose shell overlaps some fleet shell.
