@@ -1,6 +1,7 @@
 //! Close-approach screening checks: against a python-sgp4 brute-force fixture,
 //! against the crate's own brute-force reference, interpolation accuracy, and
 //! properties of the event geometry.
+#![allow(clippy::unwrap_used)]
 
 use passlane_orbit::{ElementSet, Propagator, SourceRef, UtcTime};
 use passlane_plan::screen::{

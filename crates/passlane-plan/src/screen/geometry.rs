@@ -80,7 +80,7 @@ pub(crate) fn refine_tca(
         let da = sub(&gravity(&s2.position_km), &gravity(&s1.position_km));
         let f = dot(&dr, &dv);
         let fp = dot(&dv, &dv) + dot(&dr, &da);
-        if !(fp > 0.0) {
+        if fp.is_nan() || fp <= 0.0 {
             // Concave here: a distance maximum, or a pair at rest relative to each other.
             return Ok(None);
         }

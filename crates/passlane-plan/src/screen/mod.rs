@@ -289,9 +289,9 @@ pub fn screen_with_progress(
     let settings = request.settings;
     let span_s = request.end.s_since(request.start);
     if !settings.volume.is_valid()
-        || !(settings.hash_step_s > 0.0)
-        || !(span_s > 0.0)
-        || !(settings.interpolation_tolerance_km > 0.0)
+        || !positive(settings.hash_step_s)
+        || !positive(span_s)
+        || !positive(settings.interpolation_tolerance_km)
     {
         return result;
     }
@@ -394,6 +394,11 @@ pub fn screen_with_progress(
     sort_and_dedup(&mut events);
     result.events = events;
     result
+}
+
+/// True for a positive number (false for NaN).
+pub(crate) fn positive(x: f64) -> bool {
+    x > 0.0
 }
 
 /// Sorts by TCA and drops the same minimum found twice (two neighbouring steps

@@ -12,7 +12,7 @@ use passlane_orbit::{PropagationError, UtcTime};
 
 use super::geometry::{build_event, refine_tca};
 use super::{
-    CloseApproach, MAX_ACCELERATION_KM_S2, ScreeningRequest, ScreeningResult, diagnostic,
+    CloseApproach, MAX_ACCELERATION_KM_S2, ScreeningRequest, ScreeningResult, diagnostic, positive,
     prepare_objects, sort_and_dedup,
 };
 
@@ -27,7 +27,7 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
         ..Default::default()
     };
     let span_s = request.end.s_since(request.start);
-    if !(step_s > 0.0) || !(span_s > 0.0) || !request.settings.volume.is_valid() {
+    if !positive(step_s) || !positive(span_s) || !request.settings.volume.is_valid() {
         return result;
     }
     let objects = prepare_objects(request, &mut result.diagnostics);
