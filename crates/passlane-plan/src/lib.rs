@@ -14,6 +14,7 @@ pub mod station;
 pub mod cdm;
 pub mod encounter;
 pub mod pc;
+pub mod screen;
 
 pub use passes::{Pass, PassOptions, PassReport, Progress, Silent, find_passes, pointing_table};
 pub use scenario::Scenario;
