@@ -106,3 +106,8 @@ pub fn write_oem(
     }
     Ok(())
 }
+
+/// A spacecraft name for a file name (ASCII letters, digits, dashes).
+pub fn slug_name(name: &str) -> String {
+    super::slug(name)
+}
