@@ -18,13 +18,22 @@ pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO]
 
 /// Writes a file through the crash-safe writer, naming it in the error.
 fn write_file(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<()> {
-    passlane_files::write_atomic_with(path, fill).with_context(|| format!("cannot write {}", path.display()))
+    passlane_files::write_atomic_with(path, fill)
+        .with_context(|| format!("cannot write {}", path.display()))
 }
 
 pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(
         argv,
-        &["scenario", "elements", "start", "end", "out", "format", "pointing-step-s"],
+        &[
+            "scenario",
+            "elements",
+            "start",
+            "end",
+            "out",
+            "format",
+            "pointing-step-s",
+        ],
         &["lenient"],
     )?;
     if args.value("scenario").is_none() {
@@ -51,14 +60,29 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     for f in &report.failures {
         eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
     }
-    let plan = plan_scenario(scenario, &inputs.sets, &report.passes, start, end, &eop, &Silent)
-        .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
+    let plan = plan_scenario(
+        scenario,
+        &inputs.sets,
+        &report.passes,
+        start,
+        end,
+        &eop,
+        &Silent,
+    )
+    .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
     for w in &plan.warnings {
         eprintln!("warning: {w}");
     }
     let created = UtcTime::from_chrono(chrono::Utc::now());
     let written = match args.value("out") {
-        Some(dir) => Some(write_outputs(Path::new(dir), &plan, &inputs.sets, scenario, created, pointing_step_s)?),
+        Some(dir) => Some(write_outputs(
+            Path::new(dir),
+            &plan,
+            &inputs.sets,
+            scenario,
+            created,
+            pointing_step_s,
+        )?),
         None => None,
     };
     match format {
@@ -88,11 +112,18 @@ fn write_outputs(
     let mut files = 0;
     write_file(&dir.join("plan.csv"), |w| export::write_plan_csv(w, plan))?;
     write_file(&dir.join("plan.json"), |w| export::write_plan_json(w, plan))?;
-    let name = if scenario.name.is_empty() { "Passlane plan" } else { scenario.name.as_str() };
-    write_file(&dir.join("plan.ics"), |w| export::write_icalendar(w, plan, created, name))?;
+    let name = if scenario.name.is_empty() {
+        "Passlane plan"
+    } else {
+        scenario.name.as_str()
+    };
+    write_file(&dir.join("plan.ics"), |w| {
+        export::write_icalendar(w, plan, created, name)
+    })?;
     files += 3;
     let pointing_dir = dir.join("pointing");
-    std::fs::create_dir_all(&pointing_dir).with_context(|| format!("cannot create {}", pointing_dir.display()))?;
+    std::fs::create_dir_all(&pointing_dir)
+        .with_context(|| format!("cannot create {}", pointing_dir.display()))?;
     for c in &plan.contacts {
         let (Some(set), Some(station)) = (
             sets.iter().find(|s| s.catalog_number == c.catalog_number),
@@ -100,10 +131,20 @@ fn write_outputs(
         ) else {
             continue;
         };
-        let rows = match pointing_table_between(set, station, c.aos, c.los, pointing_step_s, &scenario.earth_orientation) {
+        let rows = match pointing_table_between(
+            set,
+            station,
+            c.aos,
+            c.los,
+            pointing_step_s,
+            &scenario.earth_orientation,
+        ) {
             Ok(r) => r,
             Err(e) => {
-                eprintln!("warning: no pointing table for {} at {}: {e}", c.spacecraft, c.aos);
+                eprintln!(
+                    "warning: no pointing table for {} at {}: {e}",
+                    c.spacecraft, c.aos
+                );
                 continue;
             }
         };
@@ -113,8 +154,13 @@ fn write_outputs(
         files += 1;
     }
     let oem_dir = dir.join("oem");
-    std::fs::create_dir_all(&oem_dir).with_context(|| format!("cannot create {}", oem_dir.display()))?;
-    let originator = if scenario.operator.is_empty() { "PASSLANE" } else { scenario.operator.as_str() };
+    std::fs::create_dir_all(&oem_dir)
+        .with_context(|| format!("cannot create {}", oem_dir.display()))?;
+    let originator = if scenario.operator.is_empty() {
+        "PASSLANE"
+    } else {
+        scenario.operator.as_str()
+    };
     for d in &plan.demand {
         let Some(set) = sets.iter().find(|s| s.catalog_number == d.catalog_number) else {
             continue;
@@ -126,8 +172,14 @@ fn write_outputs(
                 continue;
             }
         };
-        let file = oem_dir.join(format!("{}_{}.oem", set.catalog_number, export::oem::slug_name(&set.name)));
-        write_file(&file, |w| export::write_oem(w, set, &states, created, originator))?;
+        let file = oem_dir.join(format!(
+            "{}_{}.oem",
+            set.catalog_number,
+            export::oem::slug_name(&set.name)
+        ));
+        write_file(&file, |w| {
+            export::write_oem(w, set, &states, created, originator)
+        })?;
         files += 1;
     }
     Ok(Written {
@@ -157,12 +209,16 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
         out,
         "Demand met: {} of the priority-weighted demand (no plan can exceed {} on these windows).\n",
         pct(plan.demand_met_fraction()),
-        pct(if plan.max_score > 0.0 { plan.upper_bound / plan.max_score } else { 1.0 })
+        pct(if plan.max_score > 0.0 {
+            plan.upper_bound / plan.max_score
+        } else {
+            1.0
+        })
     )?;
     writeln!(
         out,
-        "{:<16} {:>6} {:>4} {:>9} {:>12} {:>5}  {}",
-        "spacecraft", "cat", "prio", "contacts", "volume MB", "met", "short days"
+        "{:<16} {:>6} {:>4} {:>9} {:>12} {:>5}  short days",
+        "spacecraft", "cat", "prio", "contacts", "volume MB", "met"
     )?;
     for d in &plan.demand {
         let contacts = match d.contacts_wanted {
@@ -173,7 +229,11 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
             Some(w) => format!("{:.0}/{:.0}", d.volume_mb, w),
             None => format!("{:.0}", d.volume_mb),
         };
-        let short: Vec<String> = d.unmet_days.iter().map(|u| u.day_start.to_iso_s()[5..10].to_string()).collect();
+        let short: Vec<String> = d
+            .unmet_days
+            .iter()
+            .map(|u| u.day_start.to_iso_s()[5..10].to_string())
+            .collect();
         writeln!(
             out,
             "{} {:>6} {:>4} {:>9} {:>12} {:>5}  {}",
@@ -183,7 +243,11 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
             contacts,
             volume,
             pct(d.met_fraction),
-            if short.is_empty() { "-".to_string() } else { short.join(" ") }
+            if short.is_empty() {
+                "-".to_string()
+            } else {
+                short.join(" ")
+            }
         )?;
     }
     writeln!(out, "\nConflicts resolved: {}", plan.conflicts.len())?;
@@ -192,7 +256,11 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
         writeln!(out, "  {}", c.describe())?;
     }
     if plan.conflicts.len() > SHOWN {
-        writeln!(out, "  ... and {} more (all in plan.json)", plan.conflicts.len() - SHOWN)?;
+        writeln!(
+            out,
+            "  ... and {} more (all in plan.json)",
+            plan.conflicts.len() - SHOWN
+        )?;
     }
     match written {
         Some(w) => writeln!(
@@ -201,7 +269,10 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
             w.files,
             w.dir.display()
         )?,
-        None => writeln!(out, "\nNo files written (give --out DIR for the plan, calendar, pointing and OEM files).")?,
+        None => writeln!(
+            out,
+            "\nNo files written (give --out DIR for the plan, calendar, pointing and OEM files)."
+        )?,
     }
     Ok(())
 }

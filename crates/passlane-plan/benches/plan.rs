@@ -9,6 +9,8 @@
 //!
 //! Run: `cargo bench -p passlane-plan --bench plan`.
 
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+
 use std::path::PathBuf;
 use std::time::Instant;
 
@@ -29,17 +31,31 @@ fn main() {
     // Eight invented stations; the first four have two antennas (12 in all),
     // the second of which only works above 15°.
     let sites = [
-        (78.2, 15.4), (64.8, -147.7), (51.5, -1.3), (-52.9, -70.8),
-        (35.4, 139.4), (1.35, 103.8), (-25.9, 27.7), (19.0, -155.6),
+        (78.2, 15.4),
+        (64.8, -147.7),
+        (51.5, -1.3),
+        (-52.9, -70.8),
+        (35.4, 139.4),
+        (1.35, 103.8),
+        (-25.9, 27.7),
+        (19.0, -155.6),
     ];
     let mut scenario = Scenario::default();
     for (i, (lat, lon)) in sites.iter().enumerate() {
         let mut s = Station::new(&format!("Site {i}"), *lat, *lon, 100.0);
         s.min_elevation_deg = 5.0;
         s.downlink_rate_bps = Some(if i % 2 == 0 { 2e6 } else { 5e5 });
-        s.antennas.push(Antenna { name: "A".into(), turnaround_s: 120.0, min_elevation_deg: None });
+        s.antennas.push(Antenna {
+            name: "A".into(),
+            turnaround_s: 120.0,
+            min_elevation_deg: None,
+        });
         if i < 4 {
-            s.antennas.push(Antenna { name: "B".into(), turnaround_s: 60.0, min_elevation_deg: Some(15.0) });
+            s.antennas.push(Antenna {
+                name: "B".into(),
+                turnaround_s: 60.0,
+                min_elevation_deg: Some(15.0),
+            });
         }
         scenario.stations.push(s);
     }
@@ -56,12 +72,24 @@ fn main() {
     }
 
     let t0 = Instant::now();
-    let passes = find_passes(&sets, &scenario.stations, &PassOptions::new(start, end), &Silent).passes;
+    let passes = find_passes(
+        &sets,
+        &scenario.stations,
+        &PassOptions::new(start, end),
+        &Silent,
+    )
+    .passes;
     let t_passes = t0.elapsed().as_secs_f64();
 
     let t1 = Instant::now();
     let network = Network::from_scenario(&scenario, &sets).expect("network");
-    let cands = build_candidates(&network, &passes, &sets, &scenario.stations, &scenario.earth_orientation);
+    let cands = build_candidates(
+        &network,
+        &passes,
+        &sets,
+        &scenario.stations,
+        &scenario.earth_orientation,
+    );
     let t_cands = t1.elapsed().as_secs_f64();
     let n_cands = cands.candidates.len();
 
@@ -70,11 +98,30 @@ fn main() {
     let plan = solve(&problem, &Silent).expect("plan");
     let t_solve = t2.elapsed().as_secs_f64();
 
-    println!("network plan: 50 spacecraft x 8 stations (12 antennas) x 7 days, {} thread(s)", rayon::current_num_threads());
-    println!("  pass search          {:>8.3} s  ({} passes)", t_passes, passes.len());
-    println!("  candidates           {:>8.3} s  ({} kept, {} too short or too low)", t_cands, n_cands, cands.dropped);
-    println!("  solve ({:?})    {:>8.3} s  ({} contacts, {} conflicts reported)", plan.method, t_solve, plan.contacts.len(), plan.conflicts.len());
-    println!("  after the windows    {:>8.3} s  (candidates + solve; target < 1 s)", t_cands + t_solve);
+    println!(
+        "network plan: 50 spacecraft x 8 stations (12 antennas) x 7 days, {} thread(s)",
+        rayon::current_num_threads()
+    );
+    println!(
+        "  pass search          {:>8.3} s  ({} passes)",
+        t_passes,
+        passes.len()
+    );
+    println!(
+        "  candidates           {:>8.3} s  ({} kept, {} too short or too low)",
+        t_cands, n_cands, cands.dropped
+    );
+    println!(
+        "  solve ({:?})    {:>8.3} s  ({} contacts, {} conflicts reported)",
+        plan.method,
+        t_solve,
+        plan.contacts.len(),
+        plan.conflicts.len()
+    );
+    println!(
+        "  after the windows    {:>8.3} s  (candidates + solve; target < 1 s)",
+        t_cands + t_solve
+    );
     println!(
         "  score {:.2} of {:.2} possible; relaxed bound {:.2}: plan at {:.1}% of the bound, {:.1}% of all demand",
         plan.score,

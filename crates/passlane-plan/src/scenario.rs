@@ -297,13 +297,10 @@ impl Scenario {
                 let Some(station) = self.stations.iter().find(|s| s.name == r.station) else {
                     return Err((field("station"), format!("{:?} is not one of the scenario's stations", r.station)));
                 };
-                if let Some(a) = &r.antenna {
-                    if !station.antennas.iter().any(|x| &x.name == a) {
-                        return Err((
-                            field("antenna"),
-                            format!("{a:?} is not an antenna of station {:?}", station.name),
-                        ));
-                    }
+                if let Some(a) = &r.antenna
+                    && !station.antennas.iter().any(|x| &x.name == a)
+                {
+                    return Err((field("antenna"), format!("{a:?} is not an antenna of station {:?}", station.name)));
                 }
                 if !(r.tolerance_s.is_finite() && r.tolerance_s >= 0.0) {
                     return Err((field("tolerance_s"), format!("{} must not be negative", r.tolerance_s)));

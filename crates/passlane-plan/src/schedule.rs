@@ -138,7 +138,10 @@ impl Network {
     pub fn from_scenario(scenario: &Scenario, sets: &[ElementSet]) -> Result<Network, PlanError> {
         let mut antennas = Vec::new();
         if scenario.stations.is_empty() {
-            return Err(plan_err("stations", "the scenario has no stations to plan on"));
+            return Err(plan_err(
+                "stations",
+                "the scenario has no stations to plan on",
+            ));
         }
         for (i, st) in scenario.stations.iter().enumerate() {
             st.validate()
@@ -199,7 +202,10 @@ impl Network {
                 allow_simultaneous: n.allow_simultaneous,
             });
         }
-        Ok(Network { antennas, satellites })
+        Ok(Network {
+            antennas,
+            satellites,
+        })
     }
 }
 
@@ -254,19 +260,27 @@ pub fn build_candidates(
     let mut props: HashMap<u32, Result<Propagator, String>> = HashMap::new();
     for set in sets {
         if sat_index.contains_key(&set.catalog_number) {
-            props.insert(set.catalog_number, Propagator::new(set).map_err(|e| e.to_string()));
+            props.insert(
+                set.catalog_number,
+                Propagator::new(set).map_err(|e| e.to_string()),
+            );
         }
     }
     let sites: Vec<_> = stations.iter().map(|s| s.site()).collect();
-    let station_index: HashMap<&str, usize> =
-        stations.iter().enumerate().map(|(i, s)| (s.name.as_str(), i)).collect();
+    let station_index: HashMap<&str, usize> = stations
+        .iter()
+        .enumerate()
+        .map(|(i, s)| (s.name.as_str(), i))
+        .collect();
     let per_pass: Vec<(Vec<Candidate>, usize, Option<String>)> = passes
         .par_iter()
         .map(|pass| {
             let mut out = Vec::new();
             let mut dropped = 0;
-            let (Some(&si), Some(&st)) = (sat_index.get(&pass.catalog_number), station_index.get(pass.station.as_str()))
-            else {
+            let (Some(&si), Some(&st)) = (
+                sat_index.get(&pass.catalog_number),
+                station_index.get(pass.station.as_str()),
+            ) else {
                 return (out, 0, None);
             };
             let Some(prop) = props.get(&pass.catalog_number) else {
@@ -287,7 +301,9 @@ pub fn build_candidates(
                     // The pass is above the station's horizon, which is never
                     // below its minimum elevation: nothing to clip.
                     Some((pass.aos, pass.los))
-                } else if let Some((_, iv)) = cache.iter().find(|(m, _)| *m == ant.min_elevation_deg) {
+                } else if let Some((_, iv)) =
+                    cache.iter().find(|(m, _)| *m == ant.min_elevation_deg)
+                {
                     *iv
                 } else {
                     match interval_above(prop, &sites[st], pass, ant.min_elevation_deg, eop) {
@@ -324,10 +340,10 @@ pub fn build_candidates(
     for (c, d, f) in per_pass {
         set.candidates.extend(c);
         set.dropped += d;
-        if let Some(f) = f {
-            if !set.failures.contains(&f) {
-                set.failures.push(f);
-            }
+        if let Some(f) = f
+            && !set.failures.contains(&f)
+        {
+            set.failures.push(f);
         }
     }
     sort_candidates(&mut set.candidates);
@@ -358,7 +374,12 @@ pub struct Problem {
 }
 
 impl Problem {
-    pub fn new(network: Network, candidates: Vec<Candidate>, start: UtcTime, end: UtcTime) -> Problem {
+    pub fn new(
+        network: Network,
+        candidates: Vec<Candidate>,
+        start: UtcTime,
+        end: UtcTime,
+    ) -> Problem {
         Problem {
             start,
             end,
@@ -373,7 +394,11 @@ impl Problem {
     /// [`ContactRef`] for the matching rule). A pin that matches nothing is an
     /// error; an exclusion that matches nothing is returned as a warning (the
     /// contact may simply lie outside this window).
-    pub fn apply_refs(&mut self, pins: &[ContactRef], exclusions: &[ContactRef]) -> Result<Vec<String>, PlanError> {
+    pub fn apply_refs(
+        &mut self,
+        pins: &[ContactRef],
+        exclusions: &[ContactRef],
+    ) -> Result<Vec<String>, PlanError> {
         let mut warnings = Vec::new();
         for (i, r) in exclusions.iter().enumerate() {
             let hits = self.matches(r);
@@ -409,14 +434,20 @@ impl Problem {
                          minimum elevation, or shorter than the spacecraft's min_contact_s?)",
                         r.catalog_number,
                         r.station,
-                        r.antenna.as_deref().map(|a| format!("/{a}")).unwrap_or_default(),
+                        r.antenna
+                            .as_deref()
+                            .map(|a| format!("/{a}"))
+                            .unwrap_or_default(),
                         r.tolerance_s,
                         r.aos.to_iso_ms()
                     ),
                 ));
             };
             if self.excluded.contains(&best) {
-                return Err(plan_err(format!("pins[{i}]"), "this contact is also excluded (see exclusions)"));
+                return Err(plan_err(
+                    format!("pins[{i}]"),
+                    "this contact is also excluded (see exclusions)",
+                ));
             }
             if !self.pinned.contains(&best) {
                 self.pinned.push(best);
@@ -478,7 +509,10 @@ impl Problem {
             }
             return None;
         }
-        if ca.satellite == cb.satellite && overlap && !self.network.satellites[ca.satellite].allow_simultaneous {
+        if ca.satellite == cb.satellite
+            && overlap
+            && !self.network.satellites[ca.satellite].allow_simultaneous
+        {
             return Some(ConflictKind::SameSpacecraft);
         }
         None
@@ -494,7 +528,9 @@ impl Problem {
             k[g] += 1;
             v[g] += self.candidates[c].volume_mb;
         }
-        (0..groups.info.len()).map(|g| groups.value(g, k[g], v[g])).sum()
+        (0..groups.info.len())
+            .map(|g| groups.value(g, k[g], v[g]))
+            .sum()
     }
 
     /// Σ priority over spacecraft and days, scaled for a partial last day: the
@@ -503,12 +539,20 @@ impl Problem {
         // A partial last day has its demand scaled down, so it too is worth
         // its full priority when met.
         let n = self.day_count();
-        self.network.satellites.iter().map(|s| s.priority).sum::<f64>() * n as f64
+        self.network
+            .satellites
+            .iter()
+            .map(|s| s.priority)
+            .sum::<f64>()
+            * n as f64
     }
 }
 
 fn ref_distance_s(r: &ContactRef, c: &Candidate) -> f64 {
-    r.aos.s_since(c.pass_aos).abs().min(r.aos.s_since(c.aos).abs())
+    r.aos
+        .s_since(c.pass_aos)
+        .abs()
+        .min(r.aos.s_since(c.aos).abs())
 }
 
 /// Why two candidates cannot both be kept.
@@ -564,7 +608,13 @@ impl Groups {
 
     fn value(&self, g: usize, k: u32, volume_mb: f64) -> f64 {
         let i = &self.info[g];
-        let frac = |have: f64, need: f64| if need > 0.0 { (have / need).min(1.0) } else { 1.0 };
+        let frac = |have: f64, need: f64| {
+            if need > 0.0 {
+                (have / need).min(1.0)
+            } else {
+                1.0
+            }
+        };
         let c = i.contacts_needed.map(|n| frac(f64::from(k), n));
         let v = i.volume_needed_mb.map(|n| frac(volume_mb, n));
         let f = match (c, v) {
@@ -609,14 +659,21 @@ impl<'a> State<'a> {
 
     fn gain(&self, c: usize) -> f64 {
         let g = self.groups.of[c];
-        self.groups.value(g, self.k[g] + 1, self.vol[g] + self.p.candidates[c].volume_mb)
-            - self.groups.value(g, self.k[g], self.vol[g])
+        self.groups.value(
+            g,
+            self.k[g] + 1,
+            self.vol[g] + self.p.candidates[c].volume_mb,
+        ) - self.groups.value(g, self.k[g], self.vol[g])
     }
 
     fn loss(&self, c: usize) -> f64 {
         let g = self.groups.of[c];
         self.groups.value(g, self.k[g], self.vol[g])
-            - self.groups.value(g, self.k[g].saturating_sub(1), (self.vol[g] - self.p.candidates[c].volume_mb).max(0.0))
+            - self.groups.value(
+                g,
+                self.k[g].saturating_sub(1),
+                (self.vol[g] - self.p.candidates[c].volume_mb).max(0.0),
+            )
     }
 
     fn add(&mut self, c: usize) {
@@ -658,7 +715,12 @@ fn adjacency(p: &Problem) -> Vec<Vec<usize>> {
         }
     };
     let by_start = |mut v: Vec<usize>| {
-        v.sort_by(|&a, &b| p.candidates[a].aos.s_since_j2000().total_cmp(&p.candidates[b].aos.s_since_j2000()));
+        v.sort_by(|&a, &b| {
+            p.candidates[a]
+                .aos
+                .s_since_j2000()
+                .total_cmp(&p.candidates[b].aos.s_since_j2000())
+        });
         v
     };
     let mut per_antenna: HashMap<usize, Vec<usize>> = HashMap::new();
@@ -826,7 +888,11 @@ pub struct Plan {
 impl Plan {
     /// Score over the best possible score, 0–1.
     pub fn demand_met_fraction(&self) -> f64 {
-        if self.max_score > 0.0 { self.score / self.max_score } else { 1.0 }
+        if self.max_score > 0.0 {
+            self.score / self.max_score
+        } else {
+            1.0
+        }
     }
 }
 
@@ -850,7 +916,11 @@ pub fn solve(p: &Problem, progress: &dyn Progress) -> Result<Plan, PlanError> {
             return Err(plan_err(format!("pins[{i}]"), "refers to no candidate"));
         }
         if state.blocked[c] > 0 {
-            let other = p.pinned[..i].iter().copied().find(|&o| adj[c].contains(&o)).unwrap_or(c);
+            let other = p.pinned[..i]
+                .iter()
+                .copied()
+                .find(|&o| adj[c].contains(&o))
+                .unwrap_or(c);
             return Err(plan_err(
                 format!("pins[{i}]"),
                 format!(
@@ -881,7 +951,16 @@ pub fn solve(p: &Problem, progress: &dyn Progress) -> Result<Plan, PlanError> {
         all.extend((0..n).filter(|&c| pinned[c]));
         p.score(&all)
     };
-    Ok(describe(p, &groups, &adj, &state, &pinned, &excluded, method, upper_bound))
+    Ok(describe(
+        p,
+        &groups,
+        &adj,
+        &state,
+        &pinned,
+        &excluded,
+        method,
+        upper_bound,
+    ))
 }
 
 fn label(p: &Problem, c: usize) -> String {
@@ -1027,7 +1106,11 @@ fn local_search(state: &mut State, free: &[usize], pinned: &[bool], progress: &d
             if state.gain(c) <= SCORE_EPS {
                 continue;
             }
-            let blockers: Vec<usize> = state.adj[c].iter().copied().filter(|&b| state.chosen[b]).collect();
+            let blockers: Vec<usize> = state.adj[c]
+                .iter()
+                .copied()
+                .filter(|&b| state.chosen[b])
+                .collect();
             if blockers.iter().any(|&b| pinned[b]) {
                 continue;
             }
@@ -1154,7 +1237,9 @@ fn describe(
                     unmet_days.push(DayShortfall {
                         day_start: p.start.add_s(d as f64 * SECONDS_PER_DAY),
                         contacts: state.k[g] as usize,
-                        contacts_wanted: s.contacts_per_day.map(|_| info.contacts_needed.unwrap_or(0.0)),
+                        contacts_wanted: s
+                            .contacts_per_day
+                            .map(|_| info.contacts_needed.unwrap_or(0.0)),
                         volume_mb: state.vol[g],
                         volume_wanted_mb: info.volume_needed_mb,
                         met_fraction: met,
@@ -1186,10 +1271,18 @@ fn describe(
             if !state.chosen[w] {
                 continue;
             }
-            let Some(kind) = p.conflict(c, w) else { continue };
+            let Some(kind) = p.conflict(c, w) else {
+                continue;
+            };
             let (lc, wc) = (&p.candidates[c], &p.candidates[w]);
-            let (ls, ws) = (&p.network.satellites[lc.satellite], &p.network.satellites[wc.satellite]);
-            let (la, wa) = (&p.network.antennas[lc.antenna], &p.network.antennas[wc.antenna]);
+            let (ls, ws) = (
+                &p.network.satellites[lc.satellite],
+                &p.network.satellites[wc.satellite],
+            );
+            let (la, wa) = (
+                &p.network.antennas[lc.antenna],
+                &p.network.antennas[wc.antenna],
+            );
             let priority = if ws.priority > ls.priority {
                 format!("priority {} > {}", ws.priority, ls.priority)
             } else {
@@ -1204,8 +1297,12 @@ fn describe(
             } else {
                 match kind {
                     ConflictKind::Overlap => priority,
-                    ConflictKind::Turnaround => format!("turnaround {} s; {priority}", la.turnaround_s),
-                    ConflictKind::SameSpacecraft => format!("already in contact via {}/{}", wa.station, wa.antenna),
+                    ConflictKind::Turnaround => {
+                        format!("turnaround {} s; {priority}", la.turnaround_s)
+                    }
+                    ConflictKind::SameSpacecraft => {
+                        format!("already in contact via {}/{}", wa.station, wa.antenna)
+                    }
                 }
             };
             conflicts.push(ResolvedConflict {

@@ -3,17 +3,19 @@
 //! iCalendar fixture read back by an independent parser, OEM content, and
 //! errors for bad networks.
 
+#![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
+
 use std::path::PathBuf;
 
 use passlane_orbit::{EarthOrientation, ElementSet, LoadOptions, Propagator, UtcTime, elements};
+use passlane_plan::Scenario;
 use passlane_plan::export;
 use passlane_plan::passes::{PassOptions, Silent, find_passes};
 use passlane_plan::scenario::ContactRef;
 use passlane_plan::schedule::{
-    Candidate, ConflictKind, Demand, Method, Network, NetworkAntenna, Plan, Problem, build_candidates,
-    plan_scenario, solve,
+    Candidate, ConflictKind, Demand, Method, Network, NetworkAntenna, Plan, Problem,
+    build_candidates, plan_scenario, solve,
 };
-use passlane_plan::Scenario;
 use proptest::prelude::*;
 use proptest::strategy::ValueTree;
 
@@ -42,9 +44,9 @@ const T0_S: f64 = 850_000_000.0;
 
 #[derive(Debug, Clone)]
 struct Spec {
-    antennas: Vec<(u8, f64)>, // (station, turnaround_s)
+    antennas: Vec<(u8, f64)>,                         // (station, turnaround_s)
     sats: Vec<(f64, Option<f64>, Option<f64>, bool)>, // priority, contacts/day, MB/day, simultaneous
-    cands: Vec<(usize, usize, f64, f64)>, // sat, antenna, start offset s, duration s
+    cands: Vec<(usize, usize, f64, f64)>,             // sat, antenna, start offset s, duration s
     pins: Vec<usize>,
     excl: Vec<usize>,
     span_days: f64,
@@ -62,7 +64,10 @@ fn spec_strategy(max_cands: usize) -> impl Strategy<Value = Spec> {
             ),
             1..4,
         ),
-        prop::collection::vec((0usize..8, 0usize..8, 0.0..150_000.0f64, 30.0..900.0f64), 1..=max_cands),
+        prop::collection::vec(
+            (0usize..8, 0usize..8, 0.0..150_000.0f64, 30.0..900.0f64),
+            1..=max_cands,
+        ),
         prop::collection::vec(0usize..64, 0..3),
         prop::collection::vec(0usize..64, 0..3),
         prop_oneof![Just(1.0), Just(2.0), 0.3..2.0f64],
@@ -70,9 +75,18 @@ fn spec_strategy(max_cands: usize) -> impl Strategy<Value = Spec> {
         .prop_map(|(antennas, sats, cands, pins, excl, span_days)| {
             let cands = cands
                 .into_iter()
-                .map(|(s, a, off, d)| (s % sats.len(), a % antennas.len(), off * span_days / 2.0, d))
+                .map(|(s, a, off, d)| {
+                    (s % sats.len(), a % antennas.len(), off * span_days / 2.0, d)
+                })
                 .collect();
-            Spec { antennas, sats, cands, pins, excl, span_days }
+            Spec {
+                antennas,
+                sats,
+                cands,
+                pins,
+                excl,
+                span_days,
+            }
         })
 }
 
@@ -120,11 +134,23 @@ fn build(spec: &Spec) -> Problem {
         })
         .collect();
     let n = candidates.len();
-    let mut p = Problem::new(Network { antennas, satellites }, candidates, start, start.add_s(spec.span_days * 86_400.0));
+    let mut p = Problem::new(
+        Network {
+            antennas,
+            satellites,
+        },
+        candidates,
+        start,
+        start.add_s(spec.span_days * 86_400.0),
+    );
     // Pins: keep only those compatible with earlier pins (an incompatible pair is an error, tested apart).
     for &i in &spec.pins {
         let c = i % n;
-        if !p.pinned.contains(&c) && p.pinned.iter().all(|&q| independent_conflict(&p, c, q).is_none()) {
+        if !p.pinned.contains(&c)
+            && p.pinned
+                .iter()
+                .all(|&q| independent_conflict(&p, c, q).is_none())
+        {
             p.pinned.push(c);
         }
     }
@@ -142,7 +168,8 @@ fn independent_conflict(p: &Problem, a: usize, b: usize) -> Option<&'static str>
     let (x, y) = (&p.candidates[a], &p.candidates[b]);
     if x.antenna == y.antenna {
         let turn = p.network.antennas[x.antenna].turnaround_s;
-        let apart = x.los.s_since_j2000() + turn <= y.aos.s_since_j2000() || y.los.s_since_j2000() + turn <= x.aos.s_since_j2000();
+        let apart = x.los.s_since_j2000() + turn <= y.aos.s_since_j2000()
+            || y.los.s_since_j2000() + turn <= x.aos.s_since_j2000();
         if !apart {
             return Some("antenna");
         }
@@ -189,12 +216,19 @@ fn independent_score(p: &Problem, chosen: &[usize]) -> f64 {
                 .map(|&c| &p.candidates[c])
                 .filter(|c| {
                     let mid = 0.5 * (c.aos.s_since(p.start) + c.los.s_since(p.start));
-                    c.satellite == si && ((mid / 86_400.0).floor().max(0.0) as usize).min(days - 1) == d
+                    c.satellite == si
+                        && ((mid / 86_400.0).floor().max(0.0) as usize).min(days - 1) == d
                 })
                 .collect();
             let k = mine.len() as f64;
             let v: f64 = mine.iter().map(|c| c.volume_mb).sum();
-            let frac = |have: f64, need: f64| if need > 0.0 { (have / need).min(1.0) } else { 1.0 };
+            let frac = |have: f64, need: f64| {
+                if need > 0.0 {
+                    (have / need).min(1.0)
+                } else {
+                    1.0
+                }
+            };
             let val = match (s.contacts_per_day, s.downlink_mb_per_day) {
                 (Some(c), Some(m)) => 0.5 * (frac(k, c * f) + frac(v, m * f)),
                 (Some(c), None) => frac(k, c * f),
@@ -219,7 +253,10 @@ fn brute_force(p: &Problem) -> f64 {
             }
             return;
         }
-        let fits = !p.excluded.contains(&i) && chosen.iter().all(|&c| independent_conflict(p, c, i).is_none());
+        let fits = !p.excluded.contains(&i)
+            && chosen
+                .iter()
+                .all(|&c| independent_conflict(p, c, i).is_none());
         if fits {
             chosen.push(i);
             go(p, i + 1, chosen, best);
@@ -285,7 +322,11 @@ fn twenty_candidates_are_solved_exactly() {
         let plan = solve(&p, &Silent).unwrap();
         assert_eq!(plan.method, Method::Exact);
         let best = brute_force(&p);
-        assert!((plan.score - best).abs() < 1e-9, "plan {} vs exhaustive {best}", plan.score);
+        assert!(
+            (plan.score - best).abs() < 1e-9,
+            "plan {} vs exhaustive {best}",
+            plan.score
+        );
     }
 }
 
@@ -312,7 +353,10 @@ fn heuristic_is_close_to_exhaustive_on_medium_cases() {
             worst = worst.min(plan.score / best);
         }
     }
-    assert!(worst > 0.8, "heuristic reached only {worst:.3} of the optimum");
+    assert!(
+        worst > 0.8,
+        "heuristic reached only {worst:.3} of the optimum"
+    );
 }
 
 #[test]
@@ -337,8 +381,16 @@ fn conflicts_are_reported_with_priority_and_turnaround() {
     // overlap; C (priority 1) starts 60 s after B ends: turnaround.
     let spec = Spec {
         antennas: vec![(0, 120.0)],
-        sats: vec![(1.0, Some(1.0), None, false), (5.0, Some(1.0), None, false), (1.0, Some(1.0), None, false)],
-        cands: vec![(0, 0, 0.0, 400.0), (1, 0, 200.0, 400.0), (2, 0, 660.0, 300.0)],
+        sats: vec![
+            (1.0, Some(1.0), None, false),
+            (5.0, Some(1.0), None, false),
+            (1.0, Some(1.0), None, false),
+        ],
+        cands: vec![
+            (0, 0, 0.0, 400.0),
+            (1, 0, 200.0, 400.0),
+            (2, 0, 660.0, 300.0),
+        ],
         pins: vec![],
         excl: vec![],
         span_days: 1.0,
@@ -346,17 +398,42 @@ fn conflicts_are_reported_with_priority_and_turnaround() {
     let p = build(&spec);
     let plan = solve(&p, &Silent).unwrap();
     assert_eq!(chosen(&plan), vec![1]);
-    let kinds: Vec<(String, ConflictKind)> =
-        plan.conflicts.iter().map(|c| (c.loser_spacecraft.clone(), c.kind)).collect();
+    let kinds: Vec<(String, ConflictKind)> = plan
+        .conflicts
+        .iter()
+        .map(|c| (c.loser_spacecraft.clone(), c.kind))
+        .collect();
     assert_eq!(
         kinds,
-        vec![("SAT-0".to_string(), ConflictKind::Overlap), ("SAT-2".to_string(), ConflictKind::Turnaround)]
+        vec![
+            ("SAT-0".to_string(), ConflictKind::Overlap),
+            ("SAT-2".to_string(), ConflictKind::Turnaround)
+        ]
     );
-    assert!(plan.conflicts[0].reason.contains("priority 5 > 1"), "{}", plan.conflicts[0].reason);
-    assert!(plan.conflicts[1].describe().starts_with("SAT-2 lost S0/A0 "), "{}", plan.conflicts[1].describe());
-    assert!(plan.conflicts[1].reason.starts_with("turnaround 120 s"), "{}", plan.conflicts[1].reason);
+    assert!(
+        plan.conflicts[0].reason.contains("priority 5 > 1"),
+        "{}",
+        plan.conflicts[0].reason
+    );
+    assert!(
+        plan.conflicts[1]
+            .describe()
+            .starts_with("SAT-2 lost S0/A0 "),
+        "{}",
+        plan.conflicts[1].describe()
+    );
+    assert!(
+        plan.conflicts[1].reason.starts_with("turnaround 120 s"),
+        "{}",
+        plan.conflicts[1].reason
+    );
     // SAT-0 and SAT-2 get nothing: unmet demand is reported.
-    let unmet: Vec<&str> = plan.demand.iter().filter(|d| d.met_fraction < 1.0).map(|d| d.spacecraft.as_str()).collect();
+    let unmet: Vec<&str> = plan
+        .demand
+        .iter()
+        .filter(|d| d.met_fraction < 1.0)
+        .map(|d| d.spacecraft.as_str())
+        .collect();
     assert_eq!(unmet, vec!["SAT-0", "SAT-2"]);
 }
 
@@ -371,7 +448,16 @@ fn demo_day_plan() -> (Scenario, Vec<ElementSet>, Plan) {
     let mut options = PassOptions::new(start, end);
     options.earth_orientation = scenario.earth_orientation;
     let passes = find_passes(&sets, &scenario.stations, &options, &Silent).passes;
-    let plan = plan_scenario(&scenario, &sets, &passes, start, end, &scenario.earth_orientation, &Silent).unwrap();
+    let plan = plan_scenario(
+        &scenario,
+        &sets,
+        &passes,
+        start,
+        end,
+        &scenario.earth_orientation,
+        &Silent,
+    )
+    .unwrap();
     (scenario, sets, plan)
 }
 
@@ -380,21 +466,33 @@ fn demo_plan_respects_the_network() {
     let (scenario, sets, plan) = demo_day_plan();
     assert!(!plan.contacts.is_empty());
     // Antenna limits: NF-B only above 10°.
-    for c in plan.contacts.iter().filter(|c| c.antenna.starts_with("NF-B")) {
-        let set = sets.iter().find(|s| s.catalog_number == c.catalog_number).unwrap();
+    for c in plan
+        .contacts
+        .iter()
+        .filter(|c| c.antenna.starts_with("NF-B"))
+    {
+        let set = sets
+            .iter()
+            .find(|s| s.catalog_number == c.catalog_number)
+            .unwrap();
         let prop = Propagator::new(set).unwrap();
         let site = scenario.stations[0].site();
         for when in [c.aos.add_s(0.05), c.los.add_s(-0.05)] {
-            let el = passlane_plan::passes::look_at(&prop, &site, when, &EarthOrientation::default())
-                .unwrap()
-                .elevation_deg;
+            let el =
+                passlane_plan::passes::look_at(&prop, &site, when, &EarthOrientation::default())
+                    .unwrap()
+                    .elevation_deg;
             // 10 ms from the crossing the elevation is within ~1 mdeg of the limit.
             assert!(el > 10.0 - 2e-3, "{} at {when}: {el}", c.spacecraft);
         }
     }
     // Minimum contact length per spacecraft.
     for c in &plan.contacts {
-        let need = scenario.satellites.iter().find(|s| s.catalog_number == c.catalog_number).unwrap();
+        let need = scenario
+            .satellites
+            .iter()
+            .find(|s| s.catalog_number == c.catalog_number)
+            .unwrap();
         assert!(c.duration_s >= need.min_contact_s);
     }
 }
@@ -416,14 +514,22 @@ fn pins_and_exclusions_in_a_scenario() {
         tolerance_s: 60.0,
     });
     let network = Network::from_scenario(&scenario, &sets).unwrap();
-    let cands = build_candidates(&network, &passes, &sets, &scenario.stations, &scenario.earth_orientation);
+    let cands = build_candidates(
+        &network,
+        &passes,
+        &sets,
+        &scenario.stations,
+        &scenario.earth_orientation,
+    );
     let unkept = cands
         .candidates
         .iter()
         .find(|c| {
-            !plan.contacts.iter().any(|k| {
-                k.aos == c.aos && k.antenna == network.antennas[c.antenna].antenna
-            }) && network.satellites[c.satellite].catalog_number == 90006
+            !plan
+                .contacts
+                .iter()
+                .any(|k| k.aos == c.aos && k.antenna == network.antennas[c.antenna].antenna)
+                && network.satellites[c.satellite].catalog_number == 90006
         })
         .expect("a KRSL-6 candidate the plan did not keep");
     let ant = &network.antennas[unkept.antenna];
@@ -434,9 +540,28 @@ fn pins_and_exclusions_in_a_scenario() {
         aos: unkept.pass_aos,
         tolerance_s: 5.0,
     });
-    let again = plan_scenario(&scenario, &sets, &passes, start, end, &scenario.earth_orientation, &Silent).unwrap();
-    assert!(!again.contacts.iter().any(|c| c.aos == first.aos && c.antenna == first.antenna));
-    assert!(again.contacts.iter().any(|c| c.pinned && c.catalog_number == 90006 && c.station == ant.station));
+    let again = plan_scenario(
+        &scenario,
+        &sets,
+        &passes,
+        start,
+        end,
+        &scenario.earth_orientation,
+        &Silent,
+    )
+    .unwrap();
+    assert!(
+        !again
+            .contacts
+            .iter()
+            .any(|c| c.aos == first.aos && c.antenna == first.antenna)
+    );
+    assert!(
+        again
+            .contacts
+            .iter()
+            .any(|c| c.pinned && c.catalog_number == 90006 && c.station == ant.station)
+    );
     // A pin that matches nothing names the pin.
     scenario.pins.push(ContactRef {
         catalog_number: 90006,
@@ -445,7 +570,16 @@ fn pins_and_exclusions_in_a_scenario() {
         aos: t("2026-12-01T12:00:00Z"),
         tolerance_s: 1.0,
     });
-    let e = plan_scenario(&scenario, &sets, &passes, start, end, &scenario.earth_orientation, &Silent).unwrap_err();
+    let e = plan_scenario(
+        &scenario,
+        &sets,
+        &passes,
+        start,
+        end,
+        &scenario.earth_orientation,
+        &Silent,
+    )
+    .unwrap_err();
     assert_eq!(e.field, "pins[1]");
 }
 
@@ -468,7 +602,10 @@ fn icalendar_matches_fixture_and_its_parsed_form() {
         std::fs::write(&path, &ics).unwrap();
     }
     let fixture = std::fs::read_to_string(&path).unwrap();
-    assert!(fixture == ics, "plan-demo.ics changed; re-run with PASSLANE_BLESS=1 and then scripts/fixtures/check_icalendar.py");
+    assert!(
+        fixture == ics,
+        "plan-demo.ics changed; re-run with PASSLANE_BLESS=1 and then scripts/fixtures/check_icalendar.py"
+    );
     // Every line ends in CRLF and is at most 75 octets.
     for line in ics.split_inclusive('\n') {
         assert!(line.ends_with("\r\n"), "{line:?}");
@@ -477,9 +614,10 @@ fn icalendar_matches_fixture_and_its_parsed_form() {
     // Source: tests/fixtures/plan-demo-ics-parsed.json, written by
     // scripts/fixtures/check_icalendar.py with the PyPI icalendar package
     // (version pinned in scripts/fixtures/requirements.txt) from plan-demo.ics.
-    let parsed: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(repo().join("tests/fixtures/plan-demo-ics-parsed.json")).unwrap())
-            .unwrap();
+    let parsed: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(repo().join("tests/fixtures/plan-demo-ics-parsed.json")).unwrap(),
+    )
+    .unwrap();
     let events = parsed["events"].as_array().unwrap();
     let (_, _, plan) = demo_day_plan();
     assert_eq!(events.len(), plan.contacts.len());
@@ -491,7 +629,12 @@ fn icalendar_matches_fixture_and_its_parsed_form() {
         assert_eq!(e["dtstart_unix_s"].as_i64().unwrap(), unix(c.aos));
         assert_eq!(e["dtend_unix_s"].as_i64().unwrap(), unix(c.los));
         assert_eq!(e["dtstart_tz"], "UTC");
-        assert!(e["description"].as_str().unwrap().contains(&format!("antenna {}", c.antenna)));
+        assert!(
+            e["description"]
+                .as_str()
+                .unwrap()
+                .contains(&format!("antenna {}", c.antenna))
+        );
     }
 }
 
@@ -499,7 +642,12 @@ fn icalendar_matches_fixture_and_its_parsed_form() {
 fn icalendar_uids_are_stable_across_runs() {
     let a = demo_ics();
     let b = demo_ics();
-    let uids = |s: &str| s.lines().filter(|l| l.starts_with("UID:")).map(String::from).collect::<Vec<_>>();
+    let uids = |s: &str| {
+        s.lines()
+            .filter(|l| l.starts_with("UID:"))
+            .map(String::from)
+            .collect::<Vec<_>>()
+    };
     assert_eq!(uids(&a), uids(&b));
     let mut unique = uids(&a);
     unique.sort();
@@ -520,7 +668,14 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
     assert_eq!(step, 57.0);
     let states = export::oem_states(set, start, end, step).unwrap();
     let mut buf = Vec::new();
-    export::write_oem(&mut buf, set, &states, t("2026-11-30T12:00:00Z"), "Kestrel Ridge Space Lab").unwrap();
+    export::write_oem(
+        &mut buf,
+        set,
+        &states,
+        t("2026-11-30T12:00:00Z"),
+        "Kestrel Ridge Space Lab",
+    )
+    .unwrap();
     let text = String::from_utf8(buf).unwrap();
     let lines: Vec<&str> = text.lines().collect();
     // CCSDS 502.0-B-2: version first, then the header keywords.
@@ -541,7 +696,11 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
             "STOP_TIME = 2026-12-01T03:00:00.000",
         ]
     );
-    let data: Vec<&str> = lines[meta_stop + 1..].iter().copied().filter(|l| !l.is_empty()).collect();
+    let data: Vec<&str> = lines[meta_stop + 1..]
+        .iter()
+        .copied()
+        .filter(|l| !l.is_empty())
+        .collect();
     assert_eq!(data.len(), (10_800.0f64 / step).ceil() as usize + 1);
     // Each data line: epoch and six numbers; they agree with the states the
     // `ephemeris --frame teme` command computes (same propagator, same times).

@@ -22,7 +22,12 @@ use passlane_orbit::UtcTime;
 use crate::schedule::{Plan, PlannedContact};
 
 /// Writes the plan as one VCALENDAR.
-pub fn write_icalendar(w: &mut dyn Write, plan: &Plan, stamp: UtcTime, calendar_name: &str) -> io::Result<()> {
+pub fn write_icalendar(
+    w: &mut dyn Write,
+    plan: &Plan,
+    stamp: UtcTime,
+    calendar_name: &str,
+) -> io::Result<()> {
     let mut lines: Vec<String> = vec![
         "BEGIN:VCALENDAR".into(),
         "VERSION:2.0".into(),
@@ -85,8 +90,15 @@ fn description(c: &PlannedContact) -> String {
 /// The stable UID of a contact (see the module docs).
 pub fn contact_uid(c: &PlannedContact) -> String {
     let minute = (c.aos.s_since_j2000() / 60.0).round() as i64;
-    let key = format!("{}|{}|{}|{}", c.catalog_number, c.station, c.antenna, minute);
-    format!("{:016x}-{}@passlane", fnv1a_64(key.as_bytes()), c.catalog_number)
+    let key = format!(
+        "{}|{}|{}|{}",
+        c.catalog_number, c.station, c.antenna, minute
+    );
+    format!(
+        "{:016x}-{}@passlane",
+        fnv1a_64(key.as_bytes()),
+        c.catalog_number
+    )
 }
 
 /// 64-bit FNV-1a: fixed constants, the same on every platform and build
@@ -102,7 +114,10 @@ fn fnv1a_64(bytes: &[u8]) -> u64 {
 
 /// `YYYYMMDDTHHMMSSZ`, rounded to the second.
 pub fn ical_time(t: UtcTime) -> String {
-    t.to_iso_s().chars().filter(|ch| *ch != '-' && *ch != ':').collect()
+    t.to_iso_s()
+        .chars()
+        .filter(|ch| *ch != '-' && *ch != ':')
+        .collect()
 }
 
 /// TEXT escaping of RFC 5545 §3.3.11.

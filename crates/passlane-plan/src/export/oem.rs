@@ -25,11 +25,20 @@ pub fn oem_step_s(set: &ElementSet) -> f64 {
 }
 
 /// States from `start` to `end` every `step_s`, the last exactly at `end`.
-pub fn oem_states(set: &ElementSet, start: UtcTime, end: UtcTime, step_s: f64) -> Result<Vec<StateTeme>, PropagationError> {
+pub fn oem_states(
+    set: &ElementSet,
+    start: UtcTime,
+    end: UtcTime,
+    step_s: f64,
+) -> Result<Vec<StateTeme>, PropagationError> {
     let prop = Propagator::new(set)?;
     let mut cursor = prop.cursor();
     let span = end.s_since(start);
-    let step_s = if step_s.is_finite() && step_s > 0.0 { step_s } else { 60.0 };
+    let step_s = if step_s.is_finite() && step_s > 0.0 {
+        step_s
+    } else {
+        60.0
+    };
     let mut out = Vec::new();
     let mut k = 0usize;
     loop {
@@ -72,11 +81,22 @@ pub fn write_oem(
     originator: &str,
 ) -> io::Result<()> {
     let (Some(first), Some(last)) = (states.first(), states.last()) else {
-        return Err(io::Error::new(io::ErrorKind::InvalidInput, "an OEM needs at least one state"));
+        return Err(io::Error::new(
+            io::ErrorKind::InvalidInput,
+            "an OEM needs at least one state",
+        ));
     };
-    let originator = if originator.trim().is_empty() { "PASSLANE" } else { originator.trim() };
+    let originator = if originator.trim().is_empty() {
+        "PASSLANE"
+    } else {
+        originator.trim()
+    };
     writeln!(w, "CCSDS_OEM_VERS = 2.0")?;
-    writeln!(w, "COMMENT SGP4 states from element set epoch {}", oem_time(set.epoch))?;
+    writeln!(
+        w,
+        "COMMENT SGP4 states from element set epoch {}",
+        oem_time(set.epoch)
+    )?;
     writeln!(w, "CREATION_DATE = {}", oem_time(created))?;
     writeln!(w, "ORIGINATOR = {originator}")?;
     writeln!(w)?;

@@ -11,7 +11,11 @@ use crate::schedule::PlannedContact;
 use crate::station::Station;
 
 /// Writes one pointing table.
-pub fn write_pointing_csv(w: &mut dyn Write, station: &Station, rows: &[PointingRow]) -> io::Result<()> {
+pub fn write_pointing_csv(
+    w: &mut dyn Write,
+    station: &Station,
+    rows: &[PointingRow],
+) -> io::Result<()> {
     write!(w, "time,azimuth_deg,elevation_deg,range_km,range_rate_km_s")?;
     for c in &station.channels {
         write!(w, ",{}_hz", csv_field(&c.name.replace(' ', "_")))?;
@@ -38,6 +42,17 @@ pub fn write_pointing_csv(w: &mut dyn Write, station: &Station, rows: &[Pointing
 /// A file name that identifies the contact:
 /// `<catalog>_<station>_<antenna>_<AOS as YYYYMMDDTHHMMSSZ>.csv`.
 pub fn pointing_file_name(c: &PlannedContact) -> String {
-    let aos: String = c.aos.to_iso_s().chars().filter(|ch| *ch != '-' && *ch != ':').collect();
-    format!("{}_{}_{}_{}.csv", c.catalog_number, slug(&c.station), slug(&c.antenna), aos)
+    let aos: String = c
+        .aos
+        .to_iso_s()
+        .chars()
+        .filter(|ch| *ch != '-' && *ch != ':')
+        .collect();
+    format!(
+        "{}_{}_{}_{}.csv",
+        c.catalog_number,
+        slug(&c.station),
+        slug(&c.antenna),
+        aos
+    )
 }
