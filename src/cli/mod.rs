@@ -6,3 +6,4 @@ pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;
 pub mod passes_cmd;
+pub mod screen_cmd;

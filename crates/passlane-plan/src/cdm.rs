@@ -1031,15 +1031,23 @@ impl Cdm {
     /// Rebuilds the encounter from the two states and covariances and computes
     /// the probability by every method, for a combined hard-body radius (m).
     ///
-    /// The states are used in whatever REF_FRAME the CDM gives (usually ITRF
-    /// or EME2000) without conversion. For the encounter geometry the
-    /// Earth-fixed/inertial distinction is minor: over the second or so of a
-    /// LEO encounter Earth turns by ~7e-5 rad, and the rotation's effect on
-    /// the relative velocity (ω × Δr, ~1e-4 m/s per metre of miss) is far below
-    /// the closing speed. Both states must be in the same frame; we do not
-    /// check REF_FRAME beyond that.
+    /// Inertial states (EME2000, GCRF) are used as given. Earth-fixed (ITRF)
+    /// states get the Earth-rotation term ω × r added back to their velocity
+    /// first, because each object's RTN axes (in which its covariance is
+    /// given) are defined by its inertial velocity; the frames' orientation
+    /// does not matter for the encounter geometry as long as both states share
+    /// it. Both states must be in the same frame.
     pub fn recompute(&self, hard_body_radius_m: f64) -> Result<CdmAssessment, EncounterError> {
-        let (s1, s2) = (&self.object1.state, &self.object2.state);
+        // RTN axes need inertial velocities: an Earth-fixed (ITRF) state gets
+        // ω × r added back (see conjunction::earth_fixed_to_aligned_inertial).
+        let inertial = |o: &CdmObject| {
+            if o.ref_frame.trim().to_ascii_uppercase().starts_with("ITRF") {
+                crate::conjunction::earth_fixed_to_aligned_inertial(&o.state)
+            } else {
+                o.state
+            }
+        };
+        let (s1, s2) = (&inertial(&self.object1), &inertial(&self.object2));
         let g = relative_geometry(s1, s2)?;
         let plane = encounter_plane(
             s1,

@@ -12,6 +12,7 @@ pub mod station;
 
 // Conjunction assessment: encounter geometry, collision probability, CDM files.
 pub mod cdm;
+pub mod conjunction;
 pub mod encounter;
 pub mod pc;
 pub mod screen;
