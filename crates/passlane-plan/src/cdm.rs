@@ -599,6 +599,7 @@ impl Cdm {
         let mut sections: [RawSection; 4] = Default::default();
         let mut current = Section::Header;
         let mut last_line = 0;
+        let mut pending_comments = Vec::new();
         for (i, raw) in text.lines().enumerate() {
             let line_no = i + 1;
             last_line = line_no;
@@ -607,8 +608,9 @@ impl Cdm {
                 continue;
             }
             if line == "COMMENT" || line.starts_with("COMMENT ") || line.starts_with("COMMENT\t") {
-                let c = line["COMMENT".len()..].trim().to_string();
-                sections[current as usize].comments.push(c);
+                // A comment belongs to the block of the keyword that follows it,
+                // so one written just before `OBJECT = OBJECT1` goes with OBJECT1.
+                pending_comments.push(line["COMMENT".len()..].trim().to_string());
                 continue;
             }
             let Some((key, value)) = line.split_once('=') else {
@@ -645,6 +647,7 @@ impl Cdm {
             }
             current = target;
             let sec = &mut sections[target as usize];
+            sec.comments.append(&mut pending_comments);
             if sec.items.is_empty() {
                 sec.first_line = line_no;
             }
@@ -657,6 +660,9 @@ impl Cdm {
                 line: line_no,
             });
         }
+        sections[current as usize]
+            .comments
+            .append(&mut pending_comments);
         // A block ends where the next non-empty one begins, or at the end of the text.
         let end_of = |idx: usize| -> usize {
             sections[idx + 1..]
