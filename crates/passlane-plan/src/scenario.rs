@@ -52,7 +52,7 @@ fn one() -> f64 {
 
 /// Settings for close-approach screening.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ScreeningSettings {
+pub struct ScreeningDefaults {
     #[serde(default = "default_threshold")]
     pub threshold_km: f64,
     /// Hard-body radius used when an object has none of its own, m.
@@ -82,9 +82,9 @@ fn default_sigma_growth() -> [f64; 3] {
     [50.0, 1000.0, 50.0]
 }
 
-impl Default for ScreeningSettings {
+impl Default for ScreeningDefaults {
     fn default() -> Self {
-        ScreeningSettings {
+        ScreeningDefaults {
             threshold_km: default_threshold(),
             default_hard_body_radius_m: default_hbr(),
             assumed_sigma_at_epoch_m: default_sigma_epoch(),
@@ -116,7 +116,7 @@ pub struct Scenario {
     #[serde(default)]
     pub satellites: Vec<SatelliteNeeds>,
     #[serde(default)]
-    pub screening: ScreeningSettings,
+    pub screening: ScreeningDefaults,
 }
 
 impl Default for Scenario {
@@ -131,7 +131,7 @@ impl Default for Scenario {
             earth_orientation: EarthOrientation::default(),
             stations: Vec::new(),
             satellites: Vec::new(),
-            screening: ScreeningSettings::default(),
+            screening: ScreeningDefaults::default(),
         }
     }
 }
