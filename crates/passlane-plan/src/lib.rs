@@ -18,6 +18,7 @@ pub mod schedule;
 
 // Conjunction assessment: encounter geometry, collision probability, CDM files.
 pub mod cdm;
+pub mod conjunction;
 pub mod encounter;
 pub mod pc;
 pub mod screen;

@@ -82,7 +82,7 @@ fn default_ref_tolerance() -> f64 {
 
 /// Settings for close-approach screening.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ScreeningSettings {
+pub struct ScreeningDefaults {
     #[serde(default = "default_threshold")]
     pub threshold_km: f64,
     /// Hard-body radius used when an object has none of its own, m.
@@ -112,9 +112,9 @@ fn default_sigma_growth() -> [f64; 3] {
     [50.0, 1000.0, 50.0]
 }
 
-impl Default for ScreeningSettings {
+impl Default for ScreeningDefaults {
     fn default() -> Self {
-        ScreeningSettings {
+        ScreeningDefaults {
             threshold_km: default_threshold(),
             default_hard_body_radius_m: default_hbr(),
             assumed_sigma_at_epoch_m: default_sigma_epoch(),
@@ -152,7 +152,7 @@ pub struct Scenario {
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub exclusions: Vec<ContactRef>,
     #[serde(default)]
-    pub screening: ScreeningSettings,
+    pub screening: ScreeningDefaults,
 }
 
 impl Default for Scenario {
@@ -169,7 +169,7 @@ impl Default for Scenario {
             satellites: Vec::new(),
             pins: Vec::new(),
             exclusions: Vec::new(),
-            screening: ScreeningSettings::default(),
+            screening: ScreeningDefaults::default(),
         }
     }
 }
