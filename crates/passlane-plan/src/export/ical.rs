@@ -63,6 +63,9 @@ pub fn summary(c: &PlannedContact) -> String {
     format!("{}: {} / {}", c.spacecraft, c.station, c.antenna)
 }
 
+/// The event text. Times to the second, like DTSTART/DTEND (the plan CSV and
+/// pointing files carry milliseconds), so that a calendar entry does not
+/// change with sub-second refinements of the pass finder.
 fn description(c: &PlannedContact) -> String {
     let mut d = format!(
         "Spacecraft {} (catalog {})\nStation {}, antenna {}\nAOS {}, LOS {} ({:.0} s)\nMax elevation {:.1} deg",
@@ -70,8 +73,8 @@ fn description(c: &PlannedContact) -> String {
         c.catalog_number,
         c.station,
         c.antenna,
-        c.aos.to_iso_ms(),
-        c.los.to_iso_ms(),
+        c.aos.to_iso_s(),
+        c.los.to_iso_s(),
         c.duration_s,
         c.max_elevation_deg
     );
