@@ -251,6 +251,12 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
         )?;
     }
     writeln!(out, "\nConflicts resolved: {}", plan.conflicts.len())?;
+    if plan.score + 1e-9 >= plan.upper_bound && plan.score + 1e-9 < plan.max_score {
+        writeln!(
+            out,
+            "  (every shortfall above is for want of contact windows, not of antenna time)"
+        )?;
+    }
     const SHOWN: usize = 15;
     for c in plan.conflicts.iter().take(SHOWN) {
         writeln!(out, "  {}", c.describe())?;
