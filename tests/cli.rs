@@ -231,3 +231,34 @@ fn errors_are_clear_and_exit_nonzero() {
     assert!(!out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains("unknown option --bogus"));
 }
+
+#[test]
+fn plan_writes_every_hand_off_file() {
+    let dir = tmp("plan-out");
+    let dir_s = dir.to_str().unwrap();
+    let v = ok_json(&[
+        "plan",
+        "--scenario",
+        "scenarios/demo.json",
+        "--end",
+        "2026-12-02T00:00:00Z",
+        "--out",
+        dir_s,
+        "--format",
+        "json",
+    ]);
+    has_fields(&v, &["contacts", "demand", "conflicts", "score", "max_score", "upper_bound", "method"]);
+    let contacts = v["contacts"].as_array().unwrap();
+    assert!(!contacts.is_empty());
+    for c in contacts {
+        has_fields(c, &["spacecraft", "catalog_number", "station", "antenna", "aos", "los", "max_elevation_deg", "channels", "volume_mb"]);
+        assert!(is_iso_ms(c["aos"].as_str().unwrap()));
+    }
+    let csv = std::fs::read_to_string(dir.join("plan.csv")).unwrap();
+    assert_eq!(csv.lines().count(), contacts.len() + 1);
+    let ics = std::fs::read_to_string(dir.join("plan.ics")).unwrap();
+    assert_eq!(ics.matches("BEGIN:VEVENT\r\n").count(), contacts.len());
+    assert_eq!(std::fs::read_dir(dir.join("pointing")).unwrap().count(), contacts.len());
+    assert_eq!(std::fs::read_dir(dir.join("oem")).unwrap().count(), 6);
+    let _ = std::fs::remove_dir_all(&dir);
+}
