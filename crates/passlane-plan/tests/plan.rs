@@ -465,25 +465,29 @@ fn demo_day_plan() -> (Scenario, Vec<ElementSet>, Plan) {
 fn demo_plan_respects_the_network() {
     let (scenario, sets, plan) = demo_day_plan();
     assert!(!plan.contacts.is_empty());
-    // Antenna limits: NF-B only above 10°.
-    for c in plan
+    // Antenna limits: the demo's NF-A antenna works only above 8° (the
+    // station's own minimum is 5°).
+    let limited: Vec<_> = plan
         .contacts
         .iter()
-        .filter(|c| c.antenna.starts_with("NF-B"))
-    {
+        .filter(|c| c.antenna.starts_with("NF-A"))
+        .collect();
+    assert!(!limited.is_empty(), "the demo day should use NF-A");
+    for c in limited {
         let set = sets
             .iter()
             .find(|s| s.catalog_number == c.catalog_number)
             .unwrap();
         let prop = Propagator::new(set).unwrap();
-        let site = scenario.stations[0].site();
+        let station = scenario.stations.iter().find(|s| s.name == "Northfell").unwrap();
+        let site = station.site();
         for when in [c.aos.add_s(0.05), c.los.add_s(-0.05)] {
             let el =
                 passlane_plan::passes::look_at(&prop, &site, when, &EarthOrientation::default())
                     .unwrap()
                     .elevation_deg;
             // 10 ms from the crossing the elevation is within ~1 mdeg of the limit.
-            assert!(el > 10.0 - 2e-3, "{} at {when}: {el}", c.spacecraft);
+            assert!(el > 8.0 - 2e-3, "{} at {when}: {el}", c.spacecraft);
         }
     }
     // Minimum contact length per spacecraft.
