@@ -343,9 +343,22 @@ pub fn screen_with_progress(
         result.stats.propagation_s += clock.elapsed().as_secs_f64();
         let clock = std::time::Instant::now();
         let n_steps = (chunk_end.s_since(chunk_start) / h).ceil() as usize;
+        // Compact copy of the chunk's samples: the hash loop touches every object
+        // at every step, and the large propagator structs would cost a cache
+        // miss each.
+        let mut flat = Flat::default();
+        for (oc, o) in cursors.iter().zip(objects.iter()) {
+            flat.hot.push(Hot {
+                offset: flat.samples.len(),
+                valid: oc.valid,
+                step_s: o.sample_step_s,
+                group: o.group,
+            });
+            flat.samples.extend_from_slice(&oc.samples[..oc.valid]);
+        }
         let ctx = ChunkContext {
             objects: &objects,
-            cursors: &cursors,
+            flat: &flat,
             chunk_start,
             settings: &settings,
             margin_km,
@@ -669,22 +682,6 @@ impl ObjectCursor<'_> {
         }
         self.valid = self.samples.len();
     }
-
-    /// Interpolated state `dt_s` after the chunk start, if covered by valid samples.
-    #[inline]
-    fn at(&self, o: &Object, dt_s: f64) -> Option<Sample> {
-        let x = dt_s / o.sample_step_s;
-        let m = (x.floor().max(0.0) as usize).min(self.valid.saturating_sub(2));
-        if m + 1 >= self.valid {
-            return None;
-        }
-        Some(hermite(
-            &self.samples[m],
-            &self.samples[m + 1],
-            o.sample_step_s,
-            x - m as f64,
-        ))
-    }
 }
 
 /// A local minimum of the interpolated distance, to be refined with SGP4.
@@ -700,7 +697,6 @@ struct Candidate {
 struct Scratch {
     states: Vec<Option<Sample>>,
     keys: Vec<(u64, u32)>,
-    cells: HashMap<u64, (u32, u32), BuildHasherDefault<CellHasher>>,
     cell_lists: HashMap<u64, Vec<u32>, BuildHasherDefault<CellHasher>>,
 }
 
@@ -737,32 +733,63 @@ fn key_of(c: [i64; 3]) -> u64 {
     (k(c[0]) << (2 * KEY_BITS)) | (k(c[1]) << KEY_BITS) | k(c[2])
 }
 
-/// The 13 neighbour offsets "after" a cell (plus the cell itself, handled
-/// apart), so that every unordered pair of cells is visited once.
-fn forward_offsets() -> impl Iterator<Item = [i64; 3]> {
-    (-1..=1)
-        .flat_map(|dx| (-1..=1).flat_map(move |dy| (-1..=1).map(move |dz| [dx, dy, dz])))
-        .filter(|d| (d[0], d[1], d[2]) > (0, 0, 0))
+/// Per-object sampling data of one chunk, packed for the hash loop.
+#[derive(Clone, Copy)]
+struct Hot {
+    offset: usize,
+    valid: usize,
+    step_s: f64,
+    group: u8,
 }
 
-struct ChunkContext<'a, 'b> {
+#[derive(Default)]
+struct Flat {
+    hot: Vec<Hot>,
+    samples: Vec<Sample>,
+}
+
+impl Flat {
+    /// Interpolated state of object `i` at `dt_s` after the chunk start, if
+    /// covered by valid samples.
+    #[inline]
+    fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
+        let h = self.hot[i];
+        if h.valid < 2 {
+            return None;
+        }
+        let x = dt_s / h.step_s;
+        let m = (x.floor().max(0.0) as usize).min(h.valid - 2);
+        if x > (h.valid - 1) as f64 + 1e-9 {
+            return None;
+        }
+        let k = h.offset + m;
+        Some(hermite(
+            &self.samples[k],
+            &self.samples[k + 1],
+            h.step_s,
+            x - m as f64,
+        ))
+    }
+}
+
+struct ChunkContext<'a> {
     objects: &'a [Object],
-    cursors: &'a [ObjectCursor<'b>],
+    flat: &'a Flat,
     chunk_start: UtcTime,
     settings: &'a ScreeningSettings,
     margin_km: f64,
     cross: bool,
 }
 
-impl ChunkContext<'_, '_> {
+impl ChunkContext<'_> {
     /// All candidate minima of the hash step [a, b].
     fn step(&self, a: UtcTime, b: UtcTime, scratch: &mut Scratch) -> Vec<Candidate> {
         let half_s = 0.5 * b.s_since(a);
         let mid_dt = a.s_since(self.chunk_start) + half_s;
         scratch.states.clear();
         let (mut v_top1, mut v_top2) = ([0.0f64; 2], [0.0f64; 2]);
-        for (o, oc) in self.objects.iter().zip(self.cursors) {
-            let s = oc.at(o, mid_dt);
+        for (i, o) in self.flat.hot.iter().enumerate() {
+            let s = self.flat.at(i, mid_dt);
             if let Some(s) = &s {
                 let v = norm(&s.vel_km_s);
                 let g = usize::from(self.cross && o.group == 1);
@@ -792,7 +819,7 @@ impl ChunkContext<'_, '_> {
         if self.cross {
             let lists = &mut scratch.cell_lists;
             lists.values_mut().for_each(Vec::clear);
-            for (i, o) in self.objects.iter().enumerate() {
+            for (i, o) in self.flat.hot.iter().enumerate() {
                 let (0, Some(s)) = (o.group, &states[i]) else {
                     continue;
                 };
@@ -806,7 +833,7 @@ impl ChunkContext<'_, '_> {
                     }
                 }
             }
-            for (j, o) in self.objects.iter().enumerate() {
+            for (j, o) in self.flat.hot.iter().enumerate() {
                 let (1, Some(s)) = (o.group, &states[j]) else {
                     continue;
                 };
@@ -842,25 +869,29 @@ impl ChunkContext<'_, '_> {
                 let cut = base_km + (pos[x].1 + pos[y].1) * half_s;
                 dot(&dr, &dr) <= cut * cut
             };
-            // Runs of equal keys are the occupied cells.
-            let cells = &mut scratch.cells;
-            cells.clear();
-            let mut runs = Vec::new();
-            let mut start = 0;
-            while start < keys.len() {
-                let mut end = start + 1;
-                while end < keys.len() && keys[end].0 == keys[start].0 {
-                    end += 1;
+            // Keys sort with z fastest, so the 13 "forward" neighbour cells form
+            // five contiguous key ranges: (0,0,+1), (0,+1,-1..=1) and
+            // (+1,-1..=1,-1..=1). Their bounds grow with the cell key, so five
+            // pointers that only move forward find them without hashing.
+            let y1 = 1u64 << KEY_BITS;
+            let x1 = 1u64 << (2 * KEY_BITS);
+            let columns = |k: u64| -> [(u64, u64); 5] {
+                [
+                    (k + 1, k + 1),
+                    (k + y1 - 1, k + y1 + 1),
+                    (k + x1 - y1 - 1, k + x1 - y1 + 1),
+                    (k + x1 - 1, k + x1 + 1),
+                    (k + x1 + y1 - 1, k + x1 + y1 + 1),
+                ]
+            };
+            let mut ptr = [0usize; 5];
+            let mut s0 = 0;
+            while s0 < keys.len() {
+                let k = keys[s0].0;
+                let mut e0 = s0 + 1;
+                while e0 < keys.len() && keys[e0].0 == k {
+                    e0 += 1;
                 }
-                cells.insert(keys[start].0, (start as u32, end as u32));
-                runs.push((start, end));
-                start = end;
-            }
-            let offsets: Vec<[i64; 3]> = forward_offsets().collect();
-            for &(s0, e0) in &runs {
-                let here = keys[s0].1 as usize;
-                let Some(sh) = &states[here] else { continue };
-                let cell = cell_of(&sh.pos_km, inv);
                 for x in s0..e0 {
                     for y in (x + 1..e0).filter(|&y| near(x, y)) {
                         self.pair(
@@ -875,25 +906,31 @@ impl ChunkContext<'_, '_> {
                         );
                     }
                 }
-                for off in &offsets {
-                    let nk = key_of([cell[0] + off[0], cell[1] + off[1], cell[2] + off[2]]);
-                    if let Some(&(s1, e1)) = cells.get(&nk) {
-                        for x in s0..e0 {
-                            for y in (s1 as usize..e1 as usize).filter(|&y| near(x, y)) {
-                                self.pair(
-                                    keys[x].1 as usize,
-                                    keys[y].1 as usize,
-                                    a,
-                                    b,
-                                    reach_km,
-                                    cell_km,
-                                    states,
-                                    &mut out,
-                                );
-                            }
+                for (c, (lo, hi)) in columns(k).into_iter().enumerate() {
+                    let p = &mut ptr[c];
+                    while *p < keys.len() && keys[*p].0 < lo {
+                        *p += 1;
+                    }
+                    let mut q = *p;
+                    while q < keys.len() && keys[q].0 <= hi {
+                        q += 1;
+                    }
+                    for x in s0..e0 {
+                        for y in (*p..q).filter(|&y| near(x, y)) {
+                            self.pair(
+                                keys[x].1 as usize,
+                                keys[y].1 as usize,
+                                a,
+                                b,
+                                reach_km,
+                                cell_km,
+                                states,
+                                &mut out,
+                            );
                         }
                     }
                 }
+                s0 = e0;
             }
         }
         out
@@ -950,11 +987,10 @@ impl ChunkContext<'_, '_> {
         // Sign changes of f = Δr·Δv from − to + are distance minima. Four
         // sub-intervals: a minimum and a maximum of the distance are at least
         // a good fraction of an orbit apart, never inside one of them.
-        let (ci, cj) = (&self.cursors[i], &self.cursors[j]);
         let t0 = a.s_since(self.chunk_start);
         let f_at = |dt: f64| -> Option<(f64, f64)> {
-            let p = ci.at(oi, dt)?;
-            let q = cj.at(oj, dt)?;
+            let p = self.flat.at(i, dt)?;
+            let q = self.flat.at(j, dt)?;
             let dr = sub(&q.pos_km, &p.pos_km);
             let dv = sub(&q.vel_km_s, &p.vel_km_s);
             Some((dot(&dr, &dv), norm(&dr)))
