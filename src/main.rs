@@ -42,13 +42,54 @@ fn main() -> ExitCode {
             println!("{HELP}");
             return ExitCode::SUCCESS;
         }
-        "elements" => (cli::elements_cmd::USAGE, run_or_help(rest, cli::elements_cmd::USAGE, &mut out, cli::elements_cmd::run)),
-        "ephemeris" => (cli::ephemeris_cmd::USAGE, run_or_help(rest, cli::ephemeris_cmd::USAGE, &mut out, cli::ephemeris_cmd::run)),
-        "passes" => (cli::passes_cmd::USAGE, run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run)),
-        "track" => (cli::passes_cmd::TRACK_USAGE, run_or_help(rest, cli::passes_cmd::TRACK_USAGE, &mut out, cli::passes_cmd::run_track)),
-        "screen" => (cli::screen_cmd::USAGE, run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run)),
-        "cdm" => (cli::screen_cmd::CDM_USAGE, run_or_help(rest, cli::screen_cmd::CDM_USAGE, &mut out, cli::screen_cmd::run_cdm)),
-        "plan" => (cli::plan_cmd::USAGE, run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run)),
+        "elements" => (
+            cli::elements_cmd::USAGE,
+            run_or_help(
+                rest,
+                cli::elements_cmd::USAGE,
+                &mut out,
+                cli::elements_cmd::run,
+            ),
+        ),
+        "ephemeris" => (
+            cli::ephemeris_cmd::USAGE,
+            run_or_help(
+                rest,
+                cli::ephemeris_cmd::USAGE,
+                &mut out,
+                cli::ephemeris_cmd::run,
+            ),
+        ),
+        "passes" => (
+            cli::passes_cmd::USAGE,
+            run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run),
+        ),
+        "track" => (
+            cli::passes_cmd::TRACK_USAGE,
+            run_or_help(
+                rest,
+                cli::passes_cmd::TRACK_USAGE,
+                &mut out,
+                cli::passes_cmd::run_track,
+            ),
+        ),
+        "screen" => (
+            cli::screen_cmd::USAGE,
+            run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run),
+        ),
+        "cdm" => (
+            cli::screen_cmd::CDM_USAGE,
+            run_or_help(
+                rest,
+                cli::screen_cmd::CDM_USAGE,
+                &mut out,
+                cli::screen_cmd::run_cdm,
+            ),
+        ),
+        "plan" => (
+            cli::plan_cmd::USAGE,
+            run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run),
+        ),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);

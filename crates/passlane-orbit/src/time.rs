@@ -123,13 +123,19 @@ impl UtcTime {
             return Ok(Self::from_chrono(dt.with_timezone(&Utc)));
         }
         let naive = t.strip_suffix('Z').unwrap_or(t);
-        for fmt in ["%Y-%m-%dT%H:%M:%S%.f", "%Y-%m-%d %H:%M:%S%.f", "%Y-%m-%dT%H:%M"] {
+        for fmt in [
+            "%Y-%m-%dT%H:%M:%S%.f",
+            "%Y-%m-%d %H:%M:%S%.f",
+            "%Y-%m-%dT%H:%M",
+        ] {
             if let Ok(n) = NaiveDateTime::parse_from_str(naive, fmt) {
                 return Ok(Self::from_naive(n));
             }
         }
         if let Ok(d) = NaiveDate::parse_from_str(naive, "%Y-%m-%d") {
-            return Ok(Self::from_naive(d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?));
+            return Ok(Self::from_naive(
+                d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?,
+            ));
         }
         // Day-of-year form used by some OMM producers: 2026-335T12:00:00.
         if let Ok(n) = NaiveDateTime::parse_from_str(naive, "%Y-%jT%H:%M:%S%.f") {

@@ -348,7 +348,13 @@ impl Track {
         if i == j {
             return self.states[i];
         }
-        hermite(self.times_s[i], &self.states[i], self.times_s[j], &self.states[j], t_s)
+        hermite(
+            self.times_s[i],
+            &self.states[i],
+            self.times_s[j],
+            &self.states[j],
+            t_s,
+        )
     }
 }
 
@@ -442,7 +448,10 @@ fn passes_of_satellite(
     // "Near" a station: inside its cone widened by one step of travel. Compared
     // as cosines so that the common case needs no acos.
     let near = bounds.max_angle_rate_rad_s * bounds.step_s;
-    let cos_near: Vec<f64> = cones.iter().map(|c| (c + near).min(std::f64::consts::PI).cos()).collect();
+    let cos_near: Vec<f64> = cones
+        .iter()
+        .map(|c| (c + near).min(std::f64::consts::PI).cos())
+        .collect();
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
     let mut track = Track::new(options.start);
@@ -574,14 +583,25 @@ fn scan_segment(
             } else if fa > 0.0 && fb <= 0.0 {
                 let t = brent_root(clearance_at, ta, tb, fa, fb, 1e-4);
                 if let Some((aos, clipped)) = open.take() {
-                    passes.push(describe_pass(set, st, track, options, aos, t, clipped, false));
+                    passes.push(describe_pass(
+                        set, st, track, options, aos, t, clipped, false,
+                    ));
                 }
             }
         }
         if let Some((aos, clipped)) = open {
             let last = points[points.len() - 1].0;
             let los_clipped = last >= total_s - 1e-9;
-            passes.push(describe_pass(set, st, track, options, aos, last, clipped, los_clipped));
+            passes.push(describe_pass(
+                set,
+                st,
+                track,
+                options,
+                aos,
+                last,
+                clipped,
+                los_clipped,
+            ));
         }
     }
 }
@@ -640,7 +660,11 @@ fn describe_pass(
     let rr = |t: f64| look(t).range_rate_km_s;
     let lo = (tmin_range_s - dt).max(aos_s);
     let hi = (tmin_range_s + dt).min(los_s);
-    let range_accel = if hi > lo { (rr(hi) - rr(lo)) / (hi - lo) } else { 0.0 };
+    let range_accel = if hi > lo {
+        (rr(hi) - rr(lo)) / (hi - lo)
+    } else {
+        0.0
+    };
     let doppler = st
         .station
         .channels
@@ -807,10 +831,15 @@ fn mount_warnings(
     // closest approach; a pass well inside both limits there needs no scan.
     let (az_peak, _) = rates(tmax_s);
     let (_, el_near) = rates(tmin_range_s);
-    if az_peak < 0.5 * limits.max_azimuth_rate_deg_s && el_near < 0.5 * limits.max_elevation_rate_deg_s {
+    if az_peak < 0.5 * limits.max_azimuth_rate_deg_s
+        && el_near < 0.5 * limits.max_elevation_rate_deg_s
+    {
         return Vec::new();
     }
-    let limit = [limits.max_azimuth_rate_deg_s, limits.max_elevation_rate_deg_s];
+    let limit = [
+        limits.max_azimuth_rate_deg_s,
+        limits.max_elevation_rate_deg_s,
+    ];
     // Coarse scan: which 5 s cells need a closer look?
     let mut coarse: Vec<f64> = Vec::new();
     let mut t = aos_s;
@@ -929,7 +958,11 @@ pub(crate) fn golden_extremum(
             e = if x >= xm { a - x } else { b - x };
             d = CGOLD * e;
         }
-        let u = if d.abs() >= tol1 { x + d } else { x + tol1.copysign(d) };
+        let u = if d.abs() >= tol1 {
+            x + d
+        } else {
+            x + tol1.copysign(d)
+        };
         let fu = g(u);
         if fu <= fx {
             if u >= x {
@@ -1005,7 +1038,11 @@ pub(crate) fn brent_root(
             b - fb * (b - a) / (fb - fa)
         };
         let q = (3.0 * a + b) / 4.0;
-        let between = if q < b { s > q && s < b } else { s > b && s < q };
+        let between = if q < b {
+            s > q && s < b
+        } else {
+            s > b && s < q
+        };
         if !between
             || (mflag && (s - b).abs() >= (b - c).abs() / 2.0)
             || (!mflag && (s - b).abs() >= (c - d).abs() / 2.0)
@@ -1072,7 +1109,11 @@ pub fn pointing_table_between(
 ) -> Result<Vec<PointingRow>, PropagationError> {
     let prop = Propagator::new(set)?;
     let site = station.site();
-    let step_s = if step_s.is_finite() && step_s > 0.0 { step_s } else { 1.0 };
+    let step_s = if step_s.is_finite() && step_s > 0.0 {
+        step_s
+    } else {
+        1.0
+    };
     let duration = end.s_since(start);
     let mut times: Vec<UtcTime> = Vec::new();
     let mut k = 0usize;
@@ -1140,7 +1181,10 @@ pub fn interval_above(
         return Ok(None);
     }
     let t0 = pass.aos;
-    let tmax_s = pass.max_elevation_time.s_since(t0).clamp(0.0, pass.duration_s);
+    let tmax_s = pass
+        .max_elevation_time
+        .s_since(t0)
+        .clamp(0.0, pass.duration_s);
     let los_s = pass.los.s_since(t0);
     let margin = |t_s: f64| -> Result<f64, PropagationError> {
         Ok(look_at(prop, site, t0.add_s(t_s), eop)?.elevation_deg - min_elevation_deg)
@@ -1156,8 +1200,16 @@ pub fn interval_above(
     // A failure inside an interval whose ends propagated is not expected; it
     // reads as "below the limit" so the contact only gets shorter.
     let f = |t_s: f64| margin(t_s).unwrap_or(-90.0);
-    let up_s = if f_aos >= 0.0 { 0.0 } else { brent_root(f, 0.0, tmax_s, f_aos, f_max, 0.01) };
-    let down_s = if f_los >= 0.0 { los_s } else { brent_root(f, tmax_s, los_s, f_max, f_los, 0.01) };
+    let up_s = if f_aos >= 0.0 {
+        0.0
+    } else {
+        brent_root(f, 0.0, tmax_s, f_aos, f_max, 0.01)
+    };
+    let down_s = if f_los >= 0.0 {
+        los_s
+    } else {
+        brent_root(f, tmax_s, los_s, f_max, f_los, 0.01)
+    };
     if down_s <= up_s {
         return Ok(None);
     }

@@ -215,7 +215,14 @@ impl Scenario {
         let version = value
             .get("format_version")
             .and_then(|v| v.as_u64())
-            .ok_or_else(|| err(0, 0, "format_version", "missing or not a whole number".into()))?;
+            .ok_or_else(|| {
+                err(
+                    0,
+                    0,
+                    "format_version",
+                    "missing or not a whole number".into(),
+                )
+            })?;
         if version > u64::from(SCENARIO_FORMAT_VERSION) {
             return Err(err(
                 0,
@@ -227,7 +234,12 @@ impl Scenario {
             ));
         }
         if version == 0 {
-            return Err(err(0, 0, "format_version", "0 is not a valid format version".into()));
+            return Err(err(
+                0,
+                0,
+                "format_version",
+                "0 is not a valid format version".into(),
+            ));
         }
         let mut scenario: Scenario = serde_path_from_str(text)
             .map_err(|(path, line, column, message)| err(line, column, &path, message))?;
@@ -248,12 +260,17 @@ impl Scenario {
 
     /// Checks every field the library relies on; returns (field path, reason).
     pub fn validate(&self) -> Result<(), (String, String)> {
-        if let Some(w) = &self.window {
-            if !(w.end > w.start) {
-                return Err(("window.end".into(), format!("{} is not after window.start {}", w.end, w.start)));
-            }
+        if let Some(w) = &self.window
+            && w.end <= w.start
+        {
+            return Err((
+                "window.end".into(),
+                format!("{} is not after window.start {}", w.end, w.start),
+            ));
         }
-        if !self.earth_orientation.ut1_utc_s.is_finite() || self.earth_orientation.ut1_utc_s.abs() > 1.0 {
+        if !self.earth_orientation.ut1_utc_s.is_finite()
+            || self.earth_orientation.ut1_utc_s.abs() > 1.0
+        {
             return Err((
                 "earth_orientation.ut1_utc_s".into(),
                 format!("{} s is outside ±1 s", self.earth_orientation.ut1_utc_s),
@@ -261,24 +278,37 @@ impl Scenario {
         }
         let mut names = std::collections::HashSet::new();
         for (i, s) in self.stations.iter().enumerate() {
-            s.validate().map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
+            s.validate()
+                .map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
             if !names.insert(s.name.as_str()) {
-                return Err((format!("stations[{i}].name"), format!("{:?} is used by two stations", s.name)));
+                return Err((
+                    format!("stations[{i}].name"),
+                    format!("{:?} is used by two stations", s.name),
+                ));
             }
         }
         for (i, n) in self.satellites.iter().enumerate() {
             let field = |f: &str| format!("satellites[{i}].{f}");
             if !(n.priority.is_finite() && n.priority > 0.0) {
-                return Err((field("priority"), format!("{} must be positive", n.priority)));
+                return Err((
+                    field("priority"),
+                    format!("{} must be positive", n.priority),
+                ));
             }
             if !(n.min_contact_s.is_finite() && n.min_contact_s >= 0.0) {
-                return Err((field("min_contact_s"), format!("{} must not be negative", n.min_contact_s)));
+                return Err((
+                    field("min_contact_s"),
+                    format!("{} must not be negative", n.min_contact_s),
+                ));
             }
-            for (f, v) in [("contacts_per_day", n.contacts_per_day), ("downlink_mb_per_day", n.downlink_mb_per_day)] {
-                if let Some(v) = v {
-                    if !(v.is_finite() && v >= 0.0) {
-                        return Err((field(f), format!("{v} must not be negative")));
-                    }
+            for (f, v) in [
+                ("contacts_per_day", n.contacts_per_day),
+                ("downlink_mb_per_day", n.downlink_mb_per_day),
+            ] {
+                if let Some(v) = v
+                    && !(v.is_finite() && v >= 0.0)
+                {
+                    return Err((field(f), format!("{v} must not be negative")));
                 }
             }
         }
@@ -295,15 +325,24 @@ impl Scenario {
             for (i, r) in refs.iter().enumerate() {
                 let field = |f: &str| format!("{list}[{i}].{f}");
                 let Some(station) = self.stations.iter().find(|s| s.name == r.station) else {
-                    return Err((field("station"), format!("{:?} is not one of the scenario's stations", r.station)));
+                    return Err((
+                        field("station"),
+                        format!("{:?} is not one of the scenario's stations", r.station),
+                    ));
                 };
                 if let Some(a) = &r.antenna
                     && !station.antennas.iter().any(|x| &x.name == a)
                 {
-                    return Err((field("antenna"), format!("{a:?} is not an antenna of station {:?}", station.name)));
+                    return Err((
+                        field("antenna"),
+                        format!("{a:?} is not an antenna of station {:?}", station.name),
+                    ));
                 }
                 if !(r.tolerance_s.is_finite() && r.tolerance_s >= 0.0) {
-                    return Err((field("tolerance_s"), format!("{} must not be negative", r.tolerance_s)));
+                    return Err((
+                        field("tolerance_s"),
+                        format!("{} must not be negative", r.tolerance_s),
+                    ));
                 }
                 if !r.aos.is_finite() {
                     return Err((field("aos"), "is not a finite time".into()));
@@ -312,7 +351,10 @@ impl Scenario {
         }
         let sc = &self.screening;
         if !(sc.threshold_km.is_finite() && sc.threshold_km > 0.0) {
-            return Err(("screening.threshold_km".into(), format!("{} must be positive", sc.threshold_km)));
+            return Err((
+                "screening.threshold_km".into(),
+                format!("{} must be positive", sc.threshold_km),
+            ));
         }
         if !(sc.default_hard_body_radius_m.is_finite() && sc.default_hard_body_radius_m > 0.0) {
             return Err((
@@ -370,7 +412,8 @@ fn field_path_at(text: &str, line: usize, column: usize) -> String {
                     }
                     i += 1;
                 }
-                last_string = Some(String::from_utf8_lossy(&bytes[start..i.min(bytes.len())]).into_owned());
+                last_string =
+                    Some(String::from_utf8_lossy(&bytes[start..i.min(bytes.len())]).into_owned());
             }
             b':' => {
                 if let Some(Frame::Obj(key)) = stack.last_mut() {

@@ -479,7 +479,11 @@ fn demo_plan_respects_the_network() {
             .find(|s| s.catalog_number == c.catalog_number)
             .unwrap();
         let prop = Propagator::new(set).unwrap();
-        let station = scenario.stations.iter().find(|s| s.name == "Northfell").unwrap();
+        let station = scenario
+            .stations
+            .iter()
+            .find(|s| s.name == "Northfell")
+            .unwrap();
         let site = station.site();
         for when in [c.aos.add_s(0.05), c.los.add_s(-0.05)] {
             let el =
