@@ -47,6 +47,9 @@ fn main() -> ExitCode {
         "track" => (cli::passes_cmd::TRACK_USAGE, run_or_help(rest, cli::passes_cmd::TRACK_USAGE, &mut out, cli::passes_cmd::run_track)),
         "screen" => (cli::screen_cmd::USAGE, run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run)),
         "cdm" => (cli::screen_cmd::CDM_USAGE, run_or_help(rest, cli::screen_cmd::CDM_USAGE, &mut out, cli::screen_cmd::run_cdm)),
+        // Hidden: a test kills this process in the middle of saves (see
+        // tests/hardening.rs); not a user command, so not in the help.
+        "__write-stress" => ("passlane __write-stress PATH [BYTES]", cli::write_stress::run(rest, &mut out)),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);

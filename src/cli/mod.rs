@@ -7,3 +7,4 @@ pub mod elements_cmd;
 pub mod ephemeris_cmd;
 pub mod passes_cmd;
 pub mod screen_cmd;
+pub mod write_stress;
