@@ -90,6 +90,12 @@ fn main() -> ExitCode {
             cli::plan_cmd::USAGE,
             run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run),
         ),
+        // Hidden: a test kills this process in the middle of saves (see
+        // tests/hardening.rs); not a user command, so not in the help.
+        "__write-stress" => (
+            "passlane __write-stress PATH [BYTES]",
+            cli::write_stress::run(rest, &mut out),
+        ),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);

@@ -44,6 +44,9 @@ pub fn join_paths(paths: &[PathBuf]) -> String {
 
 /// Reads and validates a scenario file.
 pub fn load_scenario(path: &Path) -> Result<Scenario> {
+    // A save of this scenario that was interrupted (crash, power loss) leaves
+    // a temporary beside it; the scenario itself is intact, so clear them.
+    passlane_files::remove_stale_temporaries(path);
     let bytes = passlane_files::read_limited(path, 64 * 1024 * 1024)
         .with_context(|| format!("cannot read scenario {}", path.display()))?;
     let text = String::from_utf8(bytes).map_err(|e| {

@@ -8,3 +8,4 @@ pub mod ephemeris_cmd;
 pub mod passes_cmd;
 pub mod plan_cmd;
 pub mod screen_cmd;
+pub mod write_stress;

@@ -284,6 +284,8 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
                 },
             )?;
             let path = dir.join(format!("{message_id}.cdm"));
+            // Temporaries from an interrupted earlier run would otherwise pile up.
+            passlane_files::remove_stale_temporaries(&path);
             passlane_files::write_atomic_with(&path, |w| {
                 let mut buf = Vec::new();
                 cdm.write_kvn(&mut buf)?;

@@ -1,0 +1,225 @@
+//! Hostile input to the element loader: each case must end in diagnostics,
+//! never a panic, a hang or memory out of proportion to the input.
+//!
+//! The giant-file case (50 MB) lives in `huge_input.rs`, a test binary of its
+//! own, so that its peak-memory figure is not mixed with these tests'.
+
+#![allow(clippy::unwrap_used)]
+
+use passlane_orbit::elements::{LoadOptions, LoadReport, load};
+
+const STRICT: LoadOptions = LoadOptions { lenient: false };
+const LENIENT: LoadOptions = LoadOptions { lenient: true };
+
+const HERON: [&str; 3] = [
+    "KRSL-1 HERON",
+    "1 90001U 26901A   26335.21354167  .00000876  00000-0  21000-3 0  9993",
+    "2 90001  97.4021  45.1200 0010170  88.1000 272.0000 15.20279803 12341",
+];
+
+fn heron() -> String {
+    HERON.join("\n") + "\n"
+}
+
+/// Loads in both modes and insists on at least one error diagnostic with a
+/// message, and on nothing loaded.
+fn rejected(name: &str, bytes: &[u8]) -> LoadReport {
+    for options in [STRICT, LENIENT] {
+        let r = load(bytes, "hostile", options);
+        assert!(r.sets.is_empty(), "{name}: loaded {:?}", r.sets);
+        assert!(r.errors().count() >= 1, "{name}: no error");
+        assert!(r.errors().all(|d| !d.message.is_empty()), "{name}");
+    }
+    load(bytes, "hostile", STRICT)
+}
+
+#[test]
+fn a_ten_megabyte_line_without_newline() {
+    for first in [b'A', b'1', b'2', b'<', b'[', b'{'] {
+        let mut bytes = vec![first];
+        bytes.resize(10 * 1024 * 1024, b'7');
+        let r = rejected("10 MB line", &bytes);
+        // Messages quote an excerpt, never the whole line.
+        assert!(r.diagnostics.iter().all(|d| d.message.len() < 1000), "{:?}", r.diagnostics);
+    }
+    // With CCSDS_OMM_VERS somewhere inside, the KVN reader gets it.
+    let mut bytes = b"X".repeat(5 * 1024 * 1024);
+    bytes.extend_from_slice(b"CCSDS_OMM_VERS");
+    bytes.extend(b"Y".repeat(5 * 1024 * 1024));
+    let r = rejected("10 MB KVN line", &bytes);
+    assert!(r.diagnostics.iter().all(|d| d.message.len() < 1000), "{:?}", r.diagnostics);
+}
+
+#[test]
+fn a_ten_megabyte_line_between_good_records() {
+    let mut text = heron().into_bytes();
+    text.extend(b"x".repeat(10 * 1024 * 1024));
+    text.push(b'\n');
+    text.extend_from_slice(heron().as_bytes());
+    let r = load(&text, "mixed", STRICT);
+    assert_eq!(r.sets.len(), 1, "the good record survives: {:?}", r.diagnostics);
+    assert_eq!(r.errors().count(), 1, "{:?}", r.diagnostics);
+    assert_eq!(r.errors().next().unwrap().line, 4);
+}
+
+#[test]
+fn nul_bytes_and_invalid_utf8() {
+    rejected("NULs", &vec![0u8; 1024 * 1024]);
+    rejected("NUL lines", &b"\0\0\0\n".repeat(10_000));
+    rejected("invalid UTF-8", &[0xff, 0xfe, 0xfd, b'\n', 0xc3, 0x28, b'\n'].repeat(1000));
+    for prefix in [&b"<"[..], b"[", b"{", b"CCSDS_OMM_VERS = 2.0\n"] {
+        let mut bytes = prefix.to_vec();
+        bytes.extend_from_slice(&[0xff, 0x00, 0xc3, 0x28]);
+        rejected("invalid UTF-8 in OMM", &bytes);
+    }
+    // A TLE with a NUL inside a field is rejected, the next record loads.
+    let mut bad = heron().into_bytes();
+    bad[40] = 0;
+    bad.extend_from_slice(heron().replace("KRSL-1", "KRSL-1B").as_bytes());
+    let r = load(&bad, "nul", STRICT);
+    assert!(r.errors().count() >= 1);
+}
+
+#[test]
+fn deeply_nested_json() {
+    for depth in [200, 100_000] {
+        let mut bytes = "[".repeat(depth).into_bytes();
+        bytes.extend("]".repeat(depth).bytes());
+        rejected("nested arrays", &bytes);
+        let mut bytes = b"[".to_vec();
+        bytes.extend("{\"a\":".repeat(depth).bytes());
+        bytes.extend("}".repeat(depth).bytes());
+        bytes.push(b']');
+        rejected("nested objects", &bytes);
+        // Unbalanced: the file ends inside the nesting.
+        rejected("unbalanced", "[".repeat(depth).as_bytes());
+    }
+}
+
+#[test]
+fn deeply_nested_xml() {
+    for depth in [200, 100_000] {
+        let mut text = "<a>".repeat(depth);
+        text.push_str(&"</a>".repeat(depth));
+        rejected("nested XML", text.as_bytes());
+    }
+}
+
+/// OMM fields holding numbers, with HERON's values.
+const NUMERIC: [(&str, &str); 13] = [
+    ("MEAN_MOTION", "15.20279803"),
+    ("ECCENTRICITY", "0.0010170"),
+    ("INCLINATION", "97.4021"),
+    ("RA_OF_ASC_NODE", "45.1200"),
+    ("ARG_OF_PERICENTER", "88.1000"),
+    ("MEAN_ANOMALY", "272.0000"),
+    ("EPHEMERIS_TYPE", "0"),
+    ("NORAD_CAT_ID", "90001"),
+    ("ELEMENT_SET_NO", "999"),
+    ("REV_AT_EPOCH", "1234"),
+    ("BSTAR", "0.00021"),
+    ("MEAN_MOTION_DOT", "0.00000876"),
+    ("MEAN_MOTION_DDOT", "0"),
+];
+
+const TEXT: [(&str, &str); 7] = [
+    ("OBJECT_NAME", "KRSL-1 HERON"),
+    ("OBJECT_ID", "2026-901A"),
+    ("CENTER_NAME", "EARTH"),
+    ("REF_FRAME", "TEME"),
+    ("TIME_SYSTEM", "UTC"),
+    ("MEAN_ELEMENT_THEORY", "SGP4"),
+    ("EPOCH", "2026-12-01T05:07:30.000288"),
+];
+
+fn pairs_with(key: &str, value: &str) -> Vec<(&'static str, String)> {
+    TEXT.iter()
+        .chain(NUMERIC.iter())
+        .chain([("CLASSIFICATION_TYPE", "U")].iter())
+        .map(|(k, v)| (*k, if *k == key { value.to_string() } else { v.to_string() }))
+        .collect()
+}
+
+fn kvn(pairs: &[(&str, String)]) -> String {
+    let mut s = String::from("CCSDS_OMM_VERS = 2.0\nCREATION_DATE = 2026-12-01T00:00:00\nORIGINATOR = TEST\n");
+    for (k, v) in pairs {
+        s.push_str(&format!("{k} = {v}\n"));
+    }
+    s
+}
+
+fn xml(pairs: &[(&str, String)]) -> String {
+    let body: String = pairs.iter().map(|(k, v)| format!("<{k}>{v}</{k}>\n")).collect();
+    // The reader looks elements up by name; the grouping elements of the
+    // standard are kept so the document has its usual shape.
+    format!(
+        "<?xml version=\"1.0\"?>\n<ndm><omm id=\"CCSDS_OMM_VERS\" version=\"2.0\">\n<header/>\n<body><segment>\n<metadata/>\n<data>\n{body}</data>\n</segment></body></omm></ndm>\n"
+    )
+}
+
+fn json(pairs: &[(&str, String)], bare: &str) -> String {
+    let body: Vec<String> = pairs
+        .iter()
+        .map(|(k, v)| {
+            if *k == bare {
+                format!("\"{k}\": {v}")
+            } else {
+                format!("\"{k}\": \"{v}\"")
+            }
+        })
+        .collect();
+    format!("[{{{}}}]", body.join(",\n"))
+}
+
+#[test]
+fn the_good_record_loads_in_every_rendering() {
+    // Guards the test helpers: with no change, each rendering loads HERON.
+    let pairs = pairs_with("", "");
+    for (name, text) in [("kvn", kvn(&pairs)), ("xml", xml(&pairs)), ("json", json(&pairs, ""))] {
+        let r = load(text.as_bytes(), name, STRICT);
+        assert_eq!(r.sets.len(), 1, "{name}: {:?}", r.diagnostics);
+    }
+}
+
+#[test]
+fn overflowing_and_non_numbers_in_every_numeric_omm_field() {
+    for (field, _) in NUMERIC {
+        for value in ["1e309", "-1e309", "NaN", "nan", "inf", "-Infinity", "1e-400000", "99999999999999999999"] {
+            let pairs = pairs_with(field, value);
+            for (format, text) in [
+                ("kvn", kvn(&pairs)),
+                ("xml", xml(&pairs)),
+                ("json string", json(&pairs, "")),
+                ("json bare", json(&pairs, field)),
+            ] {
+                let r = load(text.as_bytes(), format, STRICT);
+                let case = format!("{format} {field} = {value}");
+                // 1e-400000 underflows to 0, a finite value that may be valid
+                // (e.g. for BSTAR); everything else must be refused.
+                if value == "1e-400000" {
+                    continue;
+                }
+                assert!(r.sets.is_empty(), "{case}: loaded");
+                assert!(r.errors().count() >= 1, "{case}: no error");
+            }
+        }
+    }
+}
+
+#[test]
+fn tle_fields_with_words_and_overflow() {
+    // Column edits keep the line length; the checksum is then wrong too, so
+    // lenient mode is used to reach the field parser.
+    let cases = [
+        (1, 21, "NaN.00000000"), // epoch
+        (1, 34, "inf.0000"),    // mean motion dot, columns 34-43
+        (2, 53, "NaN.0000000"), // mean motion, columns 53-63
+        (2, 9, "NaN.0000"),     // inclination
+    ];
+    for (which, col, text) in cases {
+        let mut lines: Vec<String> = HERON.iter().map(|s| s.to_string()).collect();
+        lines[which].replace_range(col - 1..col - 1 + text.len(), text);
+        let bytes = (lines.join("\n") + "\n").into_bytes();
+        rejected(&format!("line {which} col {col} {text}"), &bytes);
+    }
+}

@@ -1,0 +1,211 @@
+//! Hostile input to the CDM and scenario readers: each case ends in an error
+//! that says where and why, never a panic, a hang or runaway memory. Also the
+//! scenario's format versions: older layouts load, newer ones are refused.
+
+#![allow(clippy::unwrap_used)]
+
+use passlane_plan::Scenario;
+use passlane_plan::cdm::Cdm;
+use passlane_plan::scenario::SCENARIO_FORMAT_VERSION;
+
+const GOOD_CDM: &str = include_str!("fixtures/cdm/heron_vs_debris_99871.kvn");
+const DEMO_SCENARIO: &str = include_str!("../../../scenarios/demo.json");
+
+/// Values no numeric field may accept.
+const NOT_FINITE: [&str; 7] = ["1e309", "-1e309", "NaN", "nan", "inf", "-Infinity", "1.0e99999"];
+
+#[test]
+fn the_fixtures_read() {
+    Cdm::parse(GOOD_CDM, "good.kvn").unwrap();
+    Scenario::from_json(DEMO_SCENARIO, "demo.json").unwrap();
+}
+
+#[test]
+fn cdm_overflowing_and_non_numbers_in_every_numeric_field() {
+    let lines: Vec<&str> = GOOD_CDM.lines().collect();
+    let mut checked = 0;
+    for (i, line) in lines.iter().enumerate() {
+        let Some((key, rest)) = line.split_once('=') else {
+            continue;
+        };
+        let value = rest.split('[').next().unwrap().trim();
+        if value.parse::<f64>().is_err() {
+            continue;
+        }
+        let key = key.trim();
+        for bad in NOT_FINITE {
+            let unit = rest.find('[').map_or("", |p| &rest[p..]);
+            let mut edited = lines.clone();
+            let replaced = format!("{key} = {bad} {unit}");
+            edited[i] = &replaced;
+            let text = edited.join("\n");
+            match Cdm::parse(&text, "bad.kvn") {
+                Err(e) => {
+                    assert_eq!(e.line, i + 1, "{key} = {bad}: {e}");
+                    assert!(!e.reason.is_empty());
+                }
+                // Keywords whose values are text by the standard (a version,
+                // a designator) may hold any word.
+                Ok(cdm) => {
+                    assert!(
+                        matches!(key, "CCSDS_CDM_VERS" | "OBJECT_DESIGNATOR"),
+                        "{key} = {bad} was accepted"
+                    );
+                    let _ = cdm.recompute(10.0);
+                }
+            }
+        }
+        checked += 1;
+    }
+    assert!(checked > 40, "only {checked} numeric keywords found");
+}
+
+#[test]
+fn cdm_giant_line_nul_bytes_and_control_characters() {
+    let giant = format!("CCSDS_CDM_VERS = 1.0\nCOMMENT {}\n", "x".repeat(10 * 1024 * 1024));
+    let e = Cdm::parse(&giant, "giant.kvn").unwrap_err();
+    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    let no_newline = "A".repeat(10 * 1024 * 1024);
+    let e = Cdm::parse(&no_newline, "giant.kvn").unwrap_err();
+    assert_eq!(e.line, 1);
+    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    let nul = "\0".repeat(1024 * 1024);
+    assert!(Cdm::parse(&nul, "nul.kvn").is_err());
+    let with_nul = GOOD_CDM.replacen("1000 [m]", "10\u{0}00 [m]", 1);
+    assert!(Cdm::parse(&with_nul, "nul.kvn").is_err());
+    assert!(Cdm::parse("", "empty.kvn").is_err());
+    // Every line repeated many times: refused at the first repeat, at once.
+    let repeated = GOOD_CDM.repeat(2000);
+    assert!(Cdm::parse(&repeated, "repeated.kvn").is_err());
+}
+
+/// Replaces every number in the scenario, one at a time, by `bad` (raw JSON
+/// text) and checks that the reader refuses it with a field path.
+#[test]
+fn scenario_overflowing_and_non_numbers_in_every_numeric_field() {
+    let demo: serde_json::Value = serde_json::from_str(DEMO_SCENARIO).unwrap();
+    let mut paths = Vec::new();
+    numeric_paths(&demo, &mut Vec::new(), &mut paths);
+    assert!(paths.len() > 30, "only {} numbers found", paths.len());
+    for path in &paths {
+        for bad in NOT_FINITE.iter().chain(&["\"NaN\"", "1e308"]) {
+            let mut edited = demo.clone();
+            *pointer_mut(&mut edited, path) = serde_json::Value::String("@BAD@".into());
+            let text = serde_json::to_string_pretty(&edited)
+                .unwrap()
+                .replace("\"@BAD@\"", bad);
+            let result = Scenario::from_json(&text, "bad.json");
+            if *bad == "1e308" {
+                // Finite: may be valid (a huge frequency) or refused by
+                // validation; either way no panic.
+                continue;
+            }
+            let e = match result {
+                Err(e) => e,
+                Ok(_) => panic!("{path:?} = {bad} was accepted"),
+            };
+            assert!(!e.message.is_empty());
+            if path[0] == "format_version" {
+                continue;
+            }
+            // Invalid JSON is reported by line and column; a wrong type by
+            // field path.
+            assert!(e.line > 0 || !e.field.is_empty(), "{path:?} = {bad}: {e}");
+        }
+    }
+}
+
+fn numeric_paths(v: &serde_json::Value, at: &mut Vec<String>, out: &mut Vec<Vec<String>>) {
+    match v {
+        serde_json::Value::Number(_) => out.push(at.clone()),
+        serde_json::Value::Array(a) => {
+            for (i, x) in a.iter().enumerate() {
+                at.push(i.to_string());
+                numeric_paths(x, at, out);
+                at.pop();
+            }
+        }
+        serde_json::Value::Object(o) => {
+            for (k, x) in o {
+                at.push(k.clone());
+                numeric_paths(x, at, out);
+                at.pop();
+            }
+        }
+        _ => {}
+    }
+}
+
+fn pointer_mut<'a>(v: &'a mut serde_json::Value, path: &[String]) -> &'a mut serde_json::Value {
+    let pointer: String = path.iter().map(|p| format!("/{p}")).collect();
+    v.pointer_mut(&pointer).unwrap()
+}
+
+#[test]
+fn scenario_deep_nesting_giant_strings_and_junk() {
+    for depth in [200, 100_000] {
+        let text = format!(
+            "{{\"format_version\": 1, \"stations\": {}{}}}",
+            "[".repeat(depth),
+            "]".repeat(depth)
+        );
+        let e = Scenario::from_json(&text, "deep.json").unwrap_err();
+        assert!(e.message.contains("JSON") || !e.field.is_empty(), "{e}");
+        let text = format!("{{\"format_version\": 1, \"name\": {}", "{\"a\":".repeat(depth));
+        assert!(Scenario::from_json(&text, "deep.json").is_err());
+    }
+    let giant_name = format!("{{\"format_version\": 1, \"name\": \"{}\"", "n".repeat(10 * 1024 * 1024));
+    let e = Scenario::from_json(&giant_name, "giant.json").unwrap_err();
+    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    let no_newline = "x".repeat(10 * 1024 * 1024);
+    assert!(Scenario::from_json(&no_newline, "giant.json").is_err());
+    assert!(Scenario::from_json(&"\0".repeat(1024 * 1024), "nul.json").is_err());
+    assert!(Scenario::from_json("", "empty.json").is_err());
+    // A huge array of stations that are all invalid is refused, naming the first.
+    let many = format!(
+        "{{\"format_version\": 1, \"stations\": [{}]}}",
+        vec!["{\"name\": \"A\", \"latitude_deg\": 95, \"longitude_deg\": 0}"; 100_000].join(",")
+    );
+    let e = Scenario::from_json(&many, "many.json").unwrap_err();
+    assert_eq!(e.field, "stations[0].latitude_deg", "{e}");
+}
+
+#[test]
+fn scenario_older_layout_loads_with_defaults() {
+    // The first published layout held only the version, name, element files
+    // and stations; everything added since has a default.
+    let text = r#"{
+        "format_version": 1,
+        "name": "minimal",
+        "element_files": ["fleet.tle"],
+        "stations": [{"name": "A", "latitude_deg": 10, "longitude_deg": 20}]
+    }"#;
+    let s = Scenario::from_json(text, "old.json").unwrap();
+    assert_eq!(s.format_version, SCENARIO_FORMAT_VERSION);
+    assert_eq!(s.stations.len(), 1);
+    assert!(s.window.is_none());
+    assert_eq!(s.screening, passlane_plan::scenario::ScreeningSettings::default());
+    // Written back, it carries the current version and reads again unchanged.
+    let back = Scenario::from_json(&s.to_json(), "old.json").unwrap();
+    assert_eq!(back, s);
+}
+
+#[test]
+fn scenario_versions_outside_the_known_range_are_refused_clearly() {
+    for (version, words) in [
+        ((SCENARIO_FORMAT_VERSION + 1).to_string(), "newer"),
+        ("4294967296".to_string(), "newer"),
+        ("0".to_string(), "not a valid"),
+        ("-1".to_string(), "whole number"),
+        ("1.5".to_string(), "whole number"),
+        ("\"1\"".to_string(), "whole number"),
+        ("null".to_string(), "whole number"),
+    ] {
+        let text = format!("{{\"format_version\": {version}}}");
+        let e = Scenario::from_json(&text, "v.json").unwrap_err();
+        assert_eq!(e.field, "format_version", "{version}: {e}");
+        assert!(e.message.contains(words), "{version}: {e}");
+    }
+    let e = Scenario::from_json("{\"name\": \"no version\"}", "v.json").unwrap_err();
+    assert_eq!(e.field, "format_version", "{e}");
+}

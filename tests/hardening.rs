@@ -1,0 +1,177 @@
+//! The binary under hostile conditions: files that are not what they claim
+//! to be, and a process killed in the middle of a save.
+
+#![allow(clippy::unwrap_used)]
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
+use std::time::{Duration, Instant};
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("passlane-hardening-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn passlane(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_passlane"))
+        .args(args)
+        .stdin(Stdio::null())
+        .output()
+        .unwrap()
+}
+
+/// Runs the CLI on a hostile file: it must fail or warn, in words, without a
+/// panic and within a few seconds.
+fn refuses(args: &[&str]) -> String {
+    let started = Instant::now();
+    let out = passlane(args);
+    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(!stderr.contains("panicked at"), "passlane {args:?} panicked: {stderr}");
+    assert!(!out.status.success() || !stderr.is_empty(), "passlane {args:?}: no diagnostics");
+    assert!(!stderr.trim().is_empty(), "passlane {args:?}: silent");
+    assert!(started.elapsed() < Duration::from_secs(60), "passlane {args:?} took {:?}", started.elapsed());
+    stderr
+}
+
+#[test]
+fn the_cli_refuses_hostile_files_in_words() {
+    let dir = scratch("hostile");
+    let mut files: Vec<(&str, Vec<u8>)> = vec![
+        ("nul.tle", vec![0u8; 100_000]),
+        ("invalid-utf8.tle", [0xffu8, 0xfe, b'\n', 0xc3, 0x28].repeat(1000)),
+        ("one-line.tle", b"1".repeat(10 * 1024 * 1024)),
+        ("deep.json", "[".repeat(100_000).into_bytes()),
+        ("nan.kvn", b"CCSDS_OMM_VERS = 2.0\nOBJECT_NAME = X\nMEAN_MOTION = NaN\n".to_vec()),
+        ("overflow.xml", b"<ndm><omm><MEAN_MOTION>1e309</MEAN_MOTION></omm></ndm>".to_vec()),
+        ("empty.tle", Vec::new()),
+    ];
+    files.push(("scenario-deep.json", format!("{{\"format_version\":1,\"stations\":{}", "[".repeat(100_000)).into_bytes()));
+    files.push(("scenario-nul.json", vec![0u8; 1000]));
+    files.push(("scenario-bad-utf8.json", vec![b'{', 0xff, b'}']));
+    files.push(("scenario-newer.json", b"{\"format_version\": 99}".to_vec()));
+    files.push(("cdm-nul.kvn", vec![0u8; 1000]));
+    files.push(("cdm-nan.kvn", b"CCSDS_CDM_VERS = 1.0\nMISS_DISTANCE = NaN [m]\n".to_vec()));
+    files.push(("cdm-bad-utf8.kvn", vec![b'C', 0xff, b'\n']));
+    for (name, bytes) in &files {
+        std::fs::write(dir.join(name), bytes).unwrap();
+    }
+    let p = |name: &str| dir.join(name).display().to_string();
+    for name in ["nul.tle", "invalid-utf8.tle", "one-line.tle", "deep.json", "nan.kvn", "overflow.xml", "empty.tle"] {
+        let stderr = refuses(&["elements", &p(name)]);
+        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+    }
+    for name in ["scenario-deep.json", "scenario-nul.json", "scenario-bad-utf8.json", "scenario-newer.json"] {
+        let stderr = refuses(&["passes", "--scenario", &p(name)]);
+        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+    }
+    for name in ["cdm-nul.kvn", "cdm-nan.kvn", "cdm-bad-utf8.kvn"] {
+        let stderr = refuses(&["cdm", &p(name)]);
+        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+    }
+    // A path that is a directory, and one that does not exist.
+    refuses(&["elements", &dir.display().to_string()]);
+    refuses(&["cdm", &p("missing.kvn")]);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// Parses `passlane-write-stress ROUND CHECKSUM` and checks the body against it.
+fn intact(bytes: &[u8]) -> Result<u64, String> {
+    let newline = bytes.iter().position(|&b| b == b'\n').ok_or("no header line")?;
+    let header = std::str::from_utf8(&bytes[..newline]).map_err(|_| "header not UTF-8")?;
+    let parts: Vec<&str> = header.split(' ').collect();
+    let [tag, round, sum] = parts.as_slice() else {
+        return Err(format!("bad header {header:?}"));
+    };
+    if *tag != "passlane-write-stress" {
+        return Err(format!("bad header {header:?}"));
+    }
+    let want = u64::from_str_radix(sum, 16).map_err(|_| "bad checksum text")?;
+    let got = fnv1a64(&bytes[newline + 1..]);
+    if got != want {
+        return Err(format!("checksum mismatch in round {round}: torn file"));
+    }
+    round.parse().map_err(|_| "bad round".to_string())
+}
+
+/// Same as the binary's (src/cli/write_stress.rs).
+fn fnv1a64(bytes: &[u8]) -> u64 {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for &b in bytes {
+        h ^= u64::from(b);
+        h = h.wrapping_mul(0x0000_0100_0000_01b3);
+    }
+    h
+}
+
+fn temporaries(dir: &Path) -> Vec<String> {
+    std::fs::read_dir(dir)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| n.contains(passlane_files::TEMP_MARKER))
+        .collect()
+}
+
+#[test]
+fn a_save_killed_at_random_points_leaves_the_old_or_the_new_file() {
+    let dir = scratch("kill");
+    let target = dir.join("scenario.json");
+    let target_arg = target.display().to_string();
+    // A small xorshift generator with a fixed seed: the same kill times on
+    // every run, spread over a save's duration.
+    let mut state: u64 = 0x2545_f491_4f6c_dd1d;
+    let mut next = || {
+        state ^= state << 13;
+        state ^= state >> 7;
+        state ^= state << 17;
+        state
+    };
+    let mut saw_temporary = false;
+    let mut rounds_seen = std::collections::BTreeSet::new();
+    for kill in 0..12 {
+        let mut child = Command::new(env!("CARGO_BIN_EXE_passlane"))
+            .args(["__write-stress", &target_arg, "2000000"])
+            .stdin(Stdio::null())
+            .stdout(Stdio::null())
+            .stderr(Stdio::piped())
+            .spawn()
+            .unwrap();
+        let wait_ms = 20 + next() % 300;
+        std::thread::sleep(Duration::from_millis(wait_ms));
+        saw_temporary |= !temporaries(&dir).is_empty();
+        // SIGKILL: no destructor, no flush, no cleanup runs in the child.
+        child.kill().unwrap();
+        let status = child.wait().unwrap();
+        assert!(!status.success(), "kill {kill}: the child finished before it was killed");
+        if target.exists() {
+            let bytes = std::fs::read(&target).unwrap();
+            match intact(&bytes) {
+                Ok(round) => {
+                    rounds_seen.insert(round);
+                }
+                Err(e) => panic!("kill {kill} after {wait_ms} ms: {e}"),
+            }
+        }
+    }
+    assert!(target.exists(), "no save completed in any run");
+    // The next start clears what the killed saves left behind.
+    passlane_files::remove_stale_temporaries(&target);
+    assert_eq!(temporaries(&dir), Vec::<String>::new());
+    intact(&std::fs::read(&target).unwrap()).unwrap();
+    eprintln!("rounds seen after kills: {rounds_seen:?}; temporary seen mid-save: {saw_temporary}");
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn the_cli_clears_stale_temporaries_before_reading_a_scenario() {
+    let dir = scratch("stale");
+    let scenario = dir.join("s.json");
+    std::fs::write(&scenario, "{\"format_version\": 1}").unwrap();
+    let stale = dir.join(format!(".s.json{}12345-0", passlane_files::TEMP_MARKER));
+    std::fs::write(&stale, "half a save").unwrap();
+    let _ = passlane(&["passes", "--scenario", &scenario.display().to_string()]);
+    assert!(!stale.exists(), "the stale temporary is still there");
+    std::fs::remove_dir_all(&dir).unwrap();
+}
