@@ -21,20 +21,47 @@
 //!      under [`ScreeningSettings::interpolation_tolerance_km`]); everything
 //!      before the final evaluation uses the interpolant. Time is processed in
 //!      chunks so memory stays bounded whatever the window length.
-//!   3. **Spatial hash per time step.** The window is cut into steps of
+//!   3. **Spatial grid per time step.** The window is cut into steps of
 //!      [`ScreeningSettings::hash_step_s`]. At each step's midpoint every object
-//!      is put in a cubic cell of side L = D + m + (v₁ + v₂ + a·h)·h/2, where D
-//!      is the volume's bounding radius, m the interpolation margin, v₁, v₂ the
-//!      two largest speeds at that instant, a a bound on acceleration and h the
-//!      step. A pair closer than D at any time in the step is closer than L at
-//!      the midpoint, so it sits in the same or a neighbouring cell; the 27
-//!      neighbouring cells are searched.
+//!      is put in a cubic cell of side L = D + m + (v₁ + v₂)·h/2, where D is the
+//!      volume's bounding radius, m the interpolation margin, h the step and
+//!      v₁, v₂ the two largest speed bounds of the time chunk (one per set in
+//!      fleet-vs-catalog mode). Each object's speed bound is the largest norm
+//!      of the Bézier control points of its interpolant's velocity, which holds
+//!      the velocity in their convex hull. All-vs-all, cells are sorted keys and
+//!      the 13 forward neighbour cells are found with monotone pointers; a pair
+//!      is then cut at d + (vᵢ + vⱼ)·h/2 with its own speed bounds. Fleet vs
+//!      catalog, only the fleet goes into the grid (each fleet object in its
+//!      cell and the 26 around it) and each catalog object looks up its own
+//!      cell, after a radial-band test against the fleet's radii.
 //!   4. **Pair test and TCA.** Candidates pass a linear-motion bound, then the
 //!      roots of Δr·Δv on the interpolant inside the step give the minima.
 //!   5. **Final evaluation with direct SGP4**: Newton on Δr·Δv refines the TCA
 //!      to well under 1 ms; miss distance, RIC and states come from SGP4 at the
 //!      TCA, not from the interpolant; entry and exit of the volume are
 //!      root-found with SGP4 too.
+//!
+//! # Why no event is missed
+//! Every discarding step uses a bound, never a sample:
+//! - Shells: SGP4's radius stays within the padded perigee/apogee shell (short
+//!   period terms and decay are in the padding), and two objects closer than D
+//!   have radii within D of each other.
+//! - Interpolation: the interpolant is within m of SGP4 at every instant (m is
+//!   the per-object allowance, checked against SGP4 in the tests), so a pair
+//!   within D in SGP4 is within D + m on the interpolant.
+//! - Grid: on the interpolant, |Δr(t) − Δr(t_mid)| ≤ (vᵢ + vⱼ)·|t − t_mid| with
+//!   the hull speed bounds, so a pair within D + m at some time of the step is
+//!   within L of each other at the midpoint, hence in neighbouring cells, and
+//!   passes the per-pair cut. The radial band drops only objects whose radius
+//!   differs from every fleet object's by more than L, which by the triangle
+//!   inequality are farther than L from all of them.
+//! - Pair test: the linear-motion closest approach is padded by the largest
+//!   possible relative acceleration over half a step; the Δr·Δv sign test on
+//!   four sub-intervals of each step finds every minimum (a minimum and a
+//!   maximum of the distance are far more than a quarter step apart).
+//!
+//! The test `fast_screening_equals_brute_force_reference` and the benchmark's
+//! 2,000-object case check the result against brute-force sampling.
 //!
 //! An event is a local minimum of the distance whose relative position at TCA
 //! lies inside the volume; a pair can have many over a window. Minima at the
@@ -697,7 +724,8 @@ struct Candidate {
 struct Scratch {
     states: Vec<Option<Sample>>,
     keys: Vec<(u64, u32)>,
-    cell_lists: HashMap<u64, Vec<u32>, BuildHasherDefault<CellHasher>>,
+    /// Fleet mode: range of `keys` holding each cell's primaries.
+    cell_ranges: HashMap<u64, (u32, u32), BuildHasherDefault<CellHasher>>,
 }
 
 /// A fast multiplicative hasher for packed cell keys (not for untrusted input).
@@ -914,28 +942,57 @@ impl ChunkContext<'_> {
         let mut out = Vec::new();
         let states = &scratch.states;
         if self.cross {
-            let lists = &mut scratch.cell_lists;
-            lists.values_mut().for_each(Vec::clear);
+            // The primaries (the small set) go into their cell and the 26
+            // around it, as a sorted list with a map from cell to its range;
+            // the map is emptied, not rebuilt, so its table is reused.
+            let entries = &mut scratch.keys;
+            entries.clear();
+            let (mut r_min_km, mut r_max_km) = (f64::INFINITY, 0.0f64);
             for (i, o) in self.flat.hot.iter().enumerate() {
                 let (0, Some(s)) = (o.group, &states[i]) else {
                     continue;
                 };
+                let r = norm(&s.pos_km);
+                r_min_km = r_min_km.min(r);
+                r_max_km = r_max_km.max(r);
                 let c = cell_of(&s.pos_km, inv);
                 for dx in -1..=1 {
                     for dy in -1..=1 {
                         for dz in -1..=1 {
-                            let k = key_of([c[0] + dx, c[1] + dy, c[2] + dz]);
-                            lists.entry(k).or_default().push(i as u32);
+                            entries.push((key_of([c[0] + dx, c[1] + dy, c[2] + dz]), i as u32));
                         }
                     }
                 }
             }
+            entries.sort_unstable();
+            let ranges = &mut scratch.cell_ranges;
+            ranges.clear();
+            let mut s0 = 0;
+            while s0 < entries.len() {
+                let mut e0 = s0 + 1;
+                while e0 < entries.len() && entries[e0].0 == entries[s0].0 {
+                    e0 += 1;
+                }
+                ranges.insert(entries[s0].0, (s0 as u32, e0 as u32));
+                s0 = e0;
+            }
+            // Radial band: a secondary whose distance from the Earth's centre
+            // differs from every primary's by more than a cell is farther
+            // than a cell from all of them (triangle inequality), so the
+            // lookup can be skipped.
+            let band_lo_km = r_min_km - cell_km;
+            let band_hi_km = r_max_km + cell_km;
+            let (band_lo2, band_hi2) = (band_lo_km.max(0.0).powi(2), band_hi_km * band_hi_km);
             for (j, o) in self.flat.hot.iter().enumerate() {
                 let (1, Some(s)) = (o.group, &states[j]) else {
                     continue;
                 };
-                if let Some(list) = lists.get(&key_of(cell_of(&s.pos_km, inv))) {
-                    for &i in list {
+                let r2 = dot(&s.pos_km, &s.pos_km);
+                if r2 < band_lo2 || r2 > band_hi2 {
+                    continue;
+                }
+                if let Some(&(lo, hi)) = ranges.get(&key_of(cell_of(&s.pos_km, inv))) {
+                    for &(_, i) in &entries[lo as usize..hi as usize] {
                         self.pair(i as usize, j, a, b, reach_km, cell_km, states, &mut out);
                     }
                 }
