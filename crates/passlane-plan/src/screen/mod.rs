@@ -69,11 +69,14 @@
 //!
 //! # Cost
 //! Measured with `benches/screening.rs` (synthetic 30,000-object catalog, 10 km
-//! sphere, 2 shared cores under heavy load from other builds): 2,000 objects
-//! over 6 h in 0.4 s, 220× faster than 10 s brute force with identical events;
-//! 30,000 all-vs-all over 24 h in ~70 s (207,000 events: the synthetic LEO shell
-//! is dense); 100 vs 30,000 over 7 days in ~86 s. The per-step hash and pair
-//! tests dominate; see the benchmark's phase timings.
+//! sphere, 30 s hash step, 2 cores shared with other builds, so wall time is
+//! about twice what the CPU time over two cores would give):
+//! - 30,000 all-vs-all over 24 h: 25.2 s CPU, 40 s wall (207,421 events: the
+//!   synthetic LEO shell is dense; peak memory 228 MB);
+//! - 100 vs 30,000 over 7 days: 22.0 s CPU, 45 s wall (18,176 objects removed by
+//!   the shell filter; SGP4 sampling of the 12,000 others is about a third);
+//! - 2,000 objects over 6 h: 0.21 s CPU, 163× less CPU than brute-force
+//!   sampling at 10 s, identical events.
 //!
 //! # What it deliberately does not do
 //! - No collision probability (no covariance here) and no manoeuvre planning.
