@@ -49,7 +49,7 @@ fn main() -> ExitCode {
         "cdm" => (cli::screen_cmd::CDM_USAGE, run_or_help(rest, cli::screen_cmd::CDM_USAGE, &mut out, cli::screen_cmd::run_cdm)),
         // Hidden: a test kills this process in the middle of saves (see
         // tests/hardening.rs); not a user command, so not in the help.
-        "__write-stress" => ("passlane __write-stress PATH [BYTES]", cli::write_stress::run(rest, &mut out)),
+        "__write-stress" => ("passlane __write-stress PATH [BYTES [FIRST_ROUND]]", cli::write_stress::run(rest, &mut out)),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);
