@@ -18,6 +18,7 @@ usage:
   passlane track ...             pointing table (az/el/range/Doppler) of one pass
   passlane screen ...            close approaches in a fleet or against a catalog, with Pc
   passlane cdm FILE              re-assess a CCSDS conjunction data message
+  passlane plan ...              network contact plan; calendar, pointing and OEM files
 
 Run `passlane COMMAND --help` for a command's options.
 Times are ISO 8601 UTC, e.g. 2026-12-01T12:00:00Z.
@@ -41,15 +42,60 @@ fn main() -> ExitCode {
             println!("{HELP}");
             return ExitCode::SUCCESS;
         }
-        "elements" => (cli::elements_cmd::USAGE, run_or_help(rest, cli::elements_cmd::USAGE, &mut out, cli::elements_cmd::run)),
-        "ephemeris" => (cli::ephemeris_cmd::USAGE, run_or_help(rest, cli::ephemeris_cmd::USAGE, &mut out, cli::ephemeris_cmd::run)),
-        "passes" => (cli::passes_cmd::USAGE, run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run)),
-        "track" => (cli::passes_cmd::TRACK_USAGE, run_or_help(rest, cli::passes_cmd::TRACK_USAGE, &mut out, cli::passes_cmd::run_track)),
-        "screen" => (cli::screen_cmd::USAGE, run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run)),
-        "cdm" => (cli::screen_cmd::CDM_USAGE, run_or_help(rest, cli::screen_cmd::CDM_USAGE, &mut out, cli::screen_cmd::run_cdm)),
+        "elements" => (
+            cli::elements_cmd::USAGE,
+            run_or_help(
+                rest,
+                cli::elements_cmd::USAGE,
+                &mut out,
+                cli::elements_cmd::run,
+            ),
+        ),
+        "ephemeris" => (
+            cli::ephemeris_cmd::USAGE,
+            run_or_help(
+                rest,
+                cli::ephemeris_cmd::USAGE,
+                &mut out,
+                cli::ephemeris_cmd::run,
+            ),
+        ),
+        "passes" => (
+            cli::passes_cmd::USAGE,
+            run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run),
+        ),
+        "track" => (
+            cli::passes_cmd::TRACK_USAGE,
+            run_or_help(
+                rest,
+                cli::passes_cmd::TRACK_USAGE,
+                &mut out,
+                cli::passes_cmd::run_track,
+            ),
+        ),
+        "screen" => (
+            cli::screen_cmd::USAGE,
+            run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run),
+        ),
+        "cdm" => (
+            cli::screen_cmd::CDM_USAGE,
+            run_or_help(
+                rest,
+                cli::screen_cmd::CDM_USAGE,
+                &mut out,
+                cli::screen_cmd::run_cdm,
+            ),
+        ),
+        "plan" => (
+            cli::plan_cmd::USAGE,
+            run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run),
+        ),
         // Hidden: a test kills this process in the middle of saves (see
         // tests/hardening.rs); not a user command, so not in the help.
-        "__write-stress" => ("passlane __write-stress PATH [BYTES [FIRST_ROUND]]", cli::write_stress::run(rest, &mut out)),
+        "__write-stress" => (
+            "passlane __write-stress PATH [BYTES [FIRST_ROUND]]",
+            cli::write_stress::run(rest, &mut out),
+        ),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);

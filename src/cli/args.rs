@@ -41,10 +41,16 @@ impl RawArgs {
                     };
                     out.options.push((name, Some(value)));
                 } else {
-                    let mut known: Vec<String> =
-                        with_value.iter().chain(switches).map(|s| format!("--{s}")).collect();
+                    let mut known: Vec<String> = with_value
+                        .iter()
+                        .chain(switches)
+                        .map(|s| format!("--{s}"))
+                        .collect();
                     known.sort();
-                    bail!("unknown option --{name}; this command takes: {}", known.join(" "));
+                    bail!(
+                        "unknown option --{name}; this command takes: {}",
+                        known.join(" ")
+                    );
                 }
             } else {
                 out.positionals.push(a.clone());

@@ -49,8 +49,13 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     passlane_files::remove_stale_temporaries(path);
     let bytes = passlane_files::read_limited(path, 64 * 1024 * 1024)
         .with_context(|| format!("cannot read scenario {}", path.display()))?;
-    let text = String::from_utf8(bytes)
-        .map_err(|e| anyhow::anyhow!("{}: not UTF-8 text (byte {})", path.display(), e.utf8_error().valid_up_to()))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        anyhow::anyhow!(
+            "{}: not UTF-8 text (byte {})",
+            path.display(),
+            e.utf8_error().valid_up_to()
+        )
+    })?;
     Ok(Scenario::from_json(&text, &path.display().to_string())?)
 }
 
@@ -67,7 +72,9 @@ pub fn resolve(scenario_path: &Path, file: &str) -> PathBuf {
 pub fn parse_time(args: &RawArgs, name: &str) -> Result<Option<UtcTime>> {
     match args.value(name) {
         None => Ok(None),
-        Some(v) => Ok(Some(UtcTime::parse_iso(v).map_err(|e| anyhow::anyhow!("--{name}: {e}"))?)),
+        Some(v) => Ok(Some(
+            UtcTime::parse_iso(v).map_err(|e| anyhow::anyhow!("--{name}: {e}"))?,
+        )),
     }
 }
 
@@ -90,11 +97,12 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
         }
         None => None,
     };
-    let mut element_paths: Vec<PathBuf> = args.values("elements").iter().map(PathBuf::from).collect();
-    if element_paths.is_empty() {
-        if let Some((p, s)) = &scenario {
-            element_paths = s.element_files.iter().map(|f| resolve(p, f)).collect();
-        }
+    let mut element_paths: Vec<PathBuf> =
+        args.values("elements").iter().map(PathBuf::from).collect();
+    if element_paths.is_empty()
+        && let Some((p, s)) = &scenario
+    {
+        element_paths = s.element_files.iter().map(|f| resolve(p, f)).collect();
     }
     if element_paths.is_empty() {
         bail!("no element sets: give --elements FILE (or --scenario FILE with element_files)");
@@ -104,13 +112,15 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
     for s in args.values("station") {
         stations.push(Station::parse_inline(s).map_err(|e| anyhow::anyhow!("--station: {e}"))?);
     }
-    if stations.is_empty() {
-        if let Some((_, s)) = &scenario {
-            stations = s.stations.clone();
-        }
+    if stations.is_empty()
+        && let Some((_, s)) = &scenario
+    {
+        stations = s.stations.clone();
     }
     if need_stations && stations.is_empty() {
-        bail!("no stations: give --station NAME,LAT_DEG,LON_DEG,HEIGHT_M (repeatable) or --scenario FILE");
+        bail!(
+            "no stations: give --station NAME,LAT_DEG,LON_DEG,HEIGHT_M (repeatable) or --scenario FILE"
+        );
     }
     let window = scenario.as_ref().and_then(|(_, s)| s.window);
     let start = parse_time(args, "start")?.or(window.map(|w| w.start));
@@ -136,24 +146,32 @@ pub fn window(inputs: &Inputs) -> Result<(UtcTime, UtcTime)> {
 
 /// Picks one satellite by catalog number or (case-insensitive) name.
 pub fn pick_satellite<'a>(sets: &'a [ElementSet], key: &str) -> Result<&'a ElementSet> {
-    if let Ok(n) = key.trim().parse::<u32>() {
-        if let Some(s) = sets.iter().find(|s| s.catalog_number == n) {
-            return Ok(s);
-        }
+    if let Ok(n) = key.trim().parse::<u32>()
+        && let Some(s) = sets.iter().find(|s| s.catalog_number == n)
+    {
+        return Ok(s);
     }
     let lower = key.trim().to_lowercase();
-    let matches: Vec<&ElementSet> = sets.iter().filter(|s| s.name.to_lowercase() == lower).collect();
+    let matches: Vec<&ElementSet> = sets
+        .iter()
+        .filter(|s| s.name.to_lowercase() == lower)
+        .collect();
     match matches.as_slice() {
         [one] => Ok(one),
         [] => {
-            let partial: Vec<&ElementSet> =
-                sets.iter().filter(|s| s.name.to_lowercase().contains(&lower)).collect();
+            let partial: Vec<&ElementSet> = sets
+                .iter()
+                .filter(|s| s.name.to_lowercase().contains(&lower))
+                .collect();
             match partial.as_slice() {
                 [one] => Ok(one),
                 [] => bail!("no satellite named or numbered {key:?}"),
                 many => bail!(
                     "{key:?} matches several satellites: {}",
-                    many.iter().map(|s| s.name.as_str()).collect::<Vec<_>>().join(", ")
+                    many.iter()
+                        .map(|s| s.name.as_str())
+                        .collect::<Vec<_>>()
+                        .join(", ")
                 ),
             }
         }

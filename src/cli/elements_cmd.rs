@@ -88,7 +88,14 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             writeln!(
                 out,
                 "{:<24} {:>9}  {:<20} {:>8}  {:>8}  {:>17}  {:>7}  {:>9}",
-                "name", "catalog", "epoch (UTC)", "age d", "period", "perigee x apogee", "incl", "ecc"
+                "name",
+                "catalog",
+                "epoch (UTC)",
+                "age d",
+                "period",
+                "perigee x apogee",
+                "incl",
+                "ecc"
             )?;
             writeln!(
                 out,

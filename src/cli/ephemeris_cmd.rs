@@ -41,7 +41,17 @@ enum Frame {
 pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(
         argv,
-        &["elements", "scenario", "start", "end", "step-s", "frame", "format", "satellite", "ut1-utc-s"],
+        &[
+            "elements",
+            "scenario",
+            "start",
+            "end",
+            "step-s",
+            "frame",
+            "format",
+            "satellite",
+            "ut1-utc-s",
+        ],
         &["lenient"],
     )?;
     let inputs = common::gather(&args, false)?;
@@ -59,7 +69,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let format = common::format(&args, Format::Csv, &[Format::Csv, Format::Json])?;
     let eop = EarthOrientation {
         ut1_utc_s: args.f64_value("ut1-utc-s")?.unwrap_or(
-            inputs.scenario.as_ref().map(|(_, s)| s.earth_orientation.ut1_utc_s).unwrap_or(0.0),
+            inputs
+                .scenario
+                .as_ref()
+                .map(|(_, s)| s.earth_orientation.ut1_utc_s)
+                .unwrap_or(0.0),
         ),
         ..EarthOrientation::default()
     };
@@ -69,7 +83,10 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     };
     let grid = TimeGrid::covering(start, end, step_s);
     if grid.count > 50_000_000 / sets.len().max(1) {
-        bail!("{} samples per satellite is too many: raise --step-s or shorten the window", grid.count);
+        bail!(
+            "{} samples per satellite is too many: raise --step-s or shorten the window",
+            grid.count
+        );
     }
     let mut rows = Vec::new();
     let mut failures = 0;
@@ -130,20 +147,38 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         }
         _ => {
             if frame == Frame::Geodetic {
-                writeln!(out, "catalog_number,time,latitude_deg,longitude_deg,altitude_km")?;
+                writeln!(
+                    out,
+                    "catalog_number,time,latitude_deg,longitude_deg,altitude_km"
+                )?;
             } else {
-                writeln!(out, "catalog_number,time,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s")?;
+                writeln!(
+                    out,
+                    "catalog_number,time,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s"
+                )?;
             }
             for r in &rows {
                 match r {
-                    Row::Cartesian { catalog_number, time, position_km: p, velocity_km_s: v } => writeln!(
+                    Row::Cartesian {
+                        catalog_number,
+                        time,
+                        position_km: p,
+                        velocity_km_s: v,
+                    } => writeln!(
                         out,
                         "{catalog_number},{time},{:.6},{:.6},{:.6},{:.9},{:.9},{:.9}",
                         p[0], p[1], p[2], v[0], v[1], v[2]
                     )?,
-                    Row::Geodetic { catalog_number, time, latitude_deg, longitude_deg, altitude_km } => {
-                        writeln!(out, "{catalog_number},{time},{latitude_deg:.6},{longitude_deg:.6},{altitude_km:.6}")?
-                    }
+                    Row::Geodetic {
+                        catalog_number,
+                        time,
+                        latitude_deg,
+                        longitude_deg,
+                        altitude_km,
+                    } => writeln!(
+                        out,
+                        "{catalog_number},{time},{latitude_deg:.6},{longitude_deg:.6},{altitude_km:.6}"
+                    )?,
                 }
             }
         }

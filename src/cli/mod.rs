@@ -6,5 +6,6 @@ pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;
 pub mod passes_cmd;
+pub mod plan_cmd;
 pub mod screen_cmd;
 pub mod write_stress;

@@ -16,7 +16,14 @@ pub const TRACK_USAGE: &str = "passlane track --elements FILE --station ... --sa
 [--step-s S] [--format csv|json] [--ut1-utc-s S]";
 
 const OPTIONS: &[&str] = &[
-    "elements", "scenario", "station", "start", "end", "min-elevation", "format", "ut1-utc-s",
+    "elements",
+    "scenario",
+    "station",
+    "start",
+    "end",
+    "min-elevation",
+    "format",
+    "ut1-utc-s",
 ];
 
 fn earth_orientation(args: &RawArgs, inputs: &Inputs) -> Result<EarthOrientation> {
@@ -38,12 +45,16 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(argv, OPTIONS, &["lenient"])?;
     let inputs = common::gather(&args, true)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Csv, Format::Json])?;
+    let format = common::format(
+        &args,
+        Format::Table,
+        &[Format::Table, Format::Csv, Format::Json],
+    )?;
     let min_el = args.f64_value("min-elevation")?;
-    if let Some(m) = min_el {
-        if !(-5.0..90.0).contains(&m) {
-            bail!("--min-elevation {m}: expected -5 to 90 degrees");
-        }
+    if let Some(m) = min_el
+        && !(-5.0..90.0).contains(&m)
+    {
+        bail!("--min-elevation {m}: expected -5 to 90 degrees");
     }
     let options = PassOptions {
         start,
@@ -61,7 +72,14 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             writeln!(out)?;
         }
         Format::Csv => write_csv(out, &report.passes)?,
-        Format::Table => write_table(out, &report.passes, start, end, inputs.sets.len(), inputs.stations.len())?,
+        Format::Table => write_table(
+            out,
+            &report.passes,
+            start,
+            end,
+            inputs.sets.len(),
+            inputs.stations.len(),
+        )?,
     }
     Ok(())
 }
@@ -128,7 +146,17 @@ fn write_table(
     writeln!(
         out,
         "{:<16} {:<14} {:<20} {:<8} {:<8} {:>6} {:>6} {:>6} {:>6}  {:<4} {:<9} notes",
-        "spacecraft", "station", "AOS (UTC)", "max at", "LOS", "dur", "max el", "AOS az", "LOS az", "dir", "sun"
+        "spacecraft",
+        "station",
+        "AOS (UTC)",
+        "max at",
+        "LOS",
+        "dur",
+        "max el",
+        "AOS az",
+        "LOS az",
+        "dir",
+        "sun"
     )?;
     let mut day = String::new();
     for p in passes {
@@ -195,7 +223,17 @@ fn write_table(
 pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(
         argv,
-        &["elements", "scenario", "station", "satellite", "pass-start", "step-s", "format", "ut1-utc-s", "min-elevation"],
+        &[
+            "elements",
+            "scenario",
+            "station",
+            "satellite",
+            "pass-start",
+            "step-s",
+            "format",
+            "ut1-utc-s",
+            "min-elevation",
+        ],
         &["lenient"],
     )?;
     let inputs = common::gather(&args, true)?;
@@ -224,12 +262,22 @@ pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
         earth_orientation: eop,
         min_elevation_deg: args.f64_value("min-elevation")?,
     };
-    let report = find_passes(std::slice::from_ref(sat), std::slice::from_ref(station), &options, &Silent);
+    let report = find_passes(
+        std::slice::from_ref(sat),
+        std::slice::from_ref(station),
+        &options,
+        &Silent,
+    );
     let pass = report
         .passes
         .iter()
         .find(|p| p.aos <= at.add_s(1e-3) && at <= p.los)
-        .or_else(|| report.passes.iter().find(|p| p.aos >= at && p.aos.s_since(at) <= 1800.0));
+        .or_else(|| {
+            report
+                .passes
+                .iter()
+                .find(|p| p.aos >= at && p.aos.s_since(at) <= 1800.0)
+        });
     let Some(pass) = pass else {
         bail!(
             "{} is not above {}'s horizon at {} and no pass starts within 30 minutes after it",
@@ -245,7 +293,10 @@ pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
             writeln!(out)?;
         }
         _ => {
-            write!(out, "time,azimuth_deg,elevation_deg,range_km,range_rate_km_s")?;
+            write!(
+                out,
+                "time,azimuth_deg,elevation_deg,range_km,range_rate_km_s"
+            )?;
             for c in &station.channels {
                 write!(out, ",{}_hz", csv_field(&c.name.replace(' ', "_")))?;
             }

@@ -8,7 +8,9 @@ use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{AssumedCovariance, CdmContext, EventRisk, assess, event_to_cdm};
-use passlane_plan::screen::{CloseApproach, ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress};
+use passlane_plan::screen::{
+    CloseApproach, ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
+};
 use serde::Serialize;
 
 use super::args::RawArgs;
@@ -63,33 +65,64 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(
         argv,
         &[
-            "elements", "catalog", "scenario", "start", "end", "threshold-km", "box-km", "ellipsoid-km",
-            "hard-body-radius-m", "format", "cdm-dir", "originator",
+            "elements",
+            "catalog",
+            "scenario",
+            "start",
+            "end",
+            "threshold-km",
+            "box-km",
+            "ellipsoid-km",
+            "hard-body-radius-m",
+            "format",
+            "cdm-dir",
+            "originator",
         ],
         &["all-vs-all", "lenient", "quiet"],
     )?;
     let inputs = common::gather(&args, false)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Csv, Format::Json])?;
+    let format = common::format(
+        &args,
+        Format::Table,
+        &[Format::Table, Format::Csv, Format::Json],
+    )?;
     let scenario = inputs.scenario.as_ref().map(|(_, s)| s);
     let defaults = scenario.map(|s| s.screening.clone()).unwrap_or_default();
-    let threshold_km = args.f64_value("threshold-km")?.unwrap_or(defaults.threshold_km);
-    if !(threshold_km > 0.0) {
+    let threshold_km = args
+        .f64_value("threshold-km")?
+        .unwrap_or(defaults.threshold_km);
+    if threshold_km <= 0.0 {
         bail!("--threshold-km must be positive");
     }
     let volume = match (three(&args, "box-km")?, three(&args, "ellipsoid-km")?) {
         (Some(_), Some(_)) => bail!("give --box-km or --ellipsoid-km, not both"),
-        (Some([r, i, c]), None) => ScreeningVolume::Box { radial_km: r, in_track_km: i, cross_track_km: c },
-        (None, Some([r, i, c])) => ScreeningVolume::Ellipsoid { radial_km: r, in_track_km: i, cross_track_km: c },
-        (None, None) => ScreeningVolume::Sphere { radius_km: threshold_km },
+        (Some([r, i, c]), None) => ScreeningVolume::Box {
+            radial_km: r,
+            in_track_km: i,
+            cross_track_km: c,
+        },
+        (None, Some([r, i, c])) => ScreeningVolume::Ellipsoid {
+            radial_km: r,
+            in_track_km: i,
+            cross_track_km: c,
+        },
+        (None, None) => ScreeningVolume::Sphere {
+            radius_km: threshold_km,
+        },
     };
-    let mut catalog_paths: Vec<PathBuf> = args.values("catalog").iter().map(PathBuf::from).collect();
-    if catalog_paths.is_empty() && !args.flag("all-vs-all") {
-        if let Some((p, s)) = &inputs.scenario {
-            if args.values("elements").is_empty() {
-                catalog_paths = s.catalog_files.iter().map(|f| common::resolve(p, f)).collect();
-            }
-        }
+    let mut catalog_paths: Vec<PathBuf> =
+        args.values("catalog").iter().map(PathBuf::from).collect();
+    if catalog_paths.is_empty()
+        && !args.flag("all-vs-all")
+        && let Some((p, s)) = &inputs.scenario
+        && args.values("elements").is_empty()
+    {
+        catalog_paths = s
+            .catalog_files
+            .iter()
+            .map(|f| common::resolve(p, f))
+            .collect();
     }
     let catalog: Option<Vec<ElementSet>> = if catalog_paths.is_empty() {
         None
@@ -97,15 +130,16 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         Some(common::load_fleet(&catalog_paths, args.flag("lenient"))?)
     };
     // All-vs-all: the catalog (or the element files) against itself.
-    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) = if args.flag("all-vs-all") {
-        let mut all = inputs.sets.clone();
-        if let Some(c) = catalog {
-            all.extend(c);
-        }
-        (all, None)
-    } else {
-        (inputs.sets.clone(), catalog)
-    };
+    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) =
+        if args.flag("all-vs-all") {
+            let mut all = inputs.sets.clone();
+            if let Some(c) = catalog {
+                all.extend(c);
+            }
+            (all, None)
+        } else {
+            (inputs.sets.clone(), catalog)
+        };
     // The fleet screens against itself too: fleet-vs-catalog adds the catalog.
     let request = ScreeningRequest {
         primaries: &primaries,
@@ -132,15 +166,18 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         eprintln!("\rscreening… done ");
     }
     // Fleet-vs-catalog also wants the fleet's own pairs.
-    if secondaries.is_some() && !args.flag("all-vs-all") {
-        if primaries.len() > 1 {
-            let own = screen_with_progress(
-                &ScreeningRequest { secondaries: None, ..request },
-                &|_| true,
-            );
-            result.events.extend(own.events);
-            result.events.sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
-        }
+    if secondaries.is_some() && !args.flag("all-vs-all") && primaries.len() > 1 {
+        let own = screen_with_progress(
+            &ScreeningRequest {
+                secondaries: None,
+                ..request
+            },
+            &|_| true,
+        );
+        result.events.extend(own.events);
+        result
+            .events
+            .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
     }
     for d in &result.diagnostics {
         eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
@@ -165,10 +202,14 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         .events
         .iter()
         .map(|e| {
-            let (Some(p), Some(s)) = (by_number.get(&e.primary_catalog_number), by_number.get(&e.secondary_catalog_number)) else {
+            let (Some(p), Some(s)) = (
+                by_number.get(&e.primary_catalog_number),
+                by_number.get(&e.secondary_catalog_number),
+            ) else {
                 return Err("element set not found".to_string());
             };
-            let hbr = hbr_override.unwrap_or(hbr_of(e.primary_catalog_number) + hbr_of(e.secondary_catalog_number));
+            let hbr = hbr_override
+                .unwrap_or(hbr_of(e.primary_catalog_number) + hbr_of(e.secondary_catalog_number));
             assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
         })
         .collect();
@@ -202,15 +243,30 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         .collect();
     if let Some(dir) = args.value("cdm-dir") {
         let dir = PathBuf::from(dir);
-        std::fs::create_dir_all(&dir).with_context(|| format!("cannot create {}", dir.display()))?;
+        std::fs::create_dir_all(&dir)
+            .with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::from_chrono(chrono::Utc::now());
         let originator = args.value("originator").unwrap_or("PASSLANE");
         for (k, (e, r)) in result.events.iter().zip(&risks).enumerate() {
-            let (Some(p), Some(s)) = (by_number.get(&e.primary_catalog_number), by_number.get(&e.secondary_catalog_number)) else {
+            let (Some(p), Some(s)) = (
+                by_number.get(&e.primary_catalog_number),
+                by_number.get(&e.secondary_catalog_number),
+            ) else {
                 continue;
             };
-            let stamp: String = e.tca.to_iso_s().chars().filter(|c| c.is_ascii_digit()).collect();
-            let message_id = format!("{}_{}_{}_{}", e.primary_catalog_number, e.secondary_catalog_number, stamp, k + 1);
+            let stamp: String = e
+                .tca
+                .to_iso_s()
+                .chars()
+                .filter(|c| c.is_ascii_digit())
+                .collect();
+            let message_id = format!(
+                "{}_{}_{}_{}",
+                e.primary_catalog_number,
+                e.secondary_catalog_number,
+                stamp,
+                k + 1
+            );
             let cdm = event_to_cdm(
                 e,
                 p,
@@ -237,7 +293,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             })
             .with_context(|| format!("cannot write {}", path.display()))?;
         }
-        eprintln!("wrote {} CDM file(s) to {}", result.events.len(), dir.display());
+        eprintln!(
+            "wrote {} CDM file(s) to {}",
+            result.events.len(),
+            dir.display()
+        );
     }
     match format {
         Format::Json => {
@@ -279,13 +339,25 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
                 start.to_iso_s(),
                 end.to_iso_s(),
                 primaries.len(),
-                secondaries.as_ref().map(|s| format!(" vs {} catalog object(s)", s.len())).unwrap_or_default(),
+                secondaries
+                    .as_ref()
+                    .map(|s| format!(" vs {} catalog object(s)", s.len()))
+                    .unwrap_or_default(),
                 describe_volume(&volume)
             )?;
             writeln!(
                 out,
                 "{:<16} {:<16} {:<24} {:>9} {:>9} {:>9} {:>9} {:>8} {:>10} {:>10}",
-                "primary", "secondary", "TCA (UTC)", "miss km", "R km", "I km", "C km", "v km/s", "Pc*", "Pc max"
+                "primary",
+                "secondary",
+                "TCA (UTC)",
+                "miss km",
+                "R km",
+                "I km",
+                "C km",
+                "v km/s",
+                "Pc*",
+                "Pc max"
             )?;
             for r in &rows {
                 let e = r.event;
@@ -300,8 +372,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
                     e.in_track_km,
                     e.cross_track_km,
                     e.relative_speed_km_s,
-                    r.pc.map(|p| format!("{p:.2e}")).unwrap_or_else(|| "-".into()),
-                    r.pc_max.map(|p| format!("{p:.2e}")).unwrap_or_else(|| "-".into()),
+                    r.pc.map(|p| format!("{p:.2e}"))
+                        .unwrap_or_else(|| "-".into()),
+                    r.pc_max
+                        .map(|p| format!("{p:.2e}"))
+                        .unwrap_or_else(|| "-".into()),
                 )?;
             }
             writeln!(
@@ -309,8 +384,14 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
                 "\n{} event(s). R/I/C: secondary relative to primary in the primary's radial/in-track/cross-track frame.",
                 rows.len()
             )?;
-            writeln!(out, "*Pc with {label}; combined hard-body radius per event (see --format json).")?;
-            writeln!(out, "Pc max: largest probability over the covariance's size, the honest figure for element sets.")?;
+            writeln!(
+                out,
+                "*Pc with {label}; combined hard-body radius per event (see --format json)."
+            )?;
+            writeln!(
+                out,
+                "Pc max: largest probability over the covariance's size, the honest figure for element sets."
+            )?;
             writeln!(out, "{CAUTION}")?;
         }
     }
@@ -320,10 +401,18 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
 fn describe_volume(v: &ScreeningVolume) -> String {
     match *v {
         ScreeningVolume::Sphere { radius_km } => format!("sphere {radius_km} km"),
-        ScreeningVolume::Box { radial_km, in_track_km, cross_track_km } => {
+        ScreeningVolume::Box {
+            radial_km,
+            in_track_km,
+            cross_track_km,
+        } => {
             format!("box ±{radial_km}/{in_track_km}/{cross_track_km} km (R/I/C)")
         }
-        ScreeningVolume::Ellipsoid { radial_km, in_track_km, cross_track_km } => {
+        ScreeningVolume::Ellipsoid {
+            radial_km,
+            in_track_km,
+            cross_track_km,
+        } => {
             format!("ellipsoid {radial_km}/{in_track_km}/{cross_track_km} km (R/I/C)")
         }
     }
@@ -337,32 +426,70 @@ pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
     let bytes = passlane_files::read_limited(std::path::Path::new(file), 16 * 1024 * 1024)
         .with_context(|| format!("cannot read {file}"))?;
-    let text = String::from_utf8(bytes).map_err(|e| anyhow::anyhow!("{file}: not UTF-8 text (byte {})", e.utf8_error().valid_up_to()))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        anyhow::anyhow!(
+            "{file}: not UTF-8 text (byte {})",
+            e.utf8_error().valid_up_to()
+        )
+    })?;
     let cdm = Cdm::parse(&text, file)?;
     let hbr = args.f64_value("hard-body-radius-m")?.unwrap_or(10.0);
-    if !(hbr > 0.0) {
+    if hbr <= 0.0 {
         bail!("--hard-body-radius-m must be positive");
     }
-    let a = cdm.recompute(hbr).map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
+    let a = cdm
+        .recompute(hbr)
+        .map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
     match format {
         Format::Json => {
             serde_json::to_writer_pretty(&mut *out, &a)?;
             writeln!(out)?;
         }
         _ => {
-            writeln!(out, "CDM {} from {} ({})", cdm.header.message_id, cdm.header.originator, cdm.header.creation_date)?;
-            writeln!(out, "  object 1: {} ({})", cdm.object1.object_name, cdm.object1.object_designator)?;
-            writeln!(out, "  object 2: {} ({})", cdm.object2.object_name, cdm.object2.object_designator)?;
+            writeln!(
+                out,
+                "CDM {} from {} ({})",
+                cdm.header.message_id, cdm.header.originator, cdm.header.creation_date
+            )?;
+            writeln!(
+                out,
+                "  object 1: {} ({})",
+                cdm.object1.object_name, cdm.object1.object_designator
+            )?;
+            writeln!(
+                out,
+                "  object 2: {} ({})",
+                cdm.object2.object_name, cdm.object2.object_designator
+            )?;
             writeln!(out, "  TCA                {}", a.tca)?;
-            writeln!(out, "  miss distance      {:.1} m (CDM says {:.1} m)", a.miss_distance_m, a.cdm_miss_distance_m)?;
-            writeln!(out, "  R / T / N          {:.1} / {:.1} / {:.1} m", a.radial_m, a.in_track_m, a.cross_track_m)?;
-            writeln!(out, "  relative speed     {:.1} m/s, approach angle {:.1}°", a.relative_speed_m_s, a.approach_angle_deg)?;
-            writeln!(out, "  encounter plane    miss ({:.1}, {:.1}) m, sigma ({:.1}, {:.1}) m, hard-body radius {:.1} m",
-                a.miss_x_m, a.miss_y_m, a.sigma_x_m, a.sigma_y_m, a.hard_body_radius_m)?;
+            writeln!(
+                out,
+                "  miss distance      {:.1} m (CDM says {:.1} m)",
+                a.miss_distance_m, a.cdm_miss_distance_m
+            )?;
+            writeln!(
+                out,
+                "  R / T / N          {:.1} / {:.1} / {:.1} m",
+                a.radial_m, a.in_track_m, a.cross_track_m
+            )?;
+            writeln!(
+                out,
+                "  relative speed     {:.1} m/s, approach angle {:.1}°",
+                a.relative_speed_m_s, a.approach_angle_deg
+            )?;
+            writeln!(
+                out,
+                "  encounter plane    miss ({:.1}, {:.1}) m, sigma ({:.1}, {:.1}) m, hard-body radius {:.1} m",
+                a.miss_x_m, a.miss_y_m, a.sigma_x_m, a.sigma_y_m, a.hard_body_radius_m
+            )?;
             writeln!(out, "  Pc (2-D integral)  {:.4e}", a.pc)?;
             writeln!(out, "  Pc (Alfano 1-D)    {:.4e}", a.pc_alfano)?;
             writeln!(out, "  Pc (Chan series)   {:.4e}", a.pc_chan)?;
-            writeln!(out, "  Pc max             {:.4e} (over covariance size)", a.pc_max)?;
+            writeln!(
+                out,
+                "  Pc max             {:.4e} (over covariance size)",
+                a.pc_max
+            )?;
             if let Some(p) = a.cdm_collision_probability {
                 writeln!(out, "  CDM's own Pc       {p:.4e}")?;
             }

@@ -41,7 +41,10 @@ pub fn write_atomic_with(
     let n = COUNTER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
     let tmp = dir.join(format!(".{name}{TEMP_MARKER}{}-{n}", std::process::id()));
     let result = (|| {
-        let mut file = fs::OpenOptions::new().write(true).create_new(true).open(&tmp)?;
+        let mut file = fs::OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(&tmp)?;
         {
             let mut buf = io::BufWriter::new(&mut file);
             fill(&mut buf)?;
@@ -69,7 +72,10 @@ pub fn read_limited(path: &Path, limit_bytes: u64) -> io::Result<Vec<u8>> {
     if len > limit_bytes {
         return Err(io::Error::new(
             io::ErrorKind::InvalidData,
-            format!("{} is {len} bytes, larger than the {limit_bytes}-byte limit", path.display()),
+            format!(
+                "{} is {len} bytes, larger than the {limit_bytes}-byte limit",
+                path.display()
+            ),
         ));
     }
     let mut out = Vec::with_capacity(len as usize);
@@ -77,7 +83,10 @@ pub fn read_limited(path: &Path, limit_bytes: u64) -> io::Result<Vec<u8>> {
     if out.len() as u64 > limit_bytes {
         return Err(io::Error::new(
             io::ErrorKind::InvalidData,
-            format!("{} grew past the {limit_bytes}-byte limit while reading", path.display()),
+            format!(
+                "{} grew past the {limit_bytes}-byte limit while reading",
+                path.display()
+            ),
         ));
     }
     Ok(out)

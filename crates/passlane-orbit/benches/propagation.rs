@@ -29,7 +29,11 @@ fn main() {
     let bytes = std::fs::read(repo.join("tests/fixtures/bench-1000.tle")).expect("bench-1000.tle");
     let report = elements::load(&bytes, "bench-1000.tle", LoadOptions::default());
     assert_eq!(report.sets.len(), 1000, "{:?}", report.diagnostics.first());
-    let props: Vec<Propagator> = report.sets.iter().map(|s| Propagator::new(s).expect("elements")).collect();
+    let props: Vec<Propagator> = report
+        .sets
+        .iter()
+        .map(|s| Propagator::new(s).expect("elements"))
+        .collect();
     let grid = TimeGrid {
         start: UtcTime::parse_iso("2026-12-01T00:00:00Z").expect("time"),
         step_s: 60.0,
@@ -38,7 +42,10 @@ fn main() {
     let total = (props.len() * grid.count) as f64;
     let mut results = Vec::new();
     for threads in [1usize, 2] {
-        let pool = rayon::ThreadPoolBuilder::new().num_threads(threads).build().expect("pool");
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .expect("pool");
         let checksum = AtomicU64::new(0);
         let cpu0 = cpu_seconds();
         let t0 = Instant::now();
@@ -75,14 +82,22 @@ fn main() {
                 .and_then(|v| v.parse::<f64>().ok())
         }
         _ => {
-            println!("python3 with sgp4 not available: install scripts/fixtures/requirements.txt for the side-by-side ratio");
+            println!(
+                "python3 with sgp4 not available: install scripts/fixtures/requirements.txt for the side-by-side ratio"
+            );
             None
         }
     };
     if let Some(py) = per_cpu {
         let one = results[0].2;
         let two_wall = results[1].1;
-        println!("ratio per core (1 thread, per CPU-second): {:.2}x python-sgp4 SatrecArray", one / py);
-        println!("ratio on 2 cores (wall throughput vs python per CPU-second): {:.2}x", two_wall / py);
+        println!(
+            "ratio per core (1 thread, per CPU-second): {:.2}x python-sgp4 SatrecArray",
+            one / py
+        );
+        println!(
+            "ratio on 2 cores (wall throughput vs python per CPU-second): {:.2}x",
+            two_wall / py
+        );
     }
 }

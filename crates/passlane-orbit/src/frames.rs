@@ -270,7 +270,11 @@ impl Site {
 
     /// The east/north/up components of an Earth-fixed vector.
     pub fn to_enu(&self, v: &Vec3) -> Vec3 {
-        [dot(&self.enu[0], v), dot(&self.enu[1], v), dot(&self.enu[2], v)]
+        [
+            dot(&self.enu[0], v),
+            dot(&self.enu[1], v),
+            dot(&self.enu[2], v),
+        ]
     }
 
     /// Sine of the elevation of an Earth-fixed position (cheap, no trig).
@@ -358,10 +362,26 @@ mod tests {
     #[test]
     fn geodetic_round_trip_examples() {
         for g in [
-            Geodetic { latitude_deg: 0.0, longitude_deg: 0.0, height_km: 0.0 },
-            Geodetic { latitude_deg: 78.23, longitude_deg: 15.39, height_km: 0.48 },
-            Geodetic { latitude_deg: -45.0, longitude_deg: -170.0, height_km: 800.0 },
-            Geodetic { latitude_deg: 89.9999, longitude_deg: 10.0, height_km: 35786.0 },
+            Geodetic {
+                latitude_deg: 0.0,
+                longitude_deg: 0.0,
+                height_km: 0.0,
+            },
+            Geodetic {
+                latitude_deg: 78.23,
+                longitude_deg: 15.39,
+                height_km: 0.48,
+            },
+            Geodetic {
+                latitude_deg: -45.0,
+                longitude_deg: -170.0,
+                height_km: 800.0,
+            },
+            Geodetic {
+                latitude_deg: 89.9999,
+                longitude_deg: 10.0,
+                height_km: 35786.0,
+            },
         ] {
             let back = earth_fixed_to_geodetic(&geodetic_to_earth_fixed(&g));
             assert!((back.latitude_deg - g.latitude_deg).abs() < 1e-10);

@@ -61,7 +61,10 @@ impl std::fmt::Display for PropagationError {
                 f,
                 "catalog {catalog_number}: the elements cannot start SGP4 (orbit inside the Earth or out of the model's range)"
             ),
-            PropagationError::Diverged { catalog_number, time } => write!(
+            PropagationError::Diverged {
+                catalog_number,
+                time,
+            } => write!(
                 f,
                 "catalog {catalog_number}: SGP4 diverged at {time} (the elements are too old or the orbit has decayed)"
             ),
@@ -188,7 +191,12 @@ impl Propagator {
         // Two tests: the user's altitude (default the ellipsoid surface), and the
         // reference implementation's own decay test, radius below one Earth
         // radius (Vallado et al. 2006, error code 6).
-        if !(altitude_km >= self.decay_altitude_km) || !(r_km >= EARTH_RADIUS_WGS72_KM) {
+        // NaN (a wild state) counts as decayed too.
+        let below = altitude_km.is_nan()
+            || altitude_km < self.decay_altitude_km
+            || r_km.is_nan()
+            || r_km < EARTH_RADIUS_WGS72_KM;
+        if below {
             return Err(PropagationError::Decayed {
                 catalog_number: self.catalog_number,
                 time,
@@ -324,7 +332,9 @@ pub fn propagate_grid(props: &[Propagator], grid: TimeGrid) -> Vec<GridSamples> 
         .par_iter()
         .map(|prop| {
             let mut cursor = prop.cursor();
-            (0..grid.count).map(|k| cursor.state_at(grid.time(k))).collect()
+            (0..grid.count)
+                .map(|k| cursor.state_at(grid.time(k)))
+                .collect()
         })
         .collect()
 }

@@ -73,7 +73,8 @@ pub fn shadow(sat_km: &Vec3, sun_km: &Vec3) -> (Illumination, f64) {
     // Partial overlap of two disks (Montenbruck & Gill eq. 3.87-3.89).
     let x = (c * c + a * a - b * b) / (2.0 * c);
     let y = (a * a - x * x).max(0.0).sqrt();
-    let area = a * a * (x / a).clamp(-1.0, 1.0).acos() + b * b * ((c - x) / b).clamp(-1.0, 1.0).acos()
+    let area = a * a * (x / a).clamp(-1.0, 1.0).acos()
+        + b * b * ((c - x) / b).clamp(-1.0, 1.0).acos()
         - c * y;
     let visible = 1.0 - area / (std::f64::consts::PI * a * a);
     (Illumination::Penumbra, visible.clamp(0.0, 1.0))
@@ -119,6 +120,13 @@ mod tests {
                 seen.push(state);
             }
         }
-        assert_eq!(seen, vec![Illumination::Umbra, Illumination::Penumbra, Illumination::Sunlit]);
+        assert_eq!(
+            seen,
+            vec![
+                Illumination::Umbra,
+                Illumination::Penumbra,
+                Illumination::Sunlit
+            ]
+        );
     }
 }

@@ -128,13 +128,19 @@ impl UtcTime {
             return Ok(Self::from_chrono(dt.with_timezone(&Utc)));
         }
         let naive = t.strip_suffix('Z').unwrap_or(t);
-        for fmt in ["%Y-%m-%dT%H:%M:%S%.f", "%Y-%m-%d %H:%M:%S%.f", "%Y-%m-%dT%H:%M"] {
+        for fmt in [
+            "%Y-%m-%dT%H:%M:%S%.f",
+            "%Y-%m-%d %H:%M:%S%.f",
+            "%Y-%m-%dT%H:%M",
+        ] {
             if let Ok(n) = NaiveDateTime::parse_from_str(naive, fmt) {
                 return Ok(Self::from_naive(n));
             }
         }
         if let Ok(d) = NaiveDate::parse_from_str(naive, "%Y-%m-%d") {
-            return Ok(Self::from_naive(d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?));
+            return Ok(Self::from_naive(
+                d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?,
+            ));
         }
         // Day-of-year form used by some OMM producers: 2026-335T12:00:00.
         if let Ok(n) = NaiveDateTime::parse_from_str(naive, "%Y-%jT%H:%M:%S%.f") {
@@ -168,9 +174,22 @@ impl UtcTime {
 
     /// ISO 8601 UTC with milliseconds and `Z`, rounded to the nearest millisecond.
     pub fn to_iso_ms(self) -> String {
-        let ms_total = (self.s_since_j2000 * 1e3).round() as i64;
-        let n = j2000_noon() + chrono::TimeDelta::milliseconds(ms_total);
-        n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string()
+        // Whole milliseconds since 2000-01-01T00:00:00, split into a day
+        // number and a time of day, then the civil date by Hinnant's
+        // days-to-civil algorithm: exact, and far cheaper than a general
+        // formatter (outputs print thousands of these).
+        let ms = (self.s_since_j2000 * 1e3).round();
+        if !ms.is_finite() || ms.abs() > 1e16 {
+            return "invalid-time".to_string();
+        }
+        let ms_since_midnight_2000 = ms as i64 + 43_200_000;
+        let day = ms_since_midnight_2000.div_euclid(86_400_000);
+        let ms_of_day = ms_since_midnight_2000.rem_euclid(86_400_000);
+        let (y, m, d) = civil_from_days(day + 10_957);
+        let (h, rest) = (ms_of_day / 3_600_000, ms_of_day % 3_600_000);
+        let (min, rest) = (rest / 60_000, rest % 60_000);
+        let (sec, milli) = (rest / 1000, rest % 1000);
+        format!("{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{milli:03}Z")
     }
 
     /// ISO 8601 UTC rounded to the second, without fraction (for tables).
@@ -235,6 +254,21 @@ impl<'de> serde::Deserialize<'de> for UtcTime {
     }
 }
 
+/// Civil date (year, month, day) of a day count from 1970-01-01 (H. Hinnant,
+/// "chrono-Compatible Low-Level Date Algorithms", `civil_from_days`).
+fn civil_from_days(z: i64) -> (i64, i64, i64) {
+    let z = z + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z.rem_euclid(146_097);
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let y = yoe + era * 400;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    (if m <= 2 { y + 1 } else { y }, m, d)
+}
+
 fn j2000_date() -> NaiveDate {
     // Invariant: 2000-01-01 is a valid calendar date.
     NaiveDate::from_ymd_opt(2000, 1, 1).unwrap_or_default()
@@ -280,6 +314,22 @@ mod tests {
         }
         assert!(UtcTime::parse_iso("yesterday").is_err());
         assert!(UtcTime::parse_iso("").is_err());
+    }
+
+    #[test]
+    fn fast_formatter_agrees_with_chrono() {
+        // Every 7,777,777.777 s over 1950–2100, plus day and leap-year edges.
+        let mut t = UtcTime::parse_iso("1950-01-01T00:00:00Z").unwrap();
+        let end = UtcTime::parse_iso("2100-01-01T00:00:00Z").unwrap();
+        while t < end {
+            let ms = (t.s_since_j2000() * 1e3).round() as i64;
+            let n = j2000_noon() + chrono::TimeDelta::milliseconds(ms);
+            assert_eq!(t.to_iso_ms(), n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string());
+            t = t.add_s(7_777_777.777);
+        }
+        for s in ["2000-02-29T23:59:59.999Z", "2100-02-28T00:00:00.000Z", "1999-12-31T23:59:59.999Z"] {
+            assert_eq!(UtcTime::parse_iso(s).unwrap().to_iso_ms(), s);
+        }
     }
 
     #[test]

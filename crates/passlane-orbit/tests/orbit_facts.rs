@@ -46,7 +46,10 @@ fn g_times_earth_mass_is_the_wgs_mu() {
     // memory) give the WGS-84 value 398,600.4418 km³/s² to within the
     // uncertainty of G (~2e-5 relative).
     let mu_km3_s2 = G_M3_KG_S2 * EARTH_MASS_KG / 1e9;
-    assert!((mu_km3_s2 - MU_WGS84_KM3_S2).abs() / MU_WGS84_KM3_S2 < 1e-4, "{mu_km3_s2}");
+    assert!(
+        (mu_km3_s2 - MU_WGS84_KM3_S2).abs() / MU_WGS84_KM3_S2 < 1e-4,
+        "{mu_km3_s2}"
+    );
     assert!((mu_km3_s2 - MU_WGS72_KM3_S2).abs() / MU_WGS72_KM3_S2 < 1e-4);
 }
 
@@ -84,5 +87,7 @@ fn eccentric_orbit_speeds_follow_vis_viva() {
     let rp = a * 0.9;
     let ra = a * 1.1;
     assert!((rp * s.perigee_speed_km_s - ra * s.apogee_speed_km_s).abs() < 1e-6);
-    assert!((vis_viva_speed_km_s(a, a, MU_WGS72_KM3_S2) - (MU_WGS72_KM3_S2 / a).sqrt()).abs() < 1e-12);
+    assert!(
+        (vis_viva_speed_km_s(a, a, MU_WGS72_KM3_S2) - (MU_WGS72_KM3_S2 / a).sqrt()).abs() < 1e-12
+    );
 }

@@ -8,13 +8,19 @@ use passlane_orbit::{EarthOrientation, Geodetic, Site, TemeToEarthFixed, UtcTime
 use serde_json::Value;
 
 fn fixture(name: &str) -> Value {
-    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../../tests/fixtures").join(name);
+    let p = PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("../../tests/fixtures")
+        .join(name);
     serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap()
 }
 
 fn v3(v: &Value) -> [f64; 3] {
     let a = v.as_array().unwrap();
-    [a[0].as_f64().unwrap(), a[1].as_f64().unwrap(), a[2].as_f64().unwrap()]
+    [
+        a[0].as_f64().unwrap(),
+        a[1].as_f64().unwrap(),
+        a[2].as_f64().unwrap(),
+    ]
 }
 
 fn dist(a: &[f64; 3], b: &[f64; 3]) -> f64 {
@@ -50,7 +56,9 @@ fn teme_to_earth_fixed_geodetic_and_look_angles_match_skyfield() {
         };
         // GMST 1982 (skyfield.sgp4lib.theta_GMST1982): to 1e-9 rad.
         let jd = s["jd_ut1_parts"].as_array().unwrap();
-        let g = gmst_1982_from_days_rad((jd[0].as_f64().unwrap() - 2_451_545.0) + jd[1].as_f64().unwrap());
+        let g = gmst_1982_from_days_rad(
+            (jd[0].as_f64().unwrap() - 2_451_545.0) + jd[1].as_f64().unwrap(),
+        );
         let dg = (g - s["gmst_rad"].as_f64().unwrap()).abs();
         assert!(dg < 1e-9, "gmst {dg}");
         let ef = TemeToEarthFixed::at(t, &eop)
@@ -68,7 +76,10 @@ fn teme_to_earth_fixed_geodetic_and_look_angles_match_skyfield() {
         let dlat = (geo.latitude_deg - gc["latitude_deg"].as_f64().unwrap()).abs();
         let dlon = (geo.longitude_deg - gc["longitude_deg"].as_f64().unwrap()).abs();
         let dh = (geo.height_km - gc["height_km"].as_f64().unwrap()).abs();
-        assert!(dlat < 1e-9 && dlon < 1e-9 && dh < 1e-6, "geodetic {dlat} {dlon} {dh}");
+        assert!(
+            dlat < 1e-9 && dlon < 1e-9 && dh < 1e-6,
+            "geodetic {dlat} {dlon} {dh}"
+        );
         worst[1] = worst[1].max(dlat);
         // Look angles: ≤ 0.001° and ≤ 1 m (issue), range-rate ≤ 1 mm/s.
         let target = passlane_orbit::EarthFixed {
@@ -79,7 +90,10 @@ fn teme_to_earth_fixed_geodetic_and_look_angles_match_skyfield() {
             let name = la["station"].as_str().unwrap();
             let site = &stations.iter().find(|(n, _)| n == name).unwrap().1;
             let l = site.look(&target);
-            let daz = ((l.azimuth_deg - la["azimuth_deg"].as_f64().unwrap() + 540.0).rem_euclid(360.0) - 180.0).abs();
+            let daz = ((l.azimuth_deg - la["azimuth_deg"].as_f64().unwrap() + 540.0)
+                .rem_euclid(360.0)
+                - 180.0)
+                .abs();
             let del = (l.elevation_deg - la["elevation_deg"].as_f64().unwrap()).abs();
             let drange = (l.range_km - la["range_km"].as_f64().unwrap()).abs();
             let drr = (l.range_rate_km_s - la["range_rate_km_s"].as_f64().unwrap()).abs();
@@ -92,8 +106,10 @@ fn teme_to_earth_fixed_geodetic_and_look_angles_match_skyfield() {
             worst[5] = worst[5].max(drr);
         }
     }
-    eprintln!("worst: position {:.3e} km, lat {:.3e}°, az {:.3e}°, el {:.3e}°, range {:.3e} km, rr {:.3e} km/s",
-        worst[0], worst[1], worst[2], worst[3], worst[4], worst[5]);
+    eprintln!(
+        "worst: position {:.3e} km, lat {:.3e}°, az {:.3e}°, el {:.3e}°, range {:.3e} km, rr {:.3e} km/s",
+        worst[0], worst[1], worst[2], worst[3], worst[4], worst[5]
+    );
 }
 
 #[test]
@@ -116,4 +132,44 @@ fn sun_direction_matches_skyfield_de421_to_almanac_accuracy() {
         let dr = (r - s["earth_sun_distance_km"].as_f64().unwrap()).abs() / r;
         assert!(dr < 1e-4, "{t}: distance off by {dr}");
     }
+}
+
+#[test]
+fn polar_motion_matches_skyfield() {
+    // Reference: tests/fixtures/polar-motion-skyfield.json (skyfield 1.55
+    // TEME_to_ITRF with xp = 0.25", yp = 0.40"; values stated, not measured).
+    let fx = fixture("polar-motion-skyfield.json");
+    let eop_base = EarthOrientation {
+        polar_x_arcsec: fx["polar_x_arcsec"].as_f64().unwrap(),
+        polar_y_arcsec: fx["polar_y_arcsec"].as_f64().unwrap(),
+        ..Default::default()
+    };
+    let mut moved_m = 0.0_f64;
+    for s in fx["samples"].as_array().unwrap() {
+        let t = UtcTime::parse_iso(s["time_utc"].as_str().unwrap()).unwrap();
+        let eop = EarthOrientation {
+            ut1_utc_s: s["ut1_utc_s"].as_f64().unwrap(),
+            ..eop_base
+        };
+        let r = v3(&s["teme_position_km"]);
+        let v = v3(&s["teme_velocity_km_s"]);
+        let ef = TemeToEarthFixed::at(t, &eop).state(&r, &v);
+        assert!(dist(&ef.position_km, &v3(&s["itrf_position_km"])) < 1e-6);
+        assert!(dist(&ef.velocity_km_s, &v3(&s["itrf_velocity_km_s"])) < 1e-6);
+        // Polar motion of a fraction of an arcsecond moves a LEO point by metres.
+        let plain = TemeToEarthFixed::at(
+            t,
+            &EarthOrientation {
+                polar_x_arcsec: 0.0,
+                polar_y_arcsec: 0.0,
+                ..eop
+            },
+        )
+        .state(&r, &v);
+        moved_m = moved_m.max(dist(&plain.position_km, &ef.position_km) * 1000.0);
+        // The inverse rotation brings the position back.
+        let back = TemeToEarthFixed::at(t, &eop).position_to_teme(&ef.position_km);
+        assert!(dist(&back, &r) < 1e-9);
+    }
+    assert!(moved_m > 1.0 && moved_m < 30.0, "{moved_m} m");
 }

@@ -26,7 +26,10 @@ fn cases() -> Vec<Case> {
     for line in text.lines() {
         let f: Vec<&str> = line.split_whitespace().collect();
         if f.len() == 2 && f[1] == "xx" {
-            out.push(Case { catalog: f[0].parse().unwrap(), rows: Vec::new() });
+            out.push(Case {
+                catalog: f[0].parse().unwrap(),
+                rows: Vec::new(),
+            });
         } else if f.len() >= 7 {
             let mut row = [0.0; 7];
             for (k, v) in f[..7].iter().enumerate() {
@@ -62,7 +65,9 @@ fn all_33_cases_reproduce_the_published_vectors() {
     assert_eq!(cases.len(), 33, "33 cases in tcppver.out");
     let (mut worst_r_mm, mut worst_v_mm_s, mut compared) = (0.0_f64, 0.0_f64, 0usize);
     for case in &cases {
-        let set = sets.get(&case.catalog).unwrap_or_else(|| panic!("{} did not load", case.catalog));
+        let set = sets
+            .get(&case.catalog)
+            .unwrap_or_else(|| panic!("{} did not load", case.catalog));
         let prop = Propagator::new(set);
         if case.catalog == 33334 {
             // Fails at initialisation; its single row in tcppver.out repeats the
@@ -79,11 +84,29 @@ fn all_33_cases_reproduce_the_published_vectors() {
             let s = prop
                 .state_at_minutes(row[0])
                 .unwrap_or_else(|e| panic!("{} at {} min: {e}", case.catalog, row[0]));
-            let dr = (0..3).map(|k| (s.position_km[k] - row[1 + k]).powi(2)).sum::<f64>().sqrt() * 1e6;
-            let dv = (0..3).map(|k| (s.velocity_km_s[k] - row[4 + k]).powi(2)).sum::<f64>().sqrt() * 1e6;
+            let dr = (0..3)
+                .map(|k| (s.position_km[k] - row[1 + k]).powi(2))
+                .sum::<f64>()
+                .sqrt()
+                * 1e6;
+            let dv = (0..3)
+                .map(|k| (s.velocity_km_s[k] - row[4 + k]).powi(2))
+                .sum::<f64>()
+                .sqrt()
+                * 1e6;
             // Issue tolerance: 1 mm and 1 mm/s.
-            assert!(dr < 1.0, "{} at {} min: position off by {dr} mm", case.catalog, row[0]);
-            assert!(dv < 1.0, "{} at {} min: velocity off by {dv} mm/s", case.catalog, row[0]);
+            assert!(
+                dr < 1.0,
+                "{} at {} min: position off by {dr} mm",
+                case.catalog,
+                row[0]
+            );
+            assert!(
+                dv < 1.0,
+                "{} at {} min: velocity off by {dv} mm/s",
+                case.catalog,
+                row[0]
+            );
             worst_r_mm = worst_r_mm.max(dr);
             worst_v_mm_s = worst_v_mm_s.max(dv);
             compared += 1;
@@ -98,13 +121,23 @@ fn the_published_error_cases_fail_at_the_published_times() {
     let bytes = std::fs::read(dir().join("SGP4-VER.TLE")).unwrap();
     let report = elements::load(&bytes, "SGP4-VER.TLE", LoadOptions { lenient: true });
     for &(catalog, t_min, last_ok) in ERRORS {
-        let set = report.sets.iter().find(|s| s.catalog_number == catalog).unwrap();
+        let set = report
+            .sets
+            .iter()
+            .find(|s| s.catalog_number == catalog)
+            .unwrap();
         match Propagator::new(set) {
             Err(_) => assert_eq!(t_min, 0.0, "{catalog} failed at initialisation"),
             Ok(p) => {
-                assert!(p.state_at_minutes(t_min).is_err(), "{catalog} must fail at {t_min} min");
+                assert!(
+                    p.state_at_minutes(t_min).is_err(),
+                    "{catalog} must fail at {t_min} min"
+                );
                 if t_min > 0.0 {
-                    assert!(p.state_at_minutes(last_ok).is_ok(), "{catalog} must still work at {last_ok} min");
+                    assert!(
+                        p.state_at_minutes(last_ok).is_ok(),
+                        "{catalog} must still work at {last_ok} min"
+                    );
                 }
             }
         }

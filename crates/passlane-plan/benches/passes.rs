@@ -40,21 +40,35 @@ fn main() {
     ];
     // Ten invented stations spread over latitudes.
     let ten: Vec<Station> = [
-        (78.2, 15.4), (64.8, -147.7), (51.5, -1.3), (40.4, -3.7), (35.4, 139.4),
-        (19.0, -155.6), (1.35, 103.8), (-25.9, 27.7), (-33.9, 151.2), (-52.9, -70.8),
+        (78.2, 15.4),
+        (64.8, -147.7),
+        (51.5, -1.3),
+        (40.4, -3.7),
+        (35.4, 139.4),
+        (19.0, -155.6),
+        (1.35, 103.8),
+        (-25.9, 27.7),
+        (-33.9, 151.2),
+        (-52.9, -70.8),
     ]
     .iter()
     .enumerate()
     .map(|(i, (lat, lon))| Station::new(&format!("Site {i}"), *lat, *lon, 100.0))
     .collect();
 
-    let one_thread = rayon::ThreadPoolBuilder::new().num_threads(1).build().expect("pool");
+    let one_thread = rayon::ThreadPoolBuilder::new()
+        .num_threads(1)
+        .build()
+        .expect("pool");
     let runs = 20;
     let t0 = Instant::now();
     let c0 = cpu_seconds();
     let mut n = 0;
     for _ in 0..runs {
-        n = one_thread.install(|| find_passes(&demo, &three, &options, &Silent)).passes.len();
+        n = one_thread
+            .install(|| find_passes(&demo, &three, &options, &Silent))
+            .passes
+            .len();
     }
     let per_run = t0.elapsed().as_secs_f64() / runs as f64;
     let cpu_per_run = (cpu_seconds() - c0) / runs as f64;

@@ -11,7 +11,7 @@
 //! - `reference`: a 2,000-object subset, screening vs brute-force sampling at
 //!   10 s over 6 h, with the speed ratio and a check that the events agree.
 //!
-//! Run: `cargo bench -p passlane-plan --bench screening [-- all|fleet|reference]`.
+//! Run: `cargo bench -p passlane-plan --bench screening [-- all|fleet|reference [hash_step_s]]`.
 #![allow(clippy::unwrap_used, clippy::expect_used, clippy::panic)]
 
 use std::time::Instant;
@@ -182,7 +182,7 @@ fn max_rss_mb() -> f64 {
 
 fn report(label: &str, r: &ScreeningResult, seconds: f64) {
     println!(
-        "{label}: {:.2} s, {} events, {} objects ({} removed by the perigee/apogee filter), {} SGP4 samples, {} candidate pairs, {} refinements, {} diagnostics; peak RSS so far {:.0} MB",
+        "{label}: {:.2} s, {} events, {} objects ({} removed by the perigee/apogee filter), {} SGP4 samples, {} candidate pairs, {} refinements, {} diagnostics; phases: propagation {:.1} s, hash {:.1} s, evaluation {:.1} s; peak RSS so far {:.0} MB",
         seconds,
         r.events.len(),
         r.stats.objects,
@@ -191,6 +191,9 @@ fn report(label: &str, r: &ScreeningResult, seconds: f64) {
         r.stats.candidate_pairs,
         r.stats.refinements,
         r.diagnostics.len(),
+        r.stats.propagation_s,
+        r.stats.hash_s,
+        r.stats.evaluation_s,
         max_rss_mb()
     );
 }
@@ -206,8 +209,13 @@ fn main() {
         volume: ScreeningVolume::Sphere {
             radius_km: THRESHOLD_KM,
         },
+        hash_step_s: std::env::args()
+            .nth(2)
+            .and_then(|a| a.parse().ok())
+            .unwrap_or(ScreeningSettings::default().hash_step_s),
         ..Default::default()
     };
+    println!("hash step {} s", settings.hash_step_s);
     println!("threads: {}", rayon::current_num_threads());
     if which == "every" || which == "all" {
         let req = ScreeningRequest {

@@ -32,11 +32,7 @@ impl AssumedCovariance {
     /// 1-σ (R, I, C) of an element set at `at`, m.
     pub fn sigmas_m(&self, set: &ElementSet, at: UtcTime) -> [f64; 3] {
         let age_days = at.s_since(set.epoch).abs() / 86_400.0;
-        let mut s = [0.0; 3];
-        for k in 0..3 {
-            s[k] = self.sigma_at_epoch_m[k] + self.growth_m_per_day[k] * age_days;
-        }
-        s
+        std::array::from_fn(|k| self.sigma_at_epoch_m[k] + self.growth_m_per_day[k] * age_days)
     }
 
     /// Diagonal RTN position covariance, m².
@@ -165,7 +161,10 @@ pub fn event_to_cdm(
     covariance: &AssumedCovariance,
     ctx: &CdmContext<'_>,
 ) -> Result<Cdm, EncounterError> {
-    let g = relative_geometry(&km_state(&event.primary_state), &km_state(&event.secondary_state))?;
+    let g = relative_geometry(
+        &km_state(&event.primary_state),
+        &km_state(&event.secondary_state),
+    )?;
     let rot = TemeToEarthFixed::at(event.tca, &ctx.earth_orientation);
     let (shape, xyz_m) = match ctx.volume {
         ScreeningVolume::Sphere { radius_km } => ("SPHERE", [radius_km * 1000.0; 3]),
@@ -173,12 +172,26 @@ pub fn event_to_cdm(
             radial_km,
             in_track_km,
             cross_track_km,
-        } => ("BOX", [radial_km * 1000.0, in_track_km * 1000.0, cross_track_km * 1000.0]),
+        } => (
+            "BOX",
+            [
+                radial_km * 1000.0,
+                in_track_km * 1000.0,
+                cross_track_km * 1000.0,
+            ],
+        ),
         ScreeningVolume::Ellipsoid {
             radial_km,
             in_track_km,
             cross_track_km,
-        } => ("ELLIPSOID", [radial_km * 1000.0, in_track_km * 1000.0, cross_track_km * 1000.0]),
+        } => (
+            "ELLIPSOID",
+            [
+                radial_km * 1000.0,
+                in_track_km * 1000.0,
+                cross_track_km * 1000.0,
+            ],
+        ),
     };
     let object = |which: &str, set: &ElementSet, s: &StateTeme| -> CdmObject {
         let ef = rot.state(&s.position_km, &s.velocity_km_s);
@@ -220,7 +233,8 @@ pub fn event_to_cdm(
         header: CdmHeader {
             comments: vec![
                 "Screening on published mean elements (SGP4): advisory only.".to_string(),
-                "Defer to official conjunction messages and coordinate with the other operator.".to_string(),
+                "Defer to official conjunction messages and coordinate with the other operator."
+                    .to_string(),
             ],
             ccsds_cdm_vers: "1.0".to_string(),
             creation_date: ctx.creation_date,

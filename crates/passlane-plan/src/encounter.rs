@@ -248,6 +248,7 @@ pub fn encounter_plane(
 }
 
 #[cfg(test)]
+#[allow(clippy::panic)]
 mod tests {
     use super::*;
 

@@ -50,9 +50,39 @@ fn one() -> f64 {
     1.0
 }
 
+/// One contact named by the user, for a pin (the planner must keep it) or an
+/// exclusion (the planner must not use it).
+///
+/// A contact is identified by spacecraft, station, optionally antenna, and its
+/// acquisition time: a reference matches a candidate contact when the given
+/// `aos` lies within `tolerance_s` of either the pass's AOS (horizon crossing)
+/// or the contact's usable AOS (after the antenna's minimum elevation), so that
+/// a time copied from `passlane passes` or from a previous plan both work.
+///
+/// Without `antenna`, a pin keeps the pass on the first antenna of the station
+/// (in the scenario's order) that can take it; an exclusion removes the pass
+/// from every antenna of the station.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ContactRef {
+    pub catalog_number: u32,
+    /// Station name, as in `stations[].name`.
+    pub station: String,
+    /// Antenna name, as in `stations[].antennas[].name`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub antenna: Option<String>,
+    pub aos: UtcTime,
+    /// How far `aos` may be from the contact's AOS, s. Default 120.
+    #[serde(default = "default_ref_tolerance")]
+    pub tolerance_s: f64,
+}
+
+fn default_ref_tolerance() -> f64 {
+    120.0
+}
+
 /// Settings for close-approach screening.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ScreeningSettings {
+pub struct ScreeningDefaults {
     #[serde(default = "default_threshold")]
     pub threshold_km: f64,
     /// Hard-body radius used when an object has none of its own, m.
@@ -82,9 +112,9 @@ fn default_sigma_growth() -> [f64; 3] {
     [50.0, 1000.0, 50.0]
 }
 
-impl Default for ScreeningSettings {
+impl Default for ScreeningDefaults {
     fn default() -> Self {
-        ScreeningSettings {
+        ScreeningDefaults {
             threshold_km: default_threshold(),
             default_hard_body_radius_m: default_hbr(),
             assumed_sigma_at_epoch_m: default_sigma_epoch(),
@@ -115,8 +145,14 @@ pub struct Scenario {
     pub stations: Vec<Station>,
     #[serde(default)]
     pub satellites: Vec<SatelliteNeeds>,
+    /// Contacts the network plan must keep.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub pins: Vec<ContactRef>,
+    /// Contacts the network plan must not use.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub exclusions: Vec<ContactRef>,
     #[serde(default)]
-    pub screening: ScreeningSettings,
+    pub screening: ScreeningDefaults,
 }
 
 impl Default for Scenario {
@@ -131,7 +167,9 @@ impl Default for Scenario {
             earth_orientation: EarthOrientation::default(),
             stations: Vec::new(),
             satellites: Vec::new(),
-            screening: ScreeningSettings::default(),
+            pins: Vec::new(),
+            exclusions: Vec::new(),
+            screening: ScreeningDefaults::default(),
         }
     }
 }
@@ -177,7 +215,14 @@ impl Scenario {
         let version = value
             .get("format_version")
             .and_then(|v| v.as_u64())
-            .ok_or_else(|| err(0, 0, "format_version", "missing or not a whole number".into()))?;
+            .ok_or_else(|| {
+                err(
+                    0,
+                    0,
+                    "format_version",
+                    "missing or not a whole number".into(),
+                )
+            })?;
         if version > u64::from(SCENARIO_FORMAT_VERSION) {
             return Err(err(
                 0,
@@ -189,7 +234,12 @@ impl Scenario {
             ));
         }
         if version == 0 {
-            return Err(err(0, 0, "format_version", "0 is not a valid format version".into()));
+            return Err(err(
+                0,
+                0,
+                "format_version",
+                "0 is not a valid format version".into(),
+            ));
         }
         let mut scenario: Scenario = serde_path_from_str(text)
             .map_err(|(path, line, column, message)| err(line, column, &path, message))?;
@@ -210,12 +260,17 @@ impl Scenario {
 
     /// Checks every field the library relies on; returns (field path, reason).
     pub fn validate(&self) -> Result<(), (String, String)> {
-        if let Some(w) = &self.window {
-            if !(w.end > w.start) {
-                return Err(("window.end".into(), format!("{} is not after window.start {}", w.end, w.start)));
-            }
+        if let Some(w) = &self.window
+            && w.end <= w.start
+        {
+            return Err((
+                "window.end".into(),
+                format!("{} is not after window.start {}", w.end, w.start),
+            ));
         }
-        if !self.earth_orientation.ut1_utc_s.is_finite() || self.earth_orientation.ut1_utc_s.abs() > 1.0 {
+        if !self.earth_orientation.ut1_utc_s.is_finite()
+            || self.earth_orientation.ut1_utc_s.abs() > 1.0
+        {
             return Err((
                 "earth_orientation.ut1_utc_s".into(),
                 format!("{} s is outside ±1 s", self.earth_orientation.ut1_utc_s),
@@ -223,30 +278,83 @@ impl Scenario {
         }
         let mut names = std::collections::HashSet::new();
         for (i, s) in self.stations.iter().enumerate() {
-            s.validate().map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
+            s.validate()
+                .map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
             if !names.insert(s.name.as_str()) {
-                return Err((format!("stations[{i}].name"), format!("{:?} is used by two stations", s.name)));
+                return Err((
+                    format!("stations[{i}].name"),
+                    format!("{:?} is used by two stations", s.name),
+                ));
             }
         }
         for (i, n) in self.satellites.iter().enumerate() {
             let field = |f: &str| format!("satellites[{i}].{f}");
             if !(n.priority.is_finite() && n.priority > 0.0) {
-                return Err((field("priority"), format!("{} must be positive", n.priority)));
+                return Err((
+                    field("priority"),
+                    format!("{} must be positive", n.priority),
+                ));
             }
             if !(n.min_contact_s.is_finite() && n.min_contact_s >= 0.0) {
-                return Err((field("min_contact_s"), format!("{} must not be negative", n.min_contact_s)));
+                return Err((
+                    field("min_contact_s"),
+                    format!("{} must not be negative", n.min_contact_s),
+                ));
             }
-            for (f, v) in [("contacts_per_day", n.contacts_per_day), ("downlink_mb_per_day", n.downlink_mb_per_day)] {
-                if let Some(v) = v {
-                    if !(v.is_finite() && v >= 0.0) {
-                        return Err((field(f), format!("{v} must not be negative")));
-                    }
+            for (f, v) in [
+                ("contacts_per_day", n.contacts_per_day),
+                ("downlink_mb_per_day", n.downlink_mb_per_day),
+            ] {
+                if let Some(v) = v
+                    && !(v.is_finite() && v >= 0.0)
+                {
+                    return Err((field(f), format!("{v} must not be negative")));
+                }
+            }
+        }
+        let mut seen = std::collections::HashSet::new();
+        for (i, n) in self.satellites.iter().enumerate() {
+            if !seen.insert(n.catalog_number) {
+                return Err((
+                    format!("satellites[{i}].catalog_number"),
+                    format!("{} is listed twice", n.catalog_number),
+                ));
+            }
+        }
+        for (list, refs) in [("pins", &self.pins), ("exclusions", &self.exclusions)] {
+            for (i, r) in refs.iter().enumerate() {
+                let field = |f: &str| format!("{list}[{i}].{f}");
+                let Some(station) = self.stations.iter().find(|s| s.name == r.station) else {
+                    return Err((
+                        field("station"),
+                        format!("{:?} is not one of the scenario's stations", r.station),
+                    ));
+                };
+                if let Some(a) = &r.antenna
+                    && !station.antennas.iter().any(|x| &x.name == a)
+                {
+                    return Err((
+                        field("antenna"),
+                        format!("{a:?} is not an antenna of station {:?}", station.name),
+                    ));
+                }
+                if !(r.tolerance_s.is_finite() && r.tolerance_s >= 0.0) {
+                    return Err((
+                        field("tolerance_s"),
+                        format!("{} must not be negative", r.tolerance_s),
+                    ));
+                }
+                if !r.aos.is_finite() {
+                    return Err((field("aos"), "is not a finite time".into()));
                 }
             }
         }
         let sc = &self.screening;
         if !(sc.threshold_km.is_finite() && sc.threshold_km > 0.0) {
-            return Err(("screening.threshold_km".into(), format!("{} must be positive", sc.threshold_km)));
+            return Err((
+                "screening.threshold_km".into(),
+                format!("{} must be positive", sc.threshold_km),
+            ));
         }
         if !(sc.default_hard_body_radius_m.is_finite() && sc.default_hard_body_radius_m > 0.0) {
             return Err((
@@ -304,7 +412,8 @@ fn field_path_at(text: &str, line: usize, column: usize) -> String {
                     }
                     i += 1;
                 }
-                last_string = Some(String::from_utf8_lossy(&bytes[start..i.min(bytes.len())]).into_owned());
+                last_string =
+                    Some(String::from_utf8_lossy(&bytes[start..i.min(bytes.len())]).into_owned());
             }
             b':' => {
                 if let Some(Frame::Obj(key)) = stack.last_mut() {

@@ -100,7 +100,11 @@ pub struct StationError {
 
 impl std::fmt::Display for StationError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "station {:?}: {}: {}", self.station, self.field, self.message)
+        write!(
+            f,
+            "station {:?}: {}: {}",
+            self.station, self.field, self.message
+        )
     }
 }
 
@@ -134,7 +138,10 @@ impl Station {
         if parts.len() != 4 {
             return Err(err(
                 "station",
-                format!("expected NAME,LAT_DEG,LON_DEG,HEIGHT_M, got {} field(s) in {text:?}", parts.len()),
+                format!(
+                    "expected NAME,LAT_DEG,LON_DEG,HEIGHT_M, got {} field(s) in {text:?}",
+                    parts.len()
+                ),
             ));
         }
         let num = |i: usize, field: &str| -> Result<f64, StationError> {
@@ -142,7 +149,12 @@ impl Station {
                 .parse::<f64>()
                 .map_err(|_| err(field, format!("{:?} is not a number", parts[i])))
         };
-        let s = Station::new(parts[0], num(1, "LAT_DEG")?, num(2, "LON_DEG")?, num(3, "HEIGHT_M")?);
+        let s = Station::new(
+            parts[0],
+            num(1, "LAT_DEG")?,
+            num(2, "LON_DEG")?,
+            num(3, "HEIGHT_M")?,
+        );
         s.validate()?;
         Ok(s)
     }
@@ -158,23 +170,41 @@ impl Station {
             return Err(err("name", "must not be empty".into()));
         }
         if !(self.latitude_deg.is_finite() && (-90.0..=90.0).contains(&self.latitude_deg)) {
-            return Err(err("latitude_deg", format!("{} is outside -90..90", self.latitude_deg)));
+            return Err(err(
+                "latitude_deg",
+                format!("{} is outside -90..90", self.latitude_deg),
+            ));
         }
         if !(self.longitude_deg.is_finite() && (-180.0..=360.0).contains(&self.longitude_deg)) {
-            return Err(err("longitude_deg", format!("{} is outside -180..360", self.longitude_deg)));
+            return Err(err(
+                "longitude_deg",
+                format!("{} is outside -180..360", self.longitude_deg),
+            ));
         }
         if !(self.height_m.is_finite() && (-500.0..=10_000.0).contains(&self.height_m)) {
-            return Err(err("height_m", format!("{} m is not a plausible station height", self.height_m)));
+            return Err(err(
+                "height_m",
+                format!("{} m is not a plausible station height", self.height_m),
+            ));
         }
         if !(self.min_elevation_deg.is_finite() && (-5.0..90.0).contains(&self.min_elevation_deg)) {
-            return Err(err("min_elevation_deg", format!("{} is outside -5..90", self.min_elevation_deg)));
+            return Err(err(
+                "min_elevation_deg",
+                format!("{} is outside -5..90", self.min_elevation_deg),
+            ));
         }
         for (i, p) in self.horizon_mask.iter().enumerate() {
             if !(p.azimuth_deg.is_finite() && (0.0..=360.0).contains(&p.azimuth_deg)) {
-                return Err(err(&format!("horizon_mask[{i}].azimuth_deg"), format!("{} is outside 0..360", p.azimuth_deg)));
+                return Err(err(
+                    &format!("horizon_mask[{i}].azimuth_deg"),
+                    format!("{} is outside 0..360", p.azimuth_deg),
+                ));
             }
             if !(p.elevation_deg.is_finite() && (-5.0..90.0).contains(&p.elevation_deg)) {
-                return Err(err(&format!("horizon_mask[{i}].elevation_deg"), format!("{} is outside -5..90", p.elevation_deg)));
+                return Err(err(
+                    &format!("horizon_mask[{i}].elevation_deg"),
+                    format!("{} is outside -5..90", p.elevation_deg),
+                ));
             }
         }
         if let Some(m) = &self.mount {
@@ -189,13 +219,47 @@ impl Station {
         }
         for (i, c) in self.channels.iter().enumerate() {
             if !(c.frequency_hz.is_finite() && c.frequency_hz > 0.0) {
-                return Err(err(&format!("channels[{i}].frequency_hz"), format!("{} must be positive", c.frequency_hz)));
+                return Err(err(
+                    &format!("channels[{i}].frequency_hz"),
+                    format!("{} must be positive", c.frequency_hz),
+                ));
             }
         }
         for (i, a) in self.antennas.iter().enumerate() {
-            if !(a.turnaround_s.is_finite() && a.turnaround_s >= 0.0) {
-                return Err(err(&format!("antennas[{i}].turnaround_s"), format!("{} must not be negative", a.turnaround_s)));
+            if a.name.trim().is_empty() {
+                return Err(err(
+                    &format!("antennas[{i}].name"),
+                    "must not be empty".into(),
+                ));
             }
+            if self.antennas[..i].iter().any(|b| b.name == a.name) {
+                return Err(err(
+                    &format!("antennas[{i}].name"),
+                    format!("{:?} is used by two antennas of this station", a.name),
+                ));
+            }
+            if !(a.turnaround_s.is_finite() && a.turnaround_s >= 0.0) {
+                return Err(err(
+                    &format!("antennas[{i}].turnaround_s"),
+                    format!("{} must not be negative", a.turnaround_s),
+                ));
+            }
+            if let Some(m) = a.min_elevation_deg
+                && !(m.is_finite() && (-5.0..90.0).contains(&m))
+            {
+                return Err(err(
+                    &format!("antennas[{i}].min_elevation_deg"),
+                    format!("{m} is outside -5..90"),
+                ));
+            }
+        }
+        if let Some(r) = self.downlink_rate_bps
+            && !(r.is_finite() && r >= 0.0)
+        {
+            return Err(err(
+                "downlink_rate_bps",
+                format!("{r} must not be negative"),
+            ));
         }
         Ok(())
     }
@@ -245,7 +309,13 @@ impl Station {
                 let n = m.len();
                 let idx = m.partition_point(|p| p.azimuth_deg <= az);
                 let (a, b) = if idx == 0 || idx == n {
-                    (m[n - 1], MaskPoint { azimuth_deg: m[0].azimuth_deg + 360.0, elevation_deg: m[0].elevation_deg })
+                    (
+                        m[n - 1],
+                        MaskPoint {
+                            azimuth_deg: m[0].azimuth_deg + 360.0,
+                            elevation_deg: m[0].elevation_deg,
+                        },
+                    )
                 } else {
                     (m[idx - 1], m[idx])
                 };
@@ -254,7 +324,8 @@ impl Station {
                 if span <= 0.0 {
                     return a.elevation_deg.max(b.elevation_deg);
                 }
-                a.elevation_deg + (b.elevation_deg - a.elevation_deg) * (az_adj - a.azimuth_deg) / span
+                a.elevation_deg
+                    + (b.elevation_deg - a.elevation_deg) * (az_adj - a.azimuth_deg) / span
             }
         }
     }
@@ -278,9 +349,18 @@ mod tests {
         let mut s = Station::new("Test", 0.0, 0.0, 0.0);
         s.min_elevation_deg = 5.0;
         s.horizon_mask = vec![
-            MaskPoint { azimuth_deg: 350.0, elevation_deg: 20.0 },
-            MaskPoint { azimuth_deg: 10.0, elevation_deg: 0.0 },
-            MaskPoint { azimuth_deg: 90.0, elevation_deg: 30.0 },
+            MaskPoint {
+                azimuth_deg: 350.0,
+                elevation_deg: 20.0,
+            },
+            MaskPoint {
+                azimuth_deg: 10.0,
+                elevation_deg: 0.0,
+            },
+            MaskPoint {
+                azimuth_deg: 90.0,
+                elevation_deg: 30.0,
+            },
         ];
         s.normalise();
         assert!((s.mask_deg(0.0) - 10.0).abs() < 1e-12);

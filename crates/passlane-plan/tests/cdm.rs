@@ -1,5 +1,8 @@
 //! CDM reading, writing and re-assessment against hand-built fixtures.
 
+// Tests report failures by panicking.
+#![allow(clippy::panic)]
+
 use passlane_plan::cdm::{Cdm, CdmError};
 use passlane_plan::pc::{Encounter2d, pc_foster};
 
@@ -128,7 +131,7 @@ fn write_then_parse_gives_the_same_message() {
 #[test]
 fn write_round_trips_awkward_numbers_exactly() {
     let mut c = parse_ok(GOOD);
-    c.object1.state.position_km = [6778.137_123_456_789, -1.0e-9, 1234.5e5];
+    c.object1.state.position_km = [6_778.137_123_456_789, -1.0e-9, 1234.5e5];
     c.object1.covariance_rtn[21 - 1] = 3.3e-17;
     c.relative.collision_probability = Some(3.219e-27);
     let mut out = Vec::new();

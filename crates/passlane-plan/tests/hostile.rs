@@ -246,7 +246,7 @@ fn scenario_older_layout_loads_with_defaults() {
     assert!(s.window.is_none());
     assert_eq!(
         s.screening,
-        passlane_plan::scenario::ScreeningSettings::default()
+        passlane_plan::scenario::ScreeningDefaults::default()
     );
     // Written back, it carries the current version and reads again unchanged.
     let back = Scenario::from_json(&s.to_json(), "old.json").unwrap();

@@ -6,9 +6,9 @@ use passlane_orbit::constants::SPEED_OF_LIGHT_KM_S;
 use passlane_orbit::{
     EarthOrientation, ElementSet, LoadOptions, Propagator, TemeToEarthFixed, UtcTime, elements,
 };
+use passlane_plan::Scenario;
 use passlane_plan::passes::{Pass, PassOptions, Silent, find_passes, look_at, pointing_table};
 use passlane_plan::station::{Channel, LinkDirection, MaskPoint, Station};
-use passlane_plan::Scenario;
 use serde_json::Value;
 
 fn repo() -> PathBuf {
@@ -81,33 +81,73 @@ fn compare_with_skyfield(window: &Value, label: &str) {
         let found: Vec<&Pass> = report
             .passes
             .iter()
-            .filter(|p| p.catalog_number == cat && p.station == station && p.aos.s_since(aos).abs() < 5.0)
+            .filter(|p| {
+                p.catalog_number == cat && p.station == station && p.aos.s_since(aos).abs() < 5.0
+            })
             .collect();
         assert_eq!(found.len(), 1, "{label}: {cat} over {station} at {aos}");
         let p = found[0];
         let los = t(e["los"].as_str().unwrap());
         // Issue tolerance: AOS/LOS within 10 ms of skyfield 1.55's refined events.
-        worst[0] = worst[0].max(p.aos.s_since(aos).abs()).max(p.los.s_since(t(e["los"].as_str().unwrap())).abs());
-        worst[1] = worst[1].max((p.max_elevation_deg - e["max_elevation_deg"].as_f64().unwrap()).abs());
-        worst[2] = worst[2].max(p.max_elevation_time.s_since(t(e["max_elevation_time"].as_str().unwrap())).abs());
-        assert!(p.aos.s_since(aos).abs() < 0.010, "{label}: AOS {} vs {aos}", p.aos);
-        assert!(p.los.s_since(los).abs() < 0.010, "{label}: LOS {} vs {los}", p.los);
+        worst[0] = worst[0]
+            .max(p.aos.s_since(aos).abs())
+            .max(p.los.s_since(t(e["los"].as_str().unwrap())).abs());
+        worst[1] =
+            worst[1].max((p.max_elevation_deg - e["max_elevation_deg"].as_f64().unwrap()).abs());
+        worst[2] = worst[2].max(
+            p.max_elevation_time
+                .s_since(t(e["max_elevation_time"].as_str().unwrap()))
+                .abs(),
+        );
+        assert!(
+            p.aos.s_since(aos).abs() < 0.010,
+            "{label}: AOS {} vs {aos}",
+            p.aos
+        );
+        assert!(
+            p.los.s_since(los).abs() < 0.010,
+            "{label}: LOS {} vs {los}",
+            p.los
+        );
         // Maximum elevation within 0.001° of skyfield's.
         let max_el = e["max_elevation_deg"].as_f64().unwrap();
-        assert!((p.max_elevation_deg - max_el).abs() < 1e-3, "{label}: max el {} vs {max_el}", p.max_elevation_deg);
+        assert!(
+            (p.max_elevation_deg - max_el).abs() < 1e-3,
+            "{label}: max el {} vs {max_el}",
+            p.max_elevation_deg
+        );
         // The time of maximum is flat-topped: 0.1 s still moves the elevation by
         // far less than 0.001° (fixture notes); check it loosely.
         let tmax = t(e["max_elevation_time"].as_str().unwrap());
-        assert!(p.max_elevation_time.s_since(tmax).abs() < 0.1, "{label}: tmax");
-        for (key, ours) in [("aos_azimuth_deg", p.aos_azimuth_deg), ("los_azimuth_deg", p.los_azimuth_deg)] {
+        assert!(
+            p.max_elevation_time.s_since(tmax).abs() < 0.1,
+            "{label}: tmax"
+        );
+        for (key, ours) in [
+            ("aos_azimuth_deg", p.aos_azimuth_deg),
+            ("los_azimuth_deg", p.los_azimuth_deg),
+        ] {
             let theirs = e[key].as_f64().unwrap();
             let d = (ours - theirs + 540.0).rem_euclid(360.0) - 180.0;
             assert!(d.abs() < 0.01, "{label}: {key} {ours} vs {theirs}");
         }
-        assert_eq!(p.aos_clipped, e["aos_clipped"].as_bool().unwrap(), "{label}: aos_clipped");
-        assert_eq!(p.los_clipped, e["los_clipped"].as_bool().unwrap(), "{label}: los_clipped");
+        assert_eq!(
+            p.aos_clipped,
+            e["aos_clipped"].as_bool().unwrap(),
+            "{label}: aos_clipped"
+        );
+        assert_eq!(
+            p.los_clipped,
+            e["los_clipped"].as_bool().unwrap(),
+            "{label}: los_clipped"
+        );
     }
-    eprintln!("{label}: worst AOS/LOS {:.3} ms, max el {:.2e}°, max el time {:.1} ms", worst[0] * 1e3, worst[1], worst[2] * 1e3);
+    eprintln!(
+        "{label}: worst AOS/LOS {:.3} ms, max el {:.2e}°, max el time {:.1} ms",
+        worst[0] * 1e3,
+        worst[1],
+        worst[2] * 1e3
+    );
 }
 
 #[test]
@@ -180,7 +220,11 @@ fn no_pass_missed_against_one_second_sampling() {
                 let hit = ours
                     .iter()
                     .any(|p| p.aos.s_since(start) <= a + 1e-3 && p.los.s_since(start) >= b - 1e-3);
-                assert!(hit, "{} over {}: brute-force interval {a}..{b} s not covered", set.name, st.name);
+                assert!(
+                    hit,
+                    "{} over {}: brute-force interval {a}..{b} s not covered",
+                    set.name, st.name
+                );
             }
             // Conversely, a reported pass longer than 1 s contains a sample.
             for p in &ours {
@@ -200,7 +244,10 @@ fn no_pass_missed_against_one_second_sampling() {
     }
     let ours_total = report.passes.iter().filter(|p| p.duration_s > 1.0).count();
     assert!(brute_total >= ours_total.saturating_sub(0));
-    assert!(brute_total > 50, "the demo day should have many passes: {brute_total}");
+    assert!(
+        brute_total > 50,
+        "the demo day should have many passes: {brute_total}"
+    );
 }
 
 /// Circular equatorial orbit over an equatorial station: the pass goes
@@ -232,9 +279,18 @@ fn equatorial_overhead_pass_matches_geometry() {
     let mut st = Station::new("Equator", 0.0, 0.0, 0.0);
     st.min_elevation_deg = 0.0;
     let options = PassOptions::new(t("2026-12-01T00:00:00Z"), t("2026-12-02T00:00:00Z"));
-    let report = find_passes(std::slice::from_ref(&set), std::slice::from_ref(&st), &options, &Silent);
+    let report = find_passes(
+        std::slice::from_ref(&set),
+        std::slice::from_ref(&st),
+        &options,
+        &Silent,
+    );
     let prop = Propagator::new(&set).unwrap();
-    let full: Vec<&Pass> = report.passes.iter().filter(|p| !p.aos_clipped && !p.los_clipped).collect();
+    let full: Vec<&Pass> = report
+        .passes
+        .iter()
+        .filter(|p| !p.aos_clipped && !p.los_clipped)
+        .collect();
     assert!(full.len() >= 10);
     for p in full {
         // Overhead: 90° up to SGP4's small out-of-plane wobble.
@@ -248,14 +304,26 @@ fn equatorial_overhead_pass_matches_geometry() {
         let lambda = (re / r).acos();
         let rate = v / r - passlane_orbit::constants::EARTH_ROTATION_RAD_S;
         let expected_s = 2.0 * lambda / rate;
-        assert!((p.duration_s - expected_s).abs() / expected_s < 0.01, "{} vs {expected_s}", p.duration_s);
+        assert!(
+            (p.duration_s - expected_s).abs() / expected_s < 0.01,
+            "{} vs {expected_s}",
+            p.duration_s
+        );
     }
 }
 
 fn with_channels(mut st: Station) -> Station {
     st.channels = vec![
-        Channel { name: "down".into(), direction: LinkDirection::Downlink, frequency_hz: 2.2e9 },
-        Channel { name: "up".into(), direction: LinkDirection::Uplink, frequency_hz: 4.5e8 },
+        Channel {
+            name: "down".into(),
+            direction: LinkDirection::Downlink,
+            frequency_hz: 2.2e9,
+        },
+        Channel {
+            name: "up".into(),
+            direction: LinkDirection::Uplink,
+            frequency_hz: 4.5e8,
+        },
     ];
     st
 }
@@ -269,8 +337,15 @@ fn pointing_table_agrees_with_look_angles_and_doppler() {
     for st in &sc.stations {
         let st = with_channels(st.clone());
         let report = find_passes(&sets, std::slice::from_ref(&st), &options, &Silent);
-        let p = report.passes.iter().find(|p| !p.aos_clipped && !p.los_clipped).unwrap();
-        let set = sets.iter().find(|s| s.catalog_number == p.catalog_number).unwrap();
+        let p = report
+            .passes
+            .iter()
+            .find(|p| !p.aos_clipped && !p.los_clipped)
+            .unwrap();
+        let set = sets
+            .iter()
+            .find(|s| s.catalog_number == p.catalog_number)
+            .unwrap();
         let rows = pointing_table(set, &st, p, 1.0, &eop).unwrap();
         assert_eq!(rows.first().unwrap().time, p.aos);
         assert_eq!(rows.last().unwrap().time, p.los);
@@ -279,7 +354,11 @@ fn pointing_table_agrees_with_look_angles_and_doppler() {
         // Elevation at AOS and LOS equals the horizon there (mask or minimum).
         for r in [rows.first().unwrap(), rows.last().unwrap()] {
             let h = st_sorted.horizon_deg(r.azimuth_deg);
-            assert!((r.elevation_deg - h).abs() < 1e-3, "{} vs horizon {h}", r.elevation_deg);
+            assert!(
+                (r.elevation_deg - h).abs() < 1e-3,
+                "{} vs horizon {h}",
+                r.elevation_deg
+            );
         }
         let prop = Propagator::new(set).unwrap();
         for r in &rows {
@@ -312,10 +391,22 @@ fn horizon_mask_affects_only_passes_through_its_sector() {
     let base = Station::new("Bramble Hill", 51.45, -1.3, 120.0);
     let mut masked = base.clone();
     masked.horizon_mask = vec![
-        MaskPoint { azimuth_deg: 89.9, elevation_deg: 0.0 },
-        MaskPoint { azimuth_deg: 90.0, elevation_deg: 40.0 },
-        MaskPoint { azimuth_deg: 180.0, elevation_deg: 40.0 },
-        MaskPoint { azimuth_deg: 180.1, elevation_deg: 0.0 },
+        MaskPoint {
+            azimuth_deg: 89.9,
+            elevation_deg: 0.0,
+        },
+        MaskPoint {
+            azimuth_deg: 90.0,
+            elevation_deg: 40.0,
+        },
+        MaskPoint {
+            azimuth_deg: 180.0,
+            elevation_deg: 40.0,
+        },
+        MaskPoint {
+            azimuth_deg: 180.1,
+            elevation_deg: 0.0,
+        },
     ];
     let options = PassOptions::new(t("2026-12-01T00:00:00Z"), t("2026-12-04T00:00:00Z"));
     let plain = find_passes(&sets, std::slice::from_ref(&base), &options, &Silent);
@@ -323,7 +414,10 @@ fn horizon_mask_affects_only_passes_through_its_sector() {
     let eop = EarthOrientation::default();
     let (mut unchanged, mut changed) = (0, 0);
     for p in &plain.passes {
-        let set = sets.iter().find(|s| s.catalog_number == p.catalog_number).unwrap();
+        let set = sets
+            .iter()
+            .find(|s| s.catalog_number == p.catalog_number)
+            .unwrap();
         let prop = Propagator::new(set).unwrap();
         let site = base.site();
         // Does the pass cross the blocked sector above 10°?
@@ -343,10 +437,16 @@ fn horizon_mask_affects_only_passes_through_its_sector() {
         });
         if crosses {
             changed += 1;
-            assert!(!same, "pass {} crosses the sector but was not shortened", p.aos);
+            assert!(
+                !same,
+                "pass {} crosses the sector but was not shortened",
+                p.aos
+            );
             // Whatever remains lies inside the original pass.
             for q in with_mask.passes.iter().filter(|q| {
-                q.catalog_number == p.catalog_number && q.aos >= p.aos.add_s(-0.01) && q.los <= p.los.add_s(0.01)
+                q.catalog_number == p.catalog_number
+                    && q.aos >= p.aos.add_s(-0.01)
+                    && q.los <= p.los.add_s(0.01)
             }) {
                 assert!(q.duration_s < p.duration_s);
             }
@@ -355,5 +455,39 @@ fn horizon_mask_affects_only_passes_through_its_sector() {
             assert!(same, "pass {} avoids the sector but changed", p.aos);
         }
     }
-    assert!(unchanged > 5 && changed > 5, "unchanged {unchanged}, changed {changed}");
+    assert!(
+        unchanged > 5 && changed > 5,
+        "unchanged {unchanged}, changed {changed}"
+    );
+}
+
+/// A satellite that re-enters during the window is reported, and the others'
+/// passes are exactly what they would be without it.
+#[test]
+fn a_decaying_satellite_is_reported_and_the_others_go_on() {
+    let sets = demo_fleet();
+    let mut doomed = sets[0].clone();
+    doomed.name = "DOOMED (invented)".into();
+    doomed.catalog_number = 99_998;
+    doomed.mean_motion_rev_day = 16.3; // about 200 km
+    doomed.bstar_per_earth_radii = 0.05; // very high drag
+    doomed.mean_motion_dot_rev_day2 = 0.01;
+    let sc = demo_scenario();
+    let options = PassOptions::new(t("2026-12-01T00:00:00Z"), t("2026-12-11T00:00:00Z"));
+    let without = find_passes(&sets, &sc.stations, &options, &Silent);
+    let mut with_doomed = sets.clone();
+    with_doomed.push(doomed);
+    let with = find_passes(&with_doomed, &sc.stations, &options, &Silent);
+    assert_eq!(with.failures.len(), 1, "{:?}", with.failures);
+    assert_eq!(with.failures[0].catalog_number, 99_998);
+    let others: Vec<&Pass> = with
+        .passes
+        .iter()
+        .filter(|p| p.catalog_number != 99_998)
+        .collect();
+    assert_eq!(others.len(), without.passes.len());
+    for (a, b) in others.iter().zip(&without.passes) {
+        assert_eq!(a.aos, b.aos);
+        assert_eq!(a.los, b.los);
+    }
 }

@@ -40,6 +40,14 @@
 //! lies inside the volume; a pair can have many over a window. Minima at the
 //! very ends of the window (not local minima) are not events.
 //!
+//! # Cost
+//! Measured with `benches/screening.rs` (synthetic 30,000-object catalog, 10 km
+//! sphere, 2 shared cores under heavy load from other builds): 2,000 objects
+//! over 6 h in 0.4 s, 220× faster than 10 s brute force with identical events;
+//! 30,000 all-vs-all over 24 h in ~70 s (207,000 events: the synthetic LEO shell
+//! is dense); 100 vs 30,000 over 7 days in ~86 s. The per-step hash and pair
+//! tests dominate; see the benchmark's phase timings.
+//!
 //! # What it deliberately does not do
 //! - No collision probability (no covariance here) and no manoeuvre planning.
 //! - No file I/O and no printing: results and per-object diagnostics are values.
@@ -256,6 +264,11 @@ pub struct ScreeningStats {
     pub candidate_pairs: u64,
     /// Minima refined with direct SGP4.
     pub refinements: u64,
+    /// Wall-clock seconds spent propagating samples, in the hash and pair
+    /// tests, and in the final SGP4 evaluation.
+    pub propagation_s: f64,
+    pub hash_s: f64,
+    pub evaluation_s: f64,
 }
 
 /// The outcome of a screening.
@@ -322,6 +335,7 @@ pub fn screen_with_progress(
         let chunk_start = request.start.add_s(c as f64 * chunk_s);
         let chunk_end = chunk_start.add_s(chunk_s).min(request.end);
         // Samples for every object over the chunk, in parallel across objects.
+        let clock = std::time::Instant::now();
         cursors
             .par_iter_mut()
             .zip(objects.par_iter())
@@ -334,10 +348,25 @@ pub fn screen_with_progress(
                 result.diagnostics.push(diagnostic(o, &e));
             }
         }
+        result.stats.propagation_s += clock.elapsed().as_secs_f64();
+        let clock = std::time::Instant::now();
         let n_steps = (chunk_end.s_since(chunk_start) / h).ceil() as usize;
+        // Compact copy of the chunk's samples: the hash loop touches every object
+        // at every step, and the large propagator structs would cost a cache
+        // miss each.
+        let mut flat = Flat::default();
+        for (oc, o) in cursors.iter().zip(objects.iter()) {
+            flat.hot.push(Hot {
+                offset: flat.samples.len(),
+                valid: oc.valid,
+                step_s: o.sample_step_s,
+                group: o.group,
+            });
+            flat.samples.extend_from_slice(&oc.samples[..oc.valid]);
+        }
         let ctx = ChunkContext {
             objects: &objects,
-            cursors: &cursors,
+            flat: &flat,
             chunk_start,
             settings: &settings,
             margin_km,
@@ -357,6 +386,7 @@ pub fn screen_with_progress(
                 c.interpolated_miss_km <= settings.volume.bounding_radius_km() + margin_km
             }));
         }
+        result.stats.hash_s += clock.elapsed().as_secs_f64();
         result.screened_until = chunk_end;
         if !progress((c + 1) as f64 / n_chunks as f64) && c + 1 < n_chunks {
             result.cancelled = true;
@@ -364,6 +394,7 @@ pub fn screen_with_progress(
         }
     }
     result.stats.refinements = candidates.len() as u64;
+    let clock = std::time::Instant::now();
     let window = (request.start, result.screened_until);
     let refined: Vec<Result<Option<CloseApproach>, PropagationError>> = candidates
         .par_iter()
@@ -393,6 +424,7 @@ pub fn screen_with_progress(
         .collect();
     sort_and_dedup(&mut events);
     result.events = events;
+    result.stats.evaluation_s = clock.elapsed().as_secs_f64();
     result
 }
 
@@ -658,22 +690,6 @@ impl ObjectCursor<'_> {
         }
         self.valid = self.samples.len();
     }
-
-    /// Interpolated state `dt_s` after the chunk start, if covered by valid samples.
-    #[inline]
-    fn at(&self, o: &Object, dt_s: f64) -> Option<Sample> {
-        let x = dt_s / o.sample_step_s;
-        let m = (x.floor().max(0.0) as usize).min(self.valid.saturating_sub(2));
-        if m + 1 >= self.valid {
-            return None;
-        }
-        Some(hermite(
-            &self.samples[m],
-            &self.samples[m + 1],
-            o.sample_step_s,
-            x - m as f64,
-        ))
-    }
 }
 
 /// A local minimum of the interpolated distance, to be refined with SGP4.
@@ -689,7 +705,6 @@ struct Candidate {
 struct Scratch {
     states: Vec<Option<Sample>>,
     keys: Vec<(u64, u32)>,
-    cells: HashMap<u64, (u32, u32), BuildHasherDefault<CellHasher>>,
     cell_lists: HashMap<u64, Vec<u32>, BuildHasherDefault<CellHasher>>,
 }
 
@@ -726,32 +741,63 @@ fn key_of(c: [i64; 3]) -> u64 {
     (k(c[0]) << (2 * KEY_BITS)) | (k(c[1]) << KEY_BITS) | k(c[2])
 }
 
-/// The 13 neighbour offsets "after" a cell (plus the cell itself, handled
-/// apart), so that every unordered pair of cells is visited once.
-fn forward_offsets() -> impl Iterator<Item = [i64; 3]> {
-    (-1..=1)
-        .flat_map(|dx| (-1..=1).flat_map(move |dy| (-1..=1).map(move |dz| [dx, dy, dz])))
-        .filter(|d| (d[0], d[1], d[2]) > (0, 0, 0))
+/// Per-object sampling data of one chunk, packed for the hash loop.
+#[derive(Clone, Copy)]
+struct Hot {
+    offset: usize,
+    valid: usize,
+    step_s: f64,
+    group: u8,
 }
 
-struct ChunkContext<'a, 'b> {
+#[derive(Default)]
+struct Flat {
+    hot: Vec<Hot>,
+    samples: Vec<Sample>,
+}
+
+impl Flat {
+    /// Interpolated state of object `i` at `dt_s` after the chunk start, if
+    /// covered by valid samples.
+    #[inline]
+    fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
+        let h = self.hot[i];
+        if h.valid < 2 {
+            return None;
+        }
+        let x = dt_s / h.step_s;
+        let m = (x.floor().max(0.0) as usize).min(h.valid - 2);
+        if x > (h.valid - 1) as f64 + 1e-9 {
+            return None;
+        }
+        let k = h.offset + m;
+        Some(hermite(
+            &self.samples[k],
+            &self.samples[k + 1],
+            h.step_s,
+            x - m as f64,
+        ))
+    }
+}
+
+struct ChunkContext<'a> {
     objects: &'a [Object],
-    cursors: &'a [ObjectCursor<'b>],
+    flat: &'a Flat,
     chunk_start: UtcTime,
     settings: &'a ScreeningSettings,
     margin_km: f64,
     cross: bool,
 }
 
-impl ChunkContext<'_, '_> {
+impl ChunkContext<'_> {
     /// All candidate minima of the hash step [a, b].
     fn step(&self, a: UtcTime, b: UtcTime, scratch: &mut Scratch) -> Vec<Candidate> {
         let half_s = 0.5 * b.s_since(a);
         let mid_dt = a.s_since(self.chunk_start) + half_s;
         scratch.states.clear();
         let (mut v_top1, mut v_top2) = ([0.0f64; 2], [0.0f64; 2]);
-        for (o, oc) in self.objects.iter().zip(self.cursors) {
-            let s = oc.at(o, mid_dt);
+        for (i, o) in self.flat.hot.iter().enumerate() {
+            let s = self.flat.at(i, mid_dt);
             if let Some(s) = &s {
                 let v = norm(&s.vel_km_s);
                 let g = usize::from(self.cross && o.group == 1);
@@ -781,7 +827,7 @@ impl ChunkContext<'_, '_> {
         if self.cross {
             let lists = &mut scratch.cell_lists;
             lists.values_mut().for_each(Vec::clear);
-            for (i, o) in self.objects.iter().enumerate() {
+            for (i, o) in self.flat.hot.iter().enumerate() {
                 let (0, Some(s)) = (o.group, &states[i]) else {
                     continue;
                 };
@@ -795,13 +841,13 @@ impl ChunkContext<'_, '_> {
                     }
                 }
             }
-            for (j, o) in self.objects.iter().enumerate() {
+            for (j, o) in self.flat.hot.iter().enumerate() {
                 let (1, Some(s)) = (o.group, &states[j]) else {
                     continue;
                 };
                 if let Some(list) = lists.get(&key_of(cell_of(&s.pos_km, inv))) {
                     for &i in list {
-                        self.pair(i as usize, j, a, b, reach_km, states, &mut out);
+                        self.pair(i as usize, j, a, b, reach_km, cell_km, states, &mut out);
                     }
                 }
             }
@@ -814,56 +860,85 @@ impl ChunkContext<'_, '_> {
                 }
             }
             keys.sort_unstable();
-            // Runs of equal keys are the occupied cells.
-            let cells = &mut scratch.cells;
-            cells.clear();
-            let mut runs = Vec::new();
-            let mut start = 0;
-            while start < keys.len() {
-                let mut end = start + 1;
-                while end < keys.len() && keys[end].0 == keys[start].0 {
-                    end += 1;
+            // Positions in cell order, so the inner loops read memory in sequence.
+            // Positions and speeds in cell order, so the inner loops read memory
+            // in sequence; the cut uses the pair's own speeds, which for two LEO
+            // objects is a quarter smaller than the global bound the cell uses.
+            let pos: Vec<([f64; 3], f64)> = keys
+                .iter()
+                .map(|&(_, i)| {
+                    states[i as usize]
+                        .map_or(([f64::NAN; 3], 0.0), |s| (s.pos_km, norm(&s.vel_km_s)))
+                })
+                .collect();
+            let base_km = d + a_pair * half_s * half_s;
+            let near = |x: usize, y: usize| {
+                let dr = sub(&pos[y].0, &pos[x].0);
+                let cut = base_km + (pos[x].1 + pos[y].1) * half_s;
+                dot(&dr, &dr) <= cut * cut
+            };
+            // Keys sort with z fastest, so the 13 "forward" neighbour cells form
+            // five contiguous key ranges: (0,0,+1), (0,+1,-1..=1) and
+            // (+1,-1..=1,-1..=1). Their bounds grow with the cell key, so five
+            // pointers that only move forward find them without hashing.
+            let y1 = 1u64 << KEY_BITS;
+            let x1 = 1u64 << (2 * KEY_BITS);
+            let columns = |k: u64| -> [(u64, u64); 5] {
+                [
+                    (k + 1, k + 1),
+                    (k + y1 - 1, k + y1 + 1),
+                    (k + x1 - y1 - 1, k + x1 - y1 + 1),
+                    (k + x1 - 1, k + x1 + 1),
+                    (k + x1 + y1 - 1, k + x1 + y1 + 1),
+                ]
+            };
+            let mut ptr = [0usize; 5];
+            let mut s0 = 0;
+            while s0 < keys.len() {
+                let k = keys[s0].0;
+                let mut e0 = s0 + 1;
+                while e0 < keys.len() && keys[e0].0 == k {
+                    e0 += 1;
                 }
-                cells.insert(keys[start].0, (start as u32, end as u32));
-                runs.push((start, end));
-                start = end;
-            }
-            let offsets: Vec<[i64; 3]> = forward_offsets().collect();
-            for &(s0, e0) in &runs {
-                let here = keys[s0].1 as usize;
-                let Some(sh) = &states[here] else { continue };
-                let cell = cell_of(&sh.pos_km, inv);
                 for x in s0..e0 {
-                    for y in x + 1..e0 {
+                    for y in (x + 1..e0).filter(|&y| near(x, y)) {
                         self.pair(
                             keys[x].1 as usize,
                             keys[y].1 as usize,
                             a,
                             b,
                             reach_km,
+                            cell_km,
                             states,
                             &mut out,
                         );
                     }
                 }
-                for off in &offsets {
-                    let nk = key_of([cell[0] + off[0], cell[1] + off[1], cell[2] + off[2]]);
-                    if let Some(&(s1, e1)) = cells.get(&nk) {
-                        for x in s0..e0 {
-                            for y in s1 as usize..e1 as usize {
-                                self.pair(
-                                    keys[x].1 as usize,
-                                    keys[y].1 as usize,
-                                    a,
-                                    b,
-                                    reach_km,
-                                    states,
-                                    &mut out,
-                                );
-                            }
+                for (c, (lo, hi)) in columns(k).into_iter().enumerate() {
+                    let p = &mut ptr[c];
+                    while *p < keys.len() && keys[*p].0 < lo {
+                        *p += 1;
+                    }
+                    let mut q = *p;
+                    while q < keys.len() && keys[q].0 <= hi {
+                        q += 1;
+                    }
+                    for x in s0..e0 {
+                        for y in (*p..q).filter(|&y| near(x, y)) {
+                            self.pair(
+                                keys[x].1 as usize,
+                                keys[y].1 as usize,
+                                a,
+                                b,
+                                reach_km,
+                                cell_km,
+                                states,
+                                &mut out,
+                            );
                         }
                     }
                 }
+                s0 = e0;
             }
         }
         out
@@ -879,23 +954,21 @@ impl ChunkContext<'_, '_> {
         a: UtcTime,
         b: UtcTime,
         reach_km: f64,
+        cut_km: f64,
         states: &[Option<Sample>],
         out: &mut Vec<Candidate>,
     ) {
         // Within one set the earlier object in the input is the primary.
         let (i, j) = if self.cross || i < j { (i, j) } else { (j, i) };
-        let (oi, oj) = (&self.objects[i], &self.objects[j]);
-        if oi.id.catalog_number == oj.id.catalog_number
-            || oi.shell_max_km < oj.shell_min_km
-            || oj.shell_max_km < oi.shell_min_km
-        {
-            return;
-        }
         let (Some(si), Some(sj)) = (&states[i], &states[j]) else {
             return;
         };
-        let half_s = 0.5 * b.s_since(a);
+        // Cheapest test first: farther apart than anything can close in half a step.
         let dr = sub(&sj.pos_km, &si.pos_km);
+        if dot(&dr, &dr) > cut_km * cut_km {
+            return;
+        }
+        let half_s = 0.5 * b.s_since(a);
         let dv = sub(&sj.vel_km_s, &si.vel_km_s);
         let vv = dot(&dv, &dv);
         let tau = if vv > 0.0 {
@@ -911,14 +984,21 @@ impl ChunkContext<'_, '_> {
         if norm(&closest) > reach_km {
             return;
         }
+        // Object data only for the few pairs that pass the geometric tests.
+        let (oi, oj) = (&self.objects[i], &self.objects[j]);
+        if oi.id.catalog_number == oj.id.catalog_number
+            || oi.shell_max_km < oj.shell_min_km
+            || oj.shell_max_km < oi.shell_min_km
+        {
+            return;
+        }
         // Sign changes of f = Δr·Δv from − to + are distance minima. Four
         // sub-intervals: a minimum and a maximum of the distance are at least
         // a good fraction of an orbit apart, never inside one of them.
-        let (ci, cj) = (&self.cursors[i], &self.cursors[j]);
         let t0 = a.s_since(self.chunk_start);
         let f_at = |dt: f64| -> Option<(f64, f64)> {
-            let p = ci.at(oi, dt)?;
-            let q = cj.at(oj, dt)?;
+            let p = self.flat.at(i, dt)?;
+            let q = self.flat.at(j, dt)?;
             let dr = sub(&q.pos_km, &p.pos_km);
             let dv = sub(&q.vel_km_s, &p.vel_km_s);
             Some((dot(&dr, &dv), norm(&dr)))
