@@ -93,7 +93,7 @@ fn main() -> ExitCode {
         // Hidden: a test kills this process in the middle of saves (see
         // tests/hardening.rs); not a user command, so not in the help.
         "__write-stress" => (
-            "passlane __write-stress PATH [BYTES]",
+            "passlane __write-stress PATH [BYTES [FIRST_ROUND]]",
             cli::write_stress::run(rest, &mut out),
         ),
         other => {

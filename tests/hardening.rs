@@ -28,10 +28,20 @@ fn refuses(args: &[&str]) -> String {
     let started = Instant::now();
     let out = passlane(args);
     let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(!stderr.contains("panicked at"), "passlane {args:?} panicked: {stderr}");
-    assert!(!out.status.success() || !stderr.is_empty(), "passlane {args:?}: no diagnostics");
+    assert!(
+        !stderr.contains("panicked at"),
+        "passlane {args:?} panicked: {stderr}"
+    );
+    assert!(
+        !out.status.success() || !stderr.is_empty(),
+        "passlane {args:?}: no diagnostics"
+    );
     assert!(!stderr.trim().is_empty(), "passlane {args:?}: silent");
-    assert!(started.elapsed() < Duration::from_secs(60), "passlane {args:?} took {:?}", started.elapsed());
+    assert!(
+        started.elapsed() < Duration::from_secs(60),
+        "passlane {args:?} took {:?}",
+        started.elapsed()
+    );
     stderr
 }
 
@@ -40,35 +50,76 @@ fn the_cli_refuses_hostile_files_in_words() {
     let dir = scratch("hostile");
     let mut files: Vec<(&str, Vec<u8>)> = vec![
         ("nul.tle", vec![0u8; 100_000]),
-        ("invalid-utf8.tle", [0xffu8, 0xfe, b'\n', 0xc3, 0x28].repeat(1000)),
+        (
+            "invalid-utf8.tle",
+            [0xffu8, 0xfe, b'\n', 0xc3, 0x28].repeat(1000),
+        ),
         ("one-line.tle", b"1".repeat(10 * 1024 * 1024)),
         ("deep.json", "[".repeat(100_000).into_bytes()),
-        ("nan.kvn", b"CCSDS_OMM_VERS = 2.0\nOBJECT_NAME = X\nMEAN_MOTION = NaN\n".to_vec()),
-        ("overflow.xml", b"<ndm><omm><MEAN_MOTION>1e309</MEAN_MOTION></omm></ndm>".to_vec()),
+        (
+            "nan.kvn",
+            b"CCSDS_OMM_VERS = 2.0\nOBJECT_NAME = X\nMEAN_MOTION = NaN\n".to_vec(),
+        ),
+        (
+            "overflow.xml",
+            b"<ndm><omm><MEAN_MOTION>1e309</MEAN_MOTION></omm></ndm>".to_vec(),
+        ),
         ("empty.tle", Vec::new()),
     ];
-    files.push(("scenario-deep.json", format!("{{\"format_version\":1,\"stations\":{}", "[".repeat(100_000)).into_bytes()));
+    files.push((
+        "scenario-deep.json",
+        format!(
+            "{{\"format_version\":1,\"stations\":{}",
+            "[".repeat(100_000)
+        )
+        .into_bytes(),
+    ));
     files.push(("scenario-nul.json", vec![0u8; 1000]));
     files.push(("scenario-bad-utf8.json", vec![b'{', 0xff, b'}']));
     files.push(("scenario-newer.json", b"{\"format_version\": 99}".to_vec()));
     files.push(("cdm-nul.kvn", vec![0u8; 1000]));
-    files.push(("cdm-nan.kvn", b"CCSDS_CDM_VERS = 1.0\nMISS_DISTANCE = NaN [m]\n".to_vec()));
+    files.push((
+        "cdm-nan.kvn",
+        b"CCSDS_CDM_VERS = 1.0\nMISS_DISTANCE = NaN [m]\n".to_vec(),
+    ));
     files.push(("cdm-bad-utf8.kvn", vec![b'C', 0xff, b'\n']));
     for (name, bytes) in &files {
         std::fs::write(dir.join(name), bytes).unwrap();
     }
     let p = |name: &str| dir.join(name).display().to_string();
-    for name in ["nul.tle", "invalid-utf8.tle", "one-line.tle", "deep.json", "nan.kvn", "overflow.xml", "empty.tle"] {
+    for name in [
+        "nul.tle",
+        "invalid-utf8.tle",
+        "one-line.tle",
+        "deep.json",
+        "nan.kvn",
+        "overflow.xml",
+        "empty.tle",
+    ] {
         let stderr = refuses(&["elements", &p(name)]);
-        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+        assert!(
+            stderr.contains(name),
+            "the diagnostic names the file: {stderr}"
+        );
     }
-    for name in ["scenario-deep.json", "scenario-nul.json", "scenario-bad-utf8.json", "scenario-newer.json"] {
+    for name in [
+        "scenario-deep.json",
+        "scenario-nul.json",
+        "scenario-bad-utf8.json",
+        "scenario-newer.json",
+    ] {
         let stderr = refuses(&["passes", "--scenario", &p(name)]);
-        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+        assert!(
+            stderr.contains(name),
+            "the diagnostic names the file: {stderr}"
+        );
     }
     for name in ["cdm-nul.kvn", "cdm-nan.kvn", "cdm-bad-utf8.kvn"] {
         let stderr = refuses(&["cdm", &p(name)]);
-        assert!(stderr.contains(name), "the diagnostic names the file: {stderr}");
+        assert!(
+            stderr.contains(name),
+            "the diagnostic names the file: {stderr}"
+        );
     }
     // A path that is a directory, and one that does not exist.
     refuses(&["elements", &dir.display().to_string()]);
@@ -78,7 +129,10 @@ fn the_cli_refuses_hostile_files_in_words() {
 
 /// Parses `passlane-write-stress ROUND CHECKSUM` and checks the body against it.
 fn intact(bytes: &[u8]) -> Result<u64, String> {
-    let newline = bytes.iter().position(|&b| b == b'\n').ok_or("no header line")?;
+    let newline = bytes
+        .iter()
+        .position(|&b| b == b'\n')
+        .ok_or("no header line")?;
     let header = std::str::from_utf8(&bytes[..newline]).map_err(|_| "header not UTF-8")?;
     let parts: Vec<&str> = header.split(' ').collect();
     let [tag, round, sum] = parts.as_slice() else {
@@ -130,9 +184,15 @@ fn a_save_killed_at_random_points_leaves_the_old_or_the_new_file() {
     };
     let mut saw_temporary = false;
     let mut rounds_seen = std::collections::BTreeSet::new();
-    for kill in 0..12 {
+    // The round of the last complete file seen: a later look may find a
+    // newer one, never an older one (that would be a lost save).
+    let mut last_round = None;
+    for kill in 0..12u64 {
+        // Each child numbers its rounds from its own base, so the file tells
+        // which process and which save wrote it.
+        let first_round = (kill * 1000).to_string();
         let mut child = Command::new(env!("CARGO_BIN_EXE_passlane"))
-            .args(["__write-stress", &target_arg, "2000000"])
+            .args(["__write-stress", &target_arg, "2000000", &first_round])
             .stdin(Stdio::null())
             .stdout(Stdio::null())
             .stderr(Stdio::piped())
@@ -144,11 +204,19 @@ fn a_save_killed_at_random_points_leaves_the_old_or_the_new_file() {
         // SIGKILL: no destructor, no flush, no cleanup runs in the child.
         child.kill().unwrap();
         let status = child.wait().unwrap();
-        assert!(!status.success(), "kill {kill}: the child finished before it was killed");
+        assert!(
+            !status.success(),
+            "kill {kill}: the child finished before it was killed"
+        );
         if target.exists() {
             let bytes = std::fs::read(&target).unwrap();
             match intact(&bytes) {
                 Ok(round) => {
+                    assert!(
+                        last_round <= Some(round),
+                        "kill {kill}: round {round} after {last_round:?}"
+                    );
+                    last_round = Some(round);
                     rounds_seen.insert(round);
                 }
                 Err(e) => panic!("kill {kill} after {wait_ms} ms: {e}"),

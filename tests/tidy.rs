@@ -40,7 +40,11 @@ fn no_unexplained_panics_outside_tests() {
         let Ok(text) = std::fs::read_to_string(file) else {
             continue;
         };
-        let shown = file.strip_prefix(root).unwrap_or(file).display().to_string();
+        let shown = file
+            .strip_prefix(root)
+            .unwrap_or(file)
+            .display()
+            .to_string();
         for (line_no, what) in violations_in(&text) {
             violations.push(format!("{shown}:{line_no}: {what}"));
         }

@@ -8,8 +8,7 @@ use passlane_orbit::elements::{LoadOptions, load};
 
 fuzz_target!(|data: &[u8]| {
     let first = data.iter().find(|b| !b.is_ascii_whitespace());
-    if matches!(first, Some(b'<' | b'[' | b'{'))
-        || data.windows(14).any(|w| w == b"CCSDS_OMM_VERS")
+    if matches!(first, Some(b'<' | b'[' | b'{')) || data.windows(14).any(|w| w == b"CCSDS_OMM_VERS")
     {
         return;
     }

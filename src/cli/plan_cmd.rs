@@ -18,6 +18,8 @@ pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO]
 
 /// Writes a file through the crash-safe writer, naming it in the error.
 fn write_file(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<()> {
+    // Temporaries of an earlier, interrupted run would otherwise pile up.
+    passlane_files::remove_stale_temporaries(path);
     passlane_files::write_atomic_with(path, fill)
         .with_context(|| format!("cannot write {}", path.display()))
 }

@@ -1,4 +1,4 @@
-//! `passlane __write-stress PATH [BYTES]`: a hidden command for the crash-safety
+//! `passlane __write-stress PATH [BYTES [FIRST_ROUND]]`: a hidden command for the crash-safety
 //! test. It clears temporaries left by an earlier run (as every command does
 //! before it saves), then keeps rewriting PATH atomically with a new
 //! self-checking content until it is killed, or after a bounded number of
@@ -14,16 +14,26 @@ use anyhow::{Context, Result, bail};
 const MAX_ROUNDS: u64 = 100_000;
 
 pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let (path, bytes) = match argv {
-        [p] => (p, 1 << 20),
-        [p, n] => (p, n.parse::<usize>().context("BYTES must be a whole number")?),
-        _ => bail!("usage: passlane __write-stress PATH [BYTES]"),
+    let (path, bytes, first_round) = match argv {
+        [p] => (p, 1 << 20, 0),
+        [p, n] => (
+            p,
+            n.parse::<usize>().context("BYTES must be a whole number")?,
+            0,
+        ),
+        [p, n, r] => (
+            p,
+            n.parse::<usize>().context("BYTES must be a whole number")?,
+            r.parse::<u64>()
+                .context("FIRST_ROUND must be a whole number")?,
+        ),
+        _ => bail!("usage: passlane __write-stress PATH [BYTES [FIRST_ROUND]]"),
     };
     let path = Path::new(path);
     let removed = passlane_files::remove_stale_temporaries(path);
     writeln!(out, "removed {removed} stale temporaries")?;
     out.flush()?;
-    for round in 0..MAX_ROUNDS {
+    for round in first_round..first_round.saturating_add(MAX_ROUNDS) {
         let content = stress_content(round, bytes);
         passlane_files::write_atomic(path, &content)
             .with_context(|| format!("cannot write {}", path.display()))?;
@@ -39,7 +49,11 @@ pub fn stress_content(round: u64, bytes: usize) -> Vec<u8> {
     while body.len() < bytes {
         // Each line differs from round to round, so a mix of two rounds
         // cannot pass the checksum.
-        let _ = writeln!(body, "round {round} line {k} {:016x}", round.wrapping_mul(0x9e37_79b9_7f4a_7c15) ^ k);
+        let _ = writeln!(
+            body,
+            "round {round} line {k} {:016x}",
+            round.wrapping_mul(0x9e37_79b9_7f4a_7c15) ^ k
+        );
         k += 1;
     }
     let mut out = format!("passlane-write-stress {round} {:016x}\n", fnv1a64(&body)).into_bytes();

@@ -112,8 +112,13 @@ impl UtcTime {
     /// or a bare date `2026-12-01` (midnight). Text without a zone is read as UTC.
     pub fn parse_iso(text: &str) -> Result<Self, TimeParseError> {
         let t = text.trim();
+        // The error quotes at most 64 characters: the text may be a whole
+        // hostile line (megabytes) and the message goes to a terminal.
         let err = |reason: &str| TimeParseError {
-            input: text.to_string(),
+            input: match text.char_indices().nth(64) {
+                None => text.to_string(),
+                Some((cut, _)) => format!("{}…", &text[..cut]),
+            },
             reason: reason.to_string(),
         };
         if t.is_empty() {

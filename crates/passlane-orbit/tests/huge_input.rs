@@ -34,7 +34,10 @@ fn record(out: &mut String, n: u32, broken: bool) {
     if broken {
         c2 = char::from(b'0' + (c2 as u8 - b'0' + 1) % 10);
     }
-    out.push_str(&format!("INVENTED SATELLITE NUMBER {n:06}\n{l1}{}\n{l2}{c2}\n", checksum(&l1)));
+    out.push_str(&format!(
+        "INVENTED SATELLITE NUMBER {n:06}\n{l1}{}\n{l2}{c2}\n",
+        checksum(&l1)
+    ));
 }
 
 /// Catalog number in the five-character form: digits up to 99,999, then a
@@ -74,7 +77,9 @@ fn fifty_megabytes_of_mixed_records() {
             }
             // A line of junk.
             7 => {
-                text.push_str("this is not an element set, and it is rather long, on purpose ......\n");
+                text.push_str(
+                    "this is not an element set, and it is rather long, on purpose ......\n",
+                );
                 bad += 1;
             }
             _ => {
@@ -85,7 +90,9 @@ fn fifty_megabytes_of_mixed_records() {
     }
     let bytes = text.into_bytes();
     let before_kib = peak_resident_kib();
+    let started = std::time::Instant::now();
     let r = load(&bytes, "huge.tle", LoadOptions::default());
+    eprintln!("loaded {} MB in {:?}", bytes.len() >> 20, started.elapsed());
     let after_kib = peak_resident_kib();
 
     assert_eq!(r.sets.len(), good, "every good record loads");
@@ -102,6 +109,9 @@ fn fifty_megabytes_of_mixed_records() {
         let lines = bytes.iter().filter(|&&b| b == b'\n').count() as u64;
         let grown_kib = after.saturating_sub(before);
         eprintln!("peak resident memory grew by {grown_kib} KiB while loading {lines} lines");
-        assert!(grown_kib < lines, "memory grew by {grown_kib} KiB for {lines} lines");
+        assert!(
+            grown_kib < lines,
+            "memory grew by {grown_kib} KiB for {lines} lines"
+        );
     }
 }

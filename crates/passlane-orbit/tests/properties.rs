@@ -55,11 +55,26 @@ proptest! {
 fn round_trip_on_the_axes_and_the_equator() {
     // Points where the usual formulas divide by zero or lose precision.
     for height_km in [-1.0, 0.0, 400.0, 35_786.0, 50_000.0] {
-        for (lat, lon) in [(90.0, 0.0), (-90.0, 0.0), (0.0, 0.0), (0.0, 180.0), (0.0, -90.0), (89.999_999, 45.0)] {
-            let g = Geodetic { latitude_deg: lat, longitude_deg: lon, height_km };
+        for (lat, lon) in [
+            (90.0, 0.0),
+            (-90.0, 0.0),
+            (0.0, 0.0),
+            (0.0, 180.0),
+            (0.0, -90.0),
+            (89.999_999, 45.0),
+        ] {
+            let g = Geodetic {
+                latitude_deg: lat,
+                longitude_deg: lon,
+                height_km,
+            };
             let r = geodetic_to_earth_fixed(&g);
             let r2 = geodetic_to_earth_fixed(&earth_fixed_to_geodetic(&r));
-            assert!(norm(&sub(&r, &r2)) <= ONE_MM_KM, "{g:?}: {} km", norm(&sub(&r, &r2)));
+            assert!(
+                norm(&sub(&r, &r2)) <= ONE_MM_KM,
+                "{g:?}: {} km",
+                norm(&sub(&r, &r2))
+            );
         }
     }
 }

@@ -433,12 +433,22 @@ struct Ctx<'a> {
     file: &'a str,
 }
 
+/// At most `MAX` characters of `text` for an error message, so that a
+/// hostile line (megabytes without `=`, a giant value) is quoted, not copied.
+fn excerpt(text: &str) -> String {
+    const MAX: usize = 60;
+    match text.char_indices().nth(MAX) {
+        None => text.to_string(),
+        Some((cut, _)) => format!("{}…", &text[..cut]),
+    }
+}
+
 impl Ctx<'_> {
     fn err(&self, line: usize, keyword: &str, reason: impl Into<String>) -> CdmError {
         CdmError {
             file: self.file.to_string(),
             line,
-            keyword: keyword.to_string(),
+            keyword: excerpt(keyword),
             reason: reason.into(),
         }
     }
@@ -476,14 +486,17 @@ impl Ctx<'_> {
                 return Err(self.err(
                     kv.line,
                     &kv.key,
-                    format!("unit [{u}] given, but the standard gives this keyword no unit"),
+                    format!(
+                        "unit [{}] given, but the standard gives this keyword no unit",
+                        excerpt(u)
+                    ),
                 ));
             }
             (Unit::Exact(want), Some(u)) if u != want => {
                 return Err(self.err(
                     kv.line,
                     &kv.key,
-                    format!("unit [{u}] where CCSDS 508.0-B-1 has [{want}]"),
+                    format!("unit [{}] where CCSDS 508.0-B-1 has [{want}]", excerpt(u)),
                 ));
             }
             _ => {}
@@ -545,9 +558,11 @@ impl Fields<'_> {
         let v = self.ctx.split_value(kv, &self.spec(key))?;
         match v.text.parse::<f64>() {
             Ok(x) if x.is_finite() => Ok(Some(x)),
-            _ => Err(self
-                .ctx
-                .err(kv.line, key, format!("value {:?} is not a number", v.text))),
+            _ => Err(self.ctx.err(
+                kv.line,
+                key,
+                format!("value {:?} is not a number", excerpt(&v.text)),
+            )),
         }
     }
 

@@ -12,7 +12,15 @@ const GOOD_CDM: &str = include_str!("fixtures/cdm/heron_vs_debris_99871.kvn");
 const DEMO_SCENARIO: &str = include_str!("../../../scenarios/demo.json");
 
 /// Values no numeric field may accept.
-const NOT_FINITE: [&str; 7] = ["1e309", "-1e309", "NaN", "nan", "inf", "-Infinity", "1.0e99999"];
+const NOT_FINITE: [&str; 7] = [
+    "1e309",
+    "-1e309",
+    "NaN",
+    "nan",
+    "inf",
+    "-Infinity",
+    "1.0e99999",
+];
 
 #[test]
 fn the_fixtures_read() {
@@ -46,12 +54,11 @@ fn cdm_overflowing_and_non_numbers_in_every_numeric_field() {
                 }
                 // Keywords whose values are text by the standard (a version,
                 // a designator) may hold any word.
-                Ok(cdm) => {
+                Ok(_) => {
                     assert!(
                         matches!(key, "CCSDS_CDM_VERS" | "OBJECT_DESIGNATOR"),
                         "{key} = {bad} was accepted"
                     );
-                    let _ = cdm.recompute(10.0);
                 }
             }
         }
@@ -62,13 +69,57 @@ fn cdm_overflowing_and_non_numbers_in_every_numeric_field() {
 
 #[test]
 fn cdm_giant_line_nul_bytes_and_control_characters() {
-    let giant = format!("CCSDS_CDM_VERS = 1.0\nCOMMENT {}\n", "x".repeat(10 * 1024 * 1024));
+    let giant = format!(
+        "CCSDS_CDM_VERS = 1.0\nCOMMENT {}\n",
+        "x".repeat(10 * 1024 * 1024)
+    );
     let e = Cdm::parse(&giant, "giant.kvn").unwrap_err();
-    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    assert!(
+        e.to_string().len() < 2000,
+        "the message quotes an excerpt only"
+    );
     let no_newline = "A".repeat(10 * 1024 * 1024);
     let e = Cdm::parse(&no_newline, "giant.kvn").unwrap_err();
     assert_eq!(e.line, 1);
-    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    assert!(
+        e.to_string().len() < 2000,
+        "the message quotes an excerpt only"
+    );
+    // Giant keywords, values, units and times are quoted, not copied.
+    for (key, value) in [
+        ("X".repeat(10 * 1024 * 1024), "1".to_string()),
+        ("MISS_DISTANCE".to_string(), "9".repeat(10 * 1024 * 1024)),
+        (
+            "MISS_DISTANCE".to_string(),
+            format!("1 [{}]", "m".repeat(10 * 1024 * 1024)),
+        ),
+        (
+            "TCA".to_string(),
+            format!("2026-12-01T00:00:00.{}", "0".repeat(10 * 1024 * 1024)),
+        ),
+        ("TCA".to_string(), "T".repeat(10 * 1024 * 1024)),
+    ] {
+        let text = GOOD_CDM.replacen(
+            "MISS_DISTANCE                = 1000 [m]",
+            &format!("{key} = {value}"),
+            1,
+        );
+        let text = if key == "TCA" {
+            text.replacen(
+                "TCA                          = 2026-12-01T12:00:00.000Z\n",
+                "",
+                1,
+            )
+        } else {
+            text
+        };
+        if let Err(e) = Cdm::parse(&text, "giant.kvn") {
+            assert!(
+                e.to_string().len() < 2000,
+                "{key}: the message quotes an excerpt only"
+            );
+        }
+    }
     let nul = "\0".repeat(1024 * 1024);
     assert!(Cdm::parse(&nul, "nul.kvn").is_err());
     let with_nul = GOOD_CDM.replacen("1000 [m]", "10\u{0}00 [m]", 1);
@@ -151,12 +202,21 @@ fn scenario_deep_nesting_giant_strings_and_junk() {
         );
         let e = Scenario::from_json(&text, "deep.json").unwrap_err();
         assert!(e.message.contains("JSON") || !e.field.is_empty(), "{e}");
-        let text = format!("{{\"format_version\": 1, \"name\": {}", "{\"a\":".repeat(depth));
+        let text = format!(
+            "{{\"format_version\": 1, \"name\": {}",
+            "{\"a\":".repeat(depth)
+        );
         assert!(Scenario::from_json(&text, "deep.json").is_err());
     }
-    let giant_name = format!("{{\"format_version\": 1, \"name\": \"{}\"", "n".repeat(10 * 1024 * 1024));
+    let giant_name = format!(
+        "{{\"format_version\": 1, \"name\": \"{}\"",
+        "n".repeat(10 * 1024 * 1024)
+    );
     let e = Scenario::from_json(&giant_name, "giant.json").unwrap_err();
-    assert!(e.to_string().len() < 2000, "the message quotes an excerpt only");
+    assert!(
+        e.to_string().len() < 2000,
+        "the message quotes an excerpt only"
+    );
     let no_newline = "x".repeat(10 * 1024 * 1024);
     assert!(Scenario::from_json(&no_newline, "giant.json").is_err());
     assert!(Scenario::from_json(&"\0".repeat(1024 * 1024), "nul.json").is_err());
@@ -184,7 +244,10 @@ fn scenario_older_layout_loads_with_defaults() {
     assert_eq!(s.format_version, SCENARIO_FORMAT_VERSION);
     assert_eq!(s.stations.len(), 1);
     assert!(s.window.is_none());
-    assert_eq!(s.screening, passlane_plan::scenario::ScreeningDefaults::default());
+    assert_eq!(
+        s.screening,
+        passlane_plan::scenario::ScreeningDefaults::default()
+    );
     // Written back, it carries the current version and reads again unchanged.
     let back = Scenario::from_json(&s.to_json(), "old.json").unwrap();
     assert_eq!(back, s);

@@ -23,7 +23,7 @@ fn demo_fleet() -> Vec<ElementSet> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(6))]
+    #![proptest_config(ProptestConfig::with_cases(16))]
 
     #[test]
     fn passes_are_ordered_bounded_by_the_horizon_and_disjoint(
@@ -42,6 +42,9 @@ proptest! {
         let options = PassOptions::new(start, end);
         let report = find_passes(&fleet, std::slice::from_ref(&station), &options, &Silent);
         prop_assert!(report.failures.is_empty(), "{:?}", report.failures);
+        // Sun-synchronous LEO satellites rise over any place a few times a
+        // day: an empty result would make the checks below vacuous.
+        prop_assert!(report.passes.len() >= 6, "only {} passes", report.passes.len());
         let eop = EarthOrientation::default();
         let site = station.site();
         for p in &report.passes {
