@@ -358,32 +358,21 @@ impl Track {
     }
 }
 
-/// Cubic Hermite interpolation of position and velocity between two states.
-pub(crate) fn hermite(t0: f64, s0: &EarthFixed, t1: f64, s1: &EarthFixed, t: f64) -> EarthFixed {
+/// Cubic Hermite interpolation of an Earth-fixed state between two samples.
+fn hermite(t0: f64, s0: &EarthFixed, t1: f64, s1: &EarthFixed, t: f64) -> EarthFixed {
     let h = t1 - t0;
-    let s = (t - t0) / h;
-    let s2 = s * s;
-    let s3 = s2 * s;
-    let h00 = 2.0 * s3 - 3.0 * s2 + 1.0;
-    let h10 = s3 - 2.0 * s2 + s;
-    let h01 = -2.0 * s3 + 3.0 * s2;
-    let h11 = s3 - s2;
-    let d00 = (6.0 * s2 - 6.0 * s) / h;
-    let d10 = 3.0 * s2 - 4.0 * s + 1.0;
-    let d01 = (-6.0 * s2 + 6.0 * s) / h;
-    let d11 = 3.0 * s2 - 2.0 * s;
-    let mut out = EarthFixed::default();
-    for k in 0..3 {
-        let (p0, v0, p1, v1) = (
-            s0.position_km[k],
-            s0.velocity_km_s[k],
-            s1.position_km[k],
-            s1.velocity_km_s[k],
-        );
-        out.position_km[k] = h00 * p0 + h10 * h * v0 + h01 * p1 + h11 * h * v1;
-        out.velocity_km_s[k] = d00 * p0 + d10 * v0 + d01 * p1 + d11 * v1;
+    let (position_km, velocity_km_s) = passlane_orbit::interpolate::hermite(
+        &s0.position_km,
+        &s0.velocity_km_s,
+        &s1.position_km,
+        &s1.velocity_km_s,
+        h,
+        (t - t0) / h,
+    );
+    EarthFixed {
+        position_km,
+        velocity_km_s,
     }
-    out
 }
 
 /// Orbit-derived search parameters.

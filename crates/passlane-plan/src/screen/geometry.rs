@@ -3,10 +3,11 @@
 //! enters and leaves the screening volume.
 
 use passlane_orbit::constants::MU_WGS72_KM3_S2;
-use passlane_orbit::frames::{Vec3, cross, dot, norm, sub, unit};
+use passlane_orbit::frames::{Vec3, dot, norm, sub};
 use passlane_orbit::{PropagationError, Propagator, StateTeme, UtcTime};
 
 use super::{CloseApproach, ScreeningVolume};
+use crate::encounter::{self, StateKm};
 
 /// Relative geometry of object 2 with respect to object 1 at one instant.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -22,34 +23,46 @@ pub struct RelativeGeometry {
 }
 
 /// RIC components of `r2 − r1` in the frame of object 1, with the other
-/// relative quantities (CCSDS convention: object 1 is the reference).
+/// relative quantities (CCSDS convention: object 1 is the reference). The
+/// arithmetic is [`crate::encounter::relative_geometry`]'s, shared with the
+/// CDM and probability code.
 pub fn relative_geometry(s1: &StateTeme, s2: &StateTeme) -> RelativeGeometry {
-    let dr = sub(&s2.position_km, &s1.position_km);
-    let dv = sub(&s2.velocity_km_s, &s1.velocity_km_s);
-    let ric = ric_components(&s1.position_km, &s1.velocity_km_s, &dr);
-    let v1 = norm(&s1.velocity_km_s);
-    let v2 = norm(&s2.velocity_km_s);
-    let cos_angle = if v1 > 0.0 && v2 > 0.0 {
-        (dot(&s1.velocity_km_s, &s2.velocity_km_s) / (v1 * v2)).clamp(-1.0, 1.0)
-    } else {
-        1.0
+    let k = |s: &StateTeme| StateKm {
+        position_km: s.position_km,
+        velocity_km_s: s.velocity_km_s,
     };
-    RelativeGeometry {
-        miss_distance_km: norm(&dr),
-        radial_km: ric[0],
-        in_track_km: ric[1],
-        cross_track_km: ric[2],
-        relative_speed_km_s: norm(&dv),
-        approach_angle_deg: cos_angle.acos().to_degrees(),
+    match encounter::relative_geometry(&k(s1), &k(s2)) {
+        Ok(g) => RelativeGeometry {
+            miss_distance_km: g.miss_distance_km,
+            radial_km: g.radial_km,
+            in_track_km: g.in_track_km,
+            cross_track_km: g.cross_track_km,
+            relative_speed_km_s: g.relative_speed_km_s,
+            approach_angle_deg: g.approach_angle_deg,
+        },
+        // r × v = 0 (a radial trajectory) has no RIC frame: keep the distance
+        // and speed, and say the components are unknown.
+        Err(_) => RelativeGeometry {
+            miss_distance_km: norm(&sub(&s2.position_km, &s1.position_km)),
+            radial_km: f64::NAN,
+            in_track_km: f64::NAN,
+            cross_track_km: f64::NAN,
+            relative_speed_km_s: norm(&sub(&s2.velocity_km_s, &s1.velocity_km_s)),
+            approach_angle_deg: f64::NAN,
+        },
     }
 }
 
 /// Components of `d` along the R, I, C axes of the orbit (r, v).
 pub fn ric_components(r: &Vec3, v: &Vec3, d: &Vec3) -> [f64; 3] {
-    let r_hat = unit(r);
-    let c_hat = unit(&cross(r, v));
-    let i_hat = cross(&c_hat, &r_hat);
-    [dot(d, &r_hat), dot(d, &i_hat), dot(d, &c_hat)]
+    let s = StateKm {
+        position_km: *r,
+        velocity_km_s: *v,
+    };
+    match encounter::rtn_basis(&s) {
+        Some(m) => encounter::mat_vec(&m, d),
+        None => [f64::NAN; 3],
+    }
 }
 
 /// Two-body acceleration, km/s²: enough for the Newton derivative of Δr·Δv

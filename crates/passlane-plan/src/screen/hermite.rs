@@ -14,28 +14,15 @@ pub(crate) struct Sample {
 /// seconds between samples `a` and `b`.
 #[inline]
 pub(crate) fn hermite(a: &Sample, b: &Sample, step_s: f64, s: f64) -> Sample {
-    let s2 = s * s;
-    let s3 = s2 * s;
-    let h00 = 2.0 * s3 - 3.0 * s2 + 1.0;
-    let h10 = s3 - 2.0 * s2 + s;
-    let h01 = -2.0 * s3 + 3.0 * s2;
-    let h11 = s3 - s2;
-    // Derivatives of the basis with respect to s.
-    let d00 = 6.0 * s2 - 6.0 * s;
-    let d10 = 3.0 * s2 - 4.0 * s + 1.0;
-    let d01 = -d00;
-    let d11 = 3.0 * s2 - 2.0 * s;
-    let mut out = Sample::default();
-    for k in 0..3 {
-        out.pos_km[k] = h00 * a.pos_km[k]
-            + h10 * step_s * a.vel_km_s[k]
-            + h01 * b.pos_km[k]
-            + h11 * step_s * b.vel_km_s[k];
-        out.vel_km_s[k] = (d00 * a.pos_km[k] + d01 * b.pos_km[k]) / step_s
-            + d10 * a.vel_km_s[k]
-            + d11 * b.vel_km_s[k];
-    }
-    out
+    let (pos_km, vel_km_s) = passlane_orbit::interpolate::hermite(
+        &a.pos_km,
+        &a.vel_km_s,
+        &b.pos_km,
+        &b.vel_km_s,
+        step_s,
+        s,
+    );
+    Sample { pos_km, vel_km_s }
 }
 
 /// Estimated worst position error (km) of the Hermite interpolant over a step

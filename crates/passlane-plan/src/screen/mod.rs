@@ -21,14 +21,19 @@
 //!      under [`ScreeningSettings::interpolation_tolerance_km`]); everything
 //!      before the final evaluation uses the interpolant. Time is processed in
 //!      chunks so memory stays bounded whatever the window length.
-//!   3. **Spatial hash per time step.** The window is cut into steps of
+//!   3. **Spatial grid per time step.** The window is cut into steps of
 //!      [`ScreeningSettings::hash_step_s`]. At each step's midpoint every object
-//!      is put in a cubic cell of side L = D + m + (v₁ + v₂ + a·h)·h/2, where D
-//!      is the volume's bounding radius, m the interpolation margin, v₁, v₂ the
-//!      two largest speeds at that instant, a a bound on acceleration and h the
-//!      step. A pair closer than D at any time in the step is closer than L at
-//!      the midpoint, so it sits in the same or a neighbouring cell; the 27
-//!      neighbouring cells are searched.
+//!      is put in a cubic cell of side L = D + m + (v₁ + v₂)·h/2, where D is the
+//!      volume's bounding radius, m the interpolation margin, h the step and
+//!      v₁, v₂ the two largest speed bounds of the time chunk (one per set in
+//!      fleet-vs-catalog mode). Each object's speed bound is the largest norm
+//!      of the Bézier control points of its interpolant's velocity, which holds
+//!      the velocity in their convex hull. All-vs-all, cells are sorted keys and
+//!      the 13 forward neighbour cells are found with monotone pointers; a pair
+//!      is then cut at d + (vᵢ + vⱼ)·h/2 with its own speed bounds. Fleet vs
+//!      catalog, only the fleet goes into the grid (each fleet object in its
+//!      cell and the 26 around it) and each catalog object looks up its own
+//!      cell, after a radial-band test against the fleet's radii.
 //!   4. **Pair test and TCA.** Candidates pass a linear-motion bound, then the
 //!      roots of Δr·Δv on the interpolant inside the step give the minima.
 //!   5. **Final evaluation with direct SGP4**: Newton on Δr·Δv refines the TCA
@@ -36,17 +41,42 @@
 //!      TCA, not from the interpolant; entry and exit of the volume are
 //!      root-found with SGP4 too.
 //!
+//! # Why no event is missed
+//! Every discarding step uses a bound, never a sample:
+//! - Shells: SGP4's radius stays within the padded perigee/apogee shell (short
+//!   period terms and decay are in the padding), and two objects closer than D
+//!   have radii within D of each other.
+//! - Interpolation: the interpolant is within m of SGP4 at every instant (m is
+//!   the per-object allowance, checked against SGP4 in the tests), so a pair
+//!   within D in SGP4 is within D + m on the interpolant.
+//! - Grid: on the interpolant, |Δr(t) − Δr(t_mid)| ≤ (vᵢ + vⱼ)·|t − t_mid| with
+//!   the hull speed bounds, so a pair within D + m at some time of the step is
+//!   within L of each other at the midpoint, hence in neighbouring cells, and
+//!   passes the per-pair cut. The radial band drops only objects whose radius
+//!   differs from every fleet object's by more than L, which by the triangle
+//!   inequality are farther than L from all of them.
+//! - Pair test: the linear-motion closest approach is padded by the largest
+//!   possible relative acceleration over half a step; the Δr·Δv sign test on
+//!   four sub-intervals of each step finds every minimum (a minimum and a
+//!   maximum of the distance are far more than a quarter step apart).
+//!
+//! The test `fast_screening_equals_brute_force_reference` and the benchmark's
+//! 2,000-object case check the result against brute-force sampling.
+//!
 //! An event is a local minimum of the distance whose relative position at TCA
 //! lies inside the volume; a pair can have many over a window. Minima at the
 //! very ends of the window (not local minima) are not events.
 //!
 //! # Cost
 //! Measured with `benches/screening.rs` (synthetic 30,000-object catalog, 10 km
-//! sphere, 2 shared cores under heavy load from other builds): 2,000 objects
-//! over 6 h in 0.4 s, 220× faster than 10 s brute force with identical events;
-//! 30,000 all-vs-all over 24 h in ~70 s (207,000 events: the synthetic LEO shell
-//! is dense); 100 vs 30,000 over 7 days in ~86 s. The per-step hash and pair
-//! tests dominate; see the benchmark's phase timings.
+//! sphere, 30 s hash step, 2 cores shared with other builds, so wall time is
+//! about twice what the CPU time over two cores would give):
+//! - 30,000 all-vs-all over 24 h: 25.2 s CPU, 40 s wall (207,421 events: the
+//!   synthetic LEO shell is dense; peak memory 228 MB);
+//! - 100 vs 30,000 over 7 days: 22.0 s CPU, 45 s wall (18,176 objects removed by
+//!   the shell filter; SGP4 sampling of the 12,000 others is about a third);
+//! - 2,000 objects over 6 h: 0.21 s CPU, 163× less CPU than brute-force
+//!   sampling at 10 s, identical events.
 //!
 //! # What it deliberately does not do
 //! - No collision probability (no covariance here) and no manoeuvre planning.
@@ -354,16 +384,7 @@ pub fn screen_with_progress(
         // Compact copy of the chunk's samples: the hash loop touches every object
         // at every step, and the large propagator structs would cost a cache
         // miss each.
-        let mut flat = Flat::default();
-        for (oc, o) in cursors.iter().zip(objects.iter()) {
-            flat.hot.push(Hot {
-                offset: flat.samples.len(),
-                valid: oc.valid,
-                step_s: o.sample_step_s,
-                group: o.group,
-            });
-            flat.samples.extend_from_slice(&oc.samples[..oc.valid]);
-        }
+        let flat = Flat::build(&cursors, &objects);
         let ctx = ChunkContext {
             objects: &objects,
             flat: &flat,
@@ -371,6 +392,7 @@ pub fn screen_with_progress(
             settings: &settings,
             margin_km,
             cross: request.secondaries.is_some(),
+            v_pair_km_s: flat.pair_speed_km_s(request.secondaries.is_some()),
         };
         let found: Vec<Vec<Candidate>> = (0..n_steps)
             .into_par_iter()
@@ -705,7 +727,8 @@ struct Candidate {
 struct Scratch {
     states: Vec<Option<Sample>>,
     keys: Vec<(u64, u32)>,
-    cell_lists: HashMap<u64, Vec<u32>, BuildHasherDefault<CellHasher>>,
+    /// Fleet mode: range of `keys` holding each cell's primaries.
+    cell_ranges: HashMap<u64, (u32, u32), BuildHasherDefault<CellHasher>>,
 }
 
 /// A fast multiplicative hasher for packed cell keys (not for untrusted input).
@@ -732,7 +755,7 @@ const KEY_OFFSET: i64 = 1 << (KEY_BITS - 1);
 const KEY_MASK: u64 = (1 << KEY_BITS) - 1;
 
 fn cell_of(p: &[f64; 3], inv_cell_km: f64) -> [i64; 3] {
-    let c = |x: f64| ((x * inv_cell_km).floor() as i64).clamp(-KEY_OFFSET + 2, KEY_OFFSET - 2);
+    let c = |x: f64| floor_i64(x * inv_cell_km).clamp(-KEY_OFFSET + 2, KEY_OFFSET - 2);
     [c(p[0]), c(p[1]), c(p[2])]
 }
 
@@ -741,43 +764,148 @@ fn key_of(c: [i64; 3]) -> u64 {
     (k(c[0]) << (2 * KEY_BITS)) | (k(c[1]) << KEY_BITS) | k(c[2])
 }
 
+/// `floor` as an integer without a libm call (the default x86-64 target has
+/// no rounding instruction, and this runs three times per object per step).
+#[inline]
+fn floor_i64(x: f64) -> i64 {
+    let t = x as i64;
+    t - i64::from((t as f64) > x)
+}
+
 /// Per-object sampling data of one chunk, packed for the hash loop.
 #[derive(Clone, Copy)]
 struct Hot {
-    offset: usize,
-    valid: usize,
-    step_s: f64,
+    lane: u32,
+    slot: u32,
+    /// Samples before the first failure.
+    valid: u32,
     group: u8,
+    /// Bound on the interpolant's speed anywhere in the chunk, km/s.
+    speed_max_km_s: f64,
+}
+
+/// The objects that share one sample step, with their samples interleaved by
+/// sample index (every object's sample m, then every object's sample m + 1):
+/// a hash step reads each lane front to back instead of jumping between
+/// per-object arrays, which cost a cache miss per object per step.
+struct Lane {
+    step_s: f64,
+    objects: Vec<u32>,
+    samples: Vec<Sample>,
+}
+
+impl Lane {
+    /// Interpolated state of the object in `slot` (with `valid` samples) at
+    /// `x` sample steps after the chunk start.
+    #[inline]
+    fn at(&self, slot: usize, valid: usize, x: f64) -> Option<Sample> {
+        if valid < 2 || x > (valid - 1) as f64 + 1e-9 {
+            return None;
+        }
+        // Truncation is the floor here: x is clamped to be non-negative.
+        let m = (x.max(0.0) as usize).min(valid - 2);
+        let n = self.objects.len();
+        Some(hermite(
+            &self.samples[m * n + slot],
+            &self.samples[(m + 1) * n + slot],
+            self.step_s,
+            x - m as f64,
+        ))
+    }
 }
 
 #[derive(Default)]
 struct Flat {
     hot: Vec<Hot>,
-    samples: Vec<Sample>,
+    lanes: Vec<Lane>,
 }
 
 impl Flat {
+    fn build(cursors: &[ObjectCursor<'_>], objects: &[Object]) -> Flat {
+        let mut flat = Flat::default();
+        let mut lengths: Vec<usize> = Vec::new();
+        for (i, (oc, o)) in cursors.iter().zip(objects).enumerate() {
+            let lane = match flat.lanes.iter().position(|l| l.step_s == o.sample_step_s) {
+                Some(l) => l,
+                None => {
+                    flat.lanes.push(Lane {
+                        step_s: o.sample_step_s,
+                        objects: Vec::new(),
+                        samples: Vec::new(),
+                    });
+                    lengths.push(0);
+                    flat.lanes.len() - 1
+                }
+            };
+            let slot = flat.lanes[lane].objects.len();
+            flat.lanes[lane].objects.push(i as u32);
+            lengths[lane] = lengths[lane].max(oc.valid);
+            flat.hot.push(Hot {
+                lane: lane as u32,
+                slot: slot as u32,
+                valid: oc.valid as u32,
+                group: o.group,
+                speed_max_km_s: speed_bound_km_s(&oc.samples[..oc.valid], o.sample_step_s),
+            });
+        }
+        for (lane, &len) in flat.lanes.iter_mut().zip(&lengths) {
+            let n = lane.objects.len();
+            lane.samples = vec![Sample::default(); n * len];
+            for (slot, &i) in lane.objects.iter().enumerate() {
+                let oc = &cursors[i as usize];
+                for (m, smp) in oc.samples[..oc.valid].iter().enumerate() {
+                    lane.samples[m * n + slot] = *smp;
+                }
+            }
+        }
+        flat
+    }
+
+    /// Sum of the two largest speed bounds (one per group when screening one
+    /// set against another), km/s.
+    fn pair_speed_km_s(&self, cross: bool) -> f64 {
+        let (mut top1, mut top2) = ([0.0f64; 2], [0.0f64; 2]);
+        for h in self.hot.iter().filter(|h| h.valid >= 2) {
+            let g = usize::from(cross && h.group == 1);
+            let v = h.speed_max_km_s;
+            if v > top1[g] {
+                top2[g] = top1[g];
+                top1[g] = v;
+            } else if v > top2[g] {
+                top2[g] = v;
+            }
+        }
+        if cross {
+            top1[0] + top1[1]
+        } else {
+            top1[0] + top2[0]
+        }
+    }
+
     /// Interpolated state of object `i` at `dt_s` after the chunk start, if
     /// covered by valid samples.
     #[inline]
     fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
         let h = self.hot[i];
-        if h.valid < 2 {
-            return None;
-        }
-        let x = dt_s / h.step_s;
-        let m = (x.floor().max(0.0) as usize).min(h.valid - 2);
-        if x > (h.valid - 1) as f64 + 1e-9 {
-            return None;
-        }
-        let k = h.offset + m;
-        Some(hermite(
-            &self.samples[k],
-            &self.samples[k + 1],
-            h.step_s,
-            x - m as f64,
-        ))
+        let lane = &self.lanes[h.lane as usize];
+        lane.at(h.slot as usize, h.valid as usize, dt_s / lane.step_s)
     }
+}
+
+/// Largest speed of the Hermite interpolant through `samples`, km/s. Between
+/// two samples the interpolant's velocity is a quadratic whose Bézier control
+/// points are v₀, 3(r₁ − r₀)/h − v₀ − v₁ and v₁; the curve lies in their convex
+/// hull, so its speed never exceeds the largest of their norms.
+fn speed_bound_km_s(samples: &[Sample], step_s: f64) -> f64 {
+    let mut v_max = samples.first().map_or(0.0, |s| norm(&s.vel_km_s));
+    for w in samples.windows(2) {
+        let (a, b) = (&w[0], &w[1]);
+        let mid: [f64; 3] = std::array::from_fn(|k| {
+            3.0 * (b.pos_km[k] - a.pos_km[k]) / step_s - a.vel_km_s[k] - b.vel_km_s[k]
+        });
+        v_max = v_max.max(norm(&mid)).max(norm(&b.vel_km_s));
+    }
+    v_max
 }
 
 struct ChunkContext<'a> {
@@ -787,6 +915,9 @@ struct ChunkContext<'a> {
     settings: &'a ScreeningSettings,
     margin_km: f64,
     cross: bool,
+    /// Largest closing speed any pair can have in the chunk (sum of the two
+    /// largest speed bounds, or the largest of each group), km/s.
+    v_pair_km_s: f64,
 }
 
 impl ChunkContext<'_> {
@@ -795,58 +926,76 @@ impl ChunkContext<'_> {
         let half_s = 0.5 * b.s_since(a);
         let mid_dt = a.s_since(self.chunk_start) + half_s;
         scratch.states.clear();
-        let (mut v_top1, mut v_top2) = ([0.0f64; 2], [0.0f64; 2]);
-        for (i, o) in self.flat.hot.iter().enumerate() {
-            let s = self.flat.at(i, mid_dt);
-            if let Some(s) = &s {
-                let v = norm(&s.vel_km_s);
-                let g = usize::from(self.cross && o.group == 1);
-                if v > v_top1[g] {
-                    v_top2[g] = v_top1[g];
-                    v_top1[g] = v;
-                } else if v > v_top2[g] {
-                    v_top2[g] = v;
-                }
+        scratch.states.resize(self.flat.hot.len(), None);
+        for lane in &self.flat.lanes {
+            let x = mid_dt / lane.step_s;
+            for (slot, &i) in lane.objects.iter().enumerate() {
+                let valid = self.flat.hot[i as usize].valid as usize;
+                scratch.states[i as usize] = lane.at(slot, valid, x);
             }
-            scratch.states.push(s);
         }
-        // Fastest possible closing speed of any pair over the step.
-        let v_pair = if self.cross {
-            v_top1[0] + v_top1[1]
-        } else {
-            v_top1[0] + v_top2[0]
-        };
+        // A pair closer than d at some time in the step is closer than
+        // d + (v₁ + v₂)·h/2 at its midpoint, with v₁, v₂ the two speed bounds.
         let a_pair = 2.0 * MAX_ACCELERATION_KM_S2;
         let d = self.settings.volume.bounding_radius_km() + self.margin_km;
-        let cell_km = d + (v_pair + a_pair * half_s) * half_s + 1e-3;
+        let cell_km = d + self.v_pair_km_s * half_s + 1e-3;
         let inv = 1.0 / cell_km;
         // Curvature allowance of the linear test: |Δa|·τ²/2 with τ ≤ half a step.
         let reach_km = d + 0.5 * a_pair * half_s * half_s;
         let mut out = Vec::new();
         let states = &scratch.states;
         if self.cross {
-            let lists = &mut scratch.cell_lists;
-            lists.values_mut().for_each(Vec::clear);
+            // The primaries (the small set) go into their cell and the 26
+            // around it, as a sorted list with a map from cell to its range;
+            // the map is emptied, not rebuilt, so its table is reused.
+            let entries = &mut scratch.keys;
+            entries.clear();
+            let (mut r_min_km, mut r_max_km) = (f64::INFINITY, 0.0f64);
             for (i, o) in self.flat.hot.iter().enumerate() {
                 let (0, Some(s)) = (o.group, &states[i]) else {
                     continue;
                 };
+                let r = norm(&s.pos_km);
+                r_min_km = r_min_km.min(r);
+                r_max_km = r_max_km.max(r);
                 let c = cell_of(&s.pos_km, inv);
                 for dx in -1..=1 {
                     for dy in -1..=1 {
                         for dz in -1..=1 {
-                            let k = key_of([c[0] + dx, c[1] + dy, c[2] + dz]);
-                            lists.entry(k).or_default().push(i as u32);
+                            entries.push((key_of([c[0] + dx, c[1] + dy, c[2] + dz]), i as u32));
                         }
                     }
                 }
             }
+            entries.sort_unstable();
+            let ranges = &mut scratch.cell_ranges;
+            ranges.clear();
+            let mut s0 = 0;
+            while s0 < entries.len() {
+                let mut e0 = s0 + 1;
+                while e0 < entries.len() && entries[e0].0 == entries[s0].0 {
+                    e0 += 1;
+                }
+                ranges.insert(entries[s0].0, (s0 as u32, e0 as u32));
+                s0 = e0;
+            }
+            // Radial band: a secondary whose distance from the Earth's centre
+            // differs from every primary's by more than a cell is farther
+            // than a cell from all of them (triangle inequality), so the
+            // lookup can be skipped.
+            let band_lo_km = r_min_km - cell_km;
+            let band_hi_km = r_max_km + cell_km;
+            let (band_lo2, band_hi2) = (band_lo_km.max(0.0).powi(2), band_hi_km * band_hi_km);
             for (j, o) in self.flat.hot.iter().enumerate() {
                 let (1, Some(s)) = (o.group, &states[j]) else {
                     continue;
                 };
-                if let Some(list) = lists.get(&key_of(cell_of(&s.pos_km, inv))) {
-                    for &i in list {
+                let r2 = dot(&s.pos_km, &s.pos_km);
+                if r2 < band_lo2 || r2 > band_hi2 {
+                    continue;
+                }
+                if let Some(&(lo, hi)) = ranges.get(&key_of(cell_of(&s.pos_km, inv))) {
+                    for &(_, i) in &entries[lo as usize..hi as usize] {
                         self.pair(i as usize, j, a, b, reach_km, cell_km, states, &mut out);
                     }
                 }
@@ -867,14 +1016,13 @@ impl ChunkContext<'_> {
             let pos: Vec<([f64; 3], f64)> = keys
                 .iter()
                 .map(|&(_, i)| {
-                    states[i as usize]
-                        .map_or(([f64::NAN; 3], 0.0), |s| (s.pos_km, norm(&s.vel_km_s)))
+                    let v = self.flat.hot[i as usize].speed_max_km_s;
+                    states[i as usize].map_or(([f64::NAN; 3], 0.0), |s| (s.pos_km, v))
                 })
                 .collect();
-            let base_km = d + a_pair * half_s * half_s;
             let near = |x: usize, y: usize| {
                 let dr = sub(&pos[y].0, &pos[x].0);
-                let cut = base_km + (pos[x].1 + pos[y].1) * half_s;
+                let cut = d + (pos[x].1 + pos[y].1) * half_s;
                 dot(&dr, &dr) <= cut * cut
             };
             // Keys sort with z fastest, so the 13 "forward" neighbour cells form
