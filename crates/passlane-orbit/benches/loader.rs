@@ -7,6 +7,8 @@
 //! duplicates that the loader reduces to the newest epoch, with a warning
 //! each), with a junk line and a record with a broken checksum every ten.
 
+#![allow(clippy::panic)]
+
 use std::path::PathBuf;
 use std::time::Instant;
 

@@ -4,7 +4,7 @@
 //! The giant-file case (50 MB) lives in `huge_input.rs`, a test binary of its
 //! own, so that its peak-memory figure is not mixed with these tests'.
 
-#![allow(clippy::unwrap_used)]
+#![allow(clippy::unwrap_used, clippy::panic)]
 
 use passlane_orbit::elements::{LoadOptions, LoadReport, load};
 

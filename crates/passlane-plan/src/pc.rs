@@ -697,9 +697,20 @@ pub fn pc_chan(e: &Encounter2d) -> f64 {
 }
 
 /// Σₘ Poisson(m; λ) · P(m+1, a), i.e. P(non-central χ²₂(2λ) ≤ 2a).
+///
+/// Each step costs O(1) plus a short tail sum: ln m! and the head
+/// e^(−a) Σₖ≤ₘ aᵏ/k! are carried from one m to the next instead of being
+/// recomputed (recomputing them made a far miss, λ ~ 10⁶, take hours). The
+/// sum also stops as soon as P(m+1, a) is negligible: it falls with m, so no
+/// later term can exceed it.
 fn rician_cdf(lambda: f64, a: f64) -> f64 {
+    if a <= 0.0 {
+        return 0.0;
+    }
     let ln_lambda = lambda.ln();
+    let ln_a = a.ln();
     let mut ln_fact = 0.0; // ln m!
+    let mut head = 0.0; // e^(−a) Σₖ≤ₘ aᵏ/k!
     let mut total = 0.0;
     let m_peak = lambda.floor();
     let mut m = 0u32;
@@ -708,6 +719,7 @@ fn rician_cdf(lambda: f64, a: f64) -> f64 {
         if m > 0 {
             ln_fact += mf.ln();
         }
+        head += (mf * ln_a - ln_fact - a).exp();
         let ln_w = if lambda > 0.0 {
             -lambda + mf * ln_lambda - ln_fact
         } else if m == 0 {
@@ -715,10 +727,13 @@ fn rician_cdf(lambda: f64, a: f64) -> f64 {
         } else {
             f64::NEG_INFINITY
         };
-        let term = ln_w.exp() * gamma_p_int(m + 1, a);
+        let p = gamma_p_int(m + 1, a, ln_fact + (mf + 1.0).ln(), head);
+        let term = ln_w.exp() * p;
         total += term;
-        // Stop past the Poisson peak once terms no longer matter; P(m+1, a)
-        // also falls with m, so this is conservative.
+        if p <= 1e-17 * total || p < f64::MIN_POSITIVE {
+            break;
+        }
+        // Stop past the Poisson peak once terms no longer matter.
         if mf > m_peak && (term <= 1e-17 * total || ln_w < -745.0) {
             break;
         }
@@ -730,19 +745,16 @@ fn rician_cdf(lambda: f64, a: f64) -> f64 {
     total
 }
 
-/// Regularised lower incomplete gamma P(n, a) for integer n ≥ 1.
-fn gamma_p_int(n: u32, a: f64) -> f64 {
+/// Regularised lower incomplete gamma P(n, a) for integer n ≥ 1, given
+/// ln n! and the head e^(−a) Σₖ<ₙ aᵏ/k! (the caller carries both along n).
+fn gamma_p_int(n: u32, a: f64, ln_n_fact: f64, head: f64) -> f64 {
     if a <= 0.0 {
         return 0.0;
     }
     let nf = f64::from(n);
     if a < nf {
         // Tail form e^(−a) Σₖ≥ₙ aᵏ/k!, no cancellation; computed in logs.
-        let mut ln_fact = 0.0;
-        for k in 2..=n {
-            ln_fact += f64::from(k).ln();
-        }
-        let mut term = (nf * a.ln() - ln_fact - a).exp();
+        let mut term = (nf * a.ln() - ln_n_fact - a).exp();
         let mut sum = term;
         let mut k = nf;
         while term > 1e-17 * sum {
@@ -755,15 +767,9 @@ fn gamma_p_int(n: u32, a: f64) -> f64 {
         }
         sum.min(1.0)
     } else {
-        // 1 − e^(−a) Σₖ<ₙ aᵏ/k!: here the head is at most about one half,
-        // so the subtraction loses little.
-        let mut term = (-a).exp();
-        let mut sum = term;
-        for k in 1..n {
-            term *= a / f64::from(k);
-            sum += term;
-        }
-        (1.0 - sum).max(0.0)
+        // 1 − head: here the head is at most about one half, so the
+        // subtraction loses little.
+        (1.0 - head).max(0.0)
     }
 }
 

@@ -2,7 +2,7 @@
 //! that says where and why, never a panic, a hang or runaway memory. Also the
 //! scenario's format versions: older layouts load, newer ones are refused.
 
-#![allow(clippy::unwrap_used)]
+#![allow(clippy::unwrap_used, clippy::panic)]
 
 use passlane_plan::Scenario;
 use passlane_plan::cdm::Cdm;
@@ -271,4 +271,36 @@ fn scenario_versions_outside_the_known_range_are_refused_clearly() {
     }
     let e = Scenario::from_json("{\"name\": \"no version\"}", "v.json").unwrap_err();
     assert_eq!(e.field, "format_version", "{e}");
+}
+
+/// Runs `f` on a thread and fails if it takes longer than `limit`: a hang in
+/// a regression test must fail the test, not stall the suite.
+fn within<T: Send + 'static>(
+    limit: std::time::Duration,
+    f: impl FnOnce() -> T + Send + 'static,
+) -> T {
+    let (tx, rx) = std::sync::mpsc::channel();
+    std::thread::spawn(move || {
+        let _ = tx.send(f());
+    });
+    match rx.recv_timeout(limit) {
+        Ok(v) => v,
+        Err(_) => panic!("did not finish within {limit:?}"),
+    }
+}
+
+/// Found by fuzzing (`cdm` target): object 2 moved 3,000 km away, so the
+/// Chan series' Poisson weights peak near m = 10⁶ while the incomplete gamma
+/// factor was recomputed from scratch (O(m)) for every m: hours of work for
+/// a probability that is zero to double precision.
+#[test]
+fn fuzz_regression_cdm_far_miss_does_not_hang_the_chan_series() {
+    let text = include_str!("fixtures/fuzz-regressions/cdm-far-miss-chan-hang.kvn");
+    let cdm = Cdm::parse(text, "far.kvn").unwrap();
+    let a = within(std::time::Duration::from_secs(10), move || {
+        cdm.recompute(10.0)
+    });
+    let a = a.unwrap();
+    assert_eq!(a.pc_chan, 0.0);
+    assert_eq!(a.pc, 0.0);
 }

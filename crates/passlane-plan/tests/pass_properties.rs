@@ -7,7 +7,7 @@
 //! well under a second; a LEO satellite near the horizon climbs at most
 //! ~0.07°/s); passes of the same pair may touch but not overlap.
 
-#![allow(clippy::unwrap_used)]
+#![allow(clippy::unwrap_used, clippy::panic)]
 
 use std::path::PathBuf;
 
