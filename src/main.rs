@@ -1,1 +1,82 @@
-fn main() {}
+//! Passlane: contact windows, close approaches and hand-off files for
+//! small-satellite operators. With a subcommand it runs in command-line mode
+//! (for scripts and cron); without one it opens the desktop window.
+
+mod cli;
+
+use std::io::Write;
+use std::process::ExitCode;
+
+const HELP: &str = "\
+Passlane: plan contacts and check close approaches for a small-satellite fleet.
+
+usage:
+  passlane                       open the desktop window on the demo scenario
+  passlane elements FILE...      what loaded from element files (TLE, OMM KVN/XML/JSON)
+  passlane ephemeris ...         states on a time grid (TEME, Earth-fixed or geodetic)
+  passlane passes ...            contact windows of each spacecraft over each station
+  passlane track ...             pointing table (az/el/range/Doppler) of one pass
+
+Run `passlane COMMAND --help` for a command's options.
+Times are ISO 8601 UTC, e.g. 2026-12-01T12:00:00Z.
+
+Cautions: element-set screening is advisory; defer to official conjunction
+messages and coordinate with the other operator. Transmitting needs a licence
+and follows local rules.
+";
+
+fn main() -> ExitCode {
+    let argv: Vec<String> = std::env::args().skip(1).collect();
+    let Some(command) = argv.first() else {
+        println!("{HELP}");
+        return ExitCode::SUCCESS;
+    };
+    let rest = &argv[1..];
+    let stdout = std::io::stdout();
+    let mut out = std::io::BufWriter::new(stdout.lock());
+    let (usage, result) = match command.as_str() {
+        "-h" | "--help" | "help" => {
+            println!("{HELP}");
+            return ExitCode::SUCCESS;
+        }
+        "elements" => (cli::elements_cmd::USAGE, run_or_help(rest, cli::elements_cmd::USAGE, &mut out, cli::elements_cmd::run)),
+        "ephemeris" => (cli::ephemeris_cmd::USAGE, run_or_help(rest, cli::ephemeris_cmd::USAGE, &mut out, cli::ephemeris_cmd::run)),
+        "passes" => (cli::passes_cmd::USAGE, run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run)),
+        "track" => (cli::passes_cmd::TRACK_USAGE, run_or_help(rest, cli::passes_cmd::TRACK_USAGE, &mut out, cli::passes_cmd::run_track)),
+        other => {
+            eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
+            return ExitCode::from(2);
+        }
+    };
+    let flushed = out.flush();
+    match result.and(flushed.map_err(anyhow::Error::from)) {
+        Ok(()) => ExitCode::SUCCESS,
+        // A reader that stops early (`| head`) is not an error.
+        Err(e) if is_broken_pipe(&e) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("passlane {command}: error: {e:#}");
+            eprintln!("usage: {usage}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+fn run_or_help(
+    rest: &[String],
+    usage: &str,
+    out: &mut dyn Write,
+    f: fn(&[String], &mut dyn Write) -> anyhow::Result<()>,
+) -> anyhow::Result<()> {
+    if rest.iter().any(|a| a == "--help" || a == "-h") {
+        writeln!(out, "usage: {usage}")?;
+        return Ok(());
+    }
+    f(rest, out)
+}
+
+fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
+}

@@ -31,7 +31,13 @@ pub struct EarthOrientation {
 /// Greenwich mean sidereal time, IAU 1982 expression (Aoki et al. 1982; as
 /// written in Vallado et al. 2006, `gstime`), radians in [0, 2π).
 pub fn gmst_1982_rad(jd_ut1: f64) -> f64 {
-    let t = (jd_ut1 - 2_451_545.0) / 36_525.0;
+    gmst_1982_from_days_rad(jd_ut1 - 2_451_545.0)
+}
+
+/// GMST from UT1 days since J2000 (keeps more precision than a Julian date,
+/// whose f64 resolution is ~40 µs).
+pub fn gmst_1982_from_days_rad(days_ut1_since_j2000: f64) -> f64 {
+    let t = days_ut1_since_j2000 / 36_525.0;
     let seconds = -6.2e-6 * t * t * t
         + 0.093_104 * t * t
         + (876_600.0 * 3600.0 + 8_640_184.812_866) * t
@@ -43,7 +49,7 @@ pub fn gmst_1982_rad(jd_ut1: f64) -> f64 {
 
 /// GMST at a UTC time with the given Earth orientation.
 pub fn gmst_at_rad(t: UtcTime, eop: &EarthOrientation) -> f64 {
-    gmst_1982_rad(t.julian_date() + eop.ut1_utc_s / 86_400.0)
+    gmst_1982_from_days_rad((t.s_since_j2000() + eop.ut1_utc_s) / 86_400.0)
 }
 
 /// Position and velocity in an Earth-fixed frame (km, km/s).

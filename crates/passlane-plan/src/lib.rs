@@ -1,6 +1,7 @@
 //! Planning on top of `passlane-orbit`: contact windows ([`passes`]), station
-//! definitions ([`station`]), close-approach screening, collision probability,
-//! CDM reading and writing, network schedules and hand-off exports.
+//! definitions ([`station`]), the scenario file ([`scenario`]), close-approach
+//! screening ([`screen`]), encounter geometry and collision probability
+//! ([`encounter`], [`pc`]), CCSDS conjunction messages ([`cdm`]).
 //!
 //! Architecture invariant: this crate has no GUI dependency and does no file
 //! I/O of its own: readers take text, writers take any `std::io::Write`.
@@ -8,6 +9,12 @@
 pub mod passes;
 pub mod scenario;
 pub mod station;
+
+// Conjunction assessment: encounter geometry, collision probability, CDM files.
+pub mod cdm;
+pub mod encounter;
+pub mod pc;
+pub mod screen;
 
 pub use passes::{Pass, PassOptions, PassReport, Progress, Silent, find_passes, pointing_table};
 pub use scenario::Scenario;

@@ -92,9 +92,9 @@ impl SkyAtStation {
     pub fn label(self) -> &'static str {
         match self {
             SkyAtStation::Daylight => "day",
-            SkyAtStation::CivilTwilight => "civil twilight",
-            SkyAtStation::NauticalTwilight => "nautical twilight",
-            SkyAtStation::AstronomicalTwilight => "astro twilight",
+            SkyAtStation::CivilTwilight => "civil",
+            SkyAtStation::NauticalTwilight => "nautical",
+            SkyAtStation::AstronomicalTwilight => "astro",
             SkyAtStation::Night => "night",
         }
     }
@@ -300,8 +300,9 @@ impl PreparedStation {
         sin_el - self.station.horizon_deg(az).to_radians().sin()
     }
 
-    fn central_angle_rad(&self, r_ecef: &Vec3) -> f64 {
-        (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0).acos()
+    /// Cosine of the Earth central angle between the station and a position.
+    fn cos_central_angle(&self, r_ecef: &Vec3) -> f64 {
+        (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0)
     }
 }
 
@@ -436,12 +437,15 @@ fn passes_of_satellite(
         .iter()
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
         .collect();
+    // "Near" a station: inside its cone widened by one step of travel. Compared
+    // as cosines so that the common case needs no acos.
+    let near = bounds.max_angle_rate_rad_s * bounds.step_s;
+    let cos_near: Vec<f64> = cones.iter().map(|c| (c + near).min(std::f64::consts::PI).cos()).collect();
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
     let mut track = Track::new(options.start);
     let total_s = options.end.s_since(options.start);
     let h = bounds.step_s;
-    let near = bounds.max_angle_rate_rad_s * h;
     let mut t_s = 0.0_f64;
     let mut in_segment = false;
     let mut fail = None;
@@ -455,16 +459,21 @@ fn passes_of_satellite(
             }
         };
         let ecef = TemeToEarthFixed::at(t, &eop).state(&teme.position_km, &teme.velocity_km_s);
-        let margin = stations
+        let cosines: Vec<f64> = stations
             .iter()
-            .zip(&cones)
-            .map(|(s, cone)| s.central_angle_rad(&ecef.position_km) - cone)
-            .fold(f64::INFINITY, f64::min);
+            .map(|s| s.cos_central_angle(&ecef.position_km))
+            .collect();
+        let far = cosines.iter().zip(&cos_near).all(|(c, cn)| c < cn);
         let at_end = t_s >= total_s;
-        if margin > near && !at_end {
+        if far && !at_end {
+            let margin = cosines
+                .iter()
+                .zip(&cones)
+                .map(|(c, cone)| c.acos() - cone)
+                .fold(f64::INFINITY, f64::min);
             if in_segment {
                 track.push(t, ecef);
-                scan_segment(set, &prop, stations, &track, options, &mut passes);
+                scan_segment(set, stations, &track, &bounds, options, &mut passes);
                 track.clear();
                 in_segment = false;
             }
@@ -480,7 +489,7 @@ fn passes_of_satellite(
         }
     }
     if in_segment && track.times_s.len() >= 2 {
-        scan_segment(set, &prop, stations, &track, options, &mut passes);
+        scan_segment(set, stations, &track, &bounds, options, &mut passes);
     }
     (passes, fail)
 }
@@ -488,9 +497,9 @@ fn passes_of_satellite(
 /// Finds the passes inside one stretch of dense samples, for every station.
 fn scan_segment(
     set: &ElementSet,
-    prop: &Propagator,
     stations: &[PreparedStation],
     track: &Track,
+    bounds: &OrbitBounds,
     options: &PassOptions,
     passes: &mut Vec<Pass>,
 ) {
@@ -500,6 +509,20 @@ fn scan_segment(
     }
     let total_s = options.end.s_since(options.start);
     for st in stations {
+        let cone = st.cone_half_angle_rad(bounds.max_radius_km);
+        // Between two samples the central angle can shrink by at most
+        // rate × step; a station every sample of which stays farther than that
+        // outside its cone cannot see the satellite anywhere in the segment.
+        let reach = bounds.max_angle_rate_rad_s * bounds.step_s;
+        let cos_reach = (cone + reach).min(std::f64::consts::PI).cos();
+        let reachable_at: Vec<bool> = track
+            .states
+            .iter()
+            .map(|s| st.cos_central_angle(&s.position_km) >= cos_reach)
+            .collect();
+        if !reachable_at.iter().any(|&r| r) {
+            continue;
+        }
         let f: Vec<f64> = track
             .states
             .iter()
@@ -510,7 +533,8 @@ fn scan_segment(
         for i in 1..n - 1 {
             let is_max = f[i] >= f[i - 1] && f[i] >= f[i + 1];
             let is_min = f[i] <= f[i - 1] && f[i] <= f[i + 1];
-            if is_max && f[i] <= 0.0 {
+            let reachable = reachable_at[i - 1] || reachable_at[i] || reachable_at[i + 1];
+            if is_max && f[i] <= 0.0 && reachable {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.at(t).position_km),
                     track.time(i - 1),
@@ -548,14 +572,14 @@ fn scan_segment(
             } else if fa > 0.0 && fb <= 0.0 {
                 let t = brent_root(clearance_at, ta, tb, fa, fb, 1e-4);
                 if let Some((aos, clipped)) = open.take() {
-                    passes.push(describe_pass(set, prop, st, track, options, aos, t, clipped, false));
+                    passes.push(describe_pass(set, st, track, options, aos, t, clipped, false));
                 }
             }
         }
         if let Some((aos, clipped)) = open {
             let last = points[points.len() - 1].0;
             let los_clipped = last >= total_s - 1e-9;
-            passes.push(describe_pass(set, prop, st, track, options, aos, last, clipped, los_clipped));
+            passes.push(describe_pass(set, st, track, options, aos, last, clipped, los_clipped));
         }
     }
 }
@@ -563,7 +587,6 @@ fn scan_segment(
 #[allow(clippy::too_many_arguments)]
 fn describe_pass(
     set: &ElementSet,
-    prop: &Propagator,
     st: &PreparedStation,
     track: &Track,
     options: &PassOptions,
@@ -629,9 +652,9 @@ fn describe_pass(
             max_rate_hz_s: (c.frequency_hz * range_accel / SPEED_OF_LIGHT_KM_S).abs(),
         })
         .collect();
-    let illumination = illumination_spans(prop, t0.add_s(aos_s), t0.add_s(los_s));
+    let illumination = illumination_spans(track, t0, aos_s, los_s, &eop);
     let mount_warnings = match &st.station.mount {
-        Some(m) => mount_warnings(&look, aos_s, los_s, t0, m),
+        Some(m) => mount_warnings(&look, aos_s, los_s, tmax_s, t0, m),
         None => Vec::new(),
     };
     Pass {
@@ -679,162 +702,257 @@ pub fn tuned_frequency_hz(f_hz: f64, direction: LinkDirection, range_rate_km_s: 
     }
 }
 
-/// Sunlit/penumbra/umbra stretches over [aos, los], from direct SGP4 states
-/// every 10 s with each transition bisected to 10 ms.
-fn illumination_spans(prop: &Propagator, aos: UtcTime, los: UtcTime) -> Vec<IlluminationSpan> {
-    let sun = sun_position_teme_km(aos.add_s(los.s_since(aos) / 2.0));
-    let state_at = |t: UtcTime| -> Option<Illumination> {
-        prop.state_at(t).ok().map(|s| shadow(&s.position_km, &sun).0)
+/// Sunlit/penumbra/umbra stretches over [aos, los], from the interpolated
+/// track every 20 s with each transition bisected to 10 ms; the scan resumes
+/// from each transition, so a penumbra shorter than the step is still found
+/// on the way into or out of the umbra. (A brush with the penumbra that starts
+/// and ends between two samples is not: the shadow's edge is ~10 s wide.) The Sun's
+/// direction is fixed over a pass (it moves 0.007° per 10 minutes) but is
+/// rotated into the Earth-fixed frame at each sample.
+fn illumination_spans(
+    track: &Track,
+    t0: UtcTime,
+    aos_s: f64,
+    los_s: f64,
+    eop: &EarthOrientation,
+) -> Vec<IlluminationSpan> {
+    let sun_teme = sun_position_teme_km(t0.add_s(0.5 * (aos_s + los_s)));
+    // The Sun turns with the Earth-fixed frame by ~2.5° per 10 minutes; a
+    // straight blend of its directions at AOS and LOS is within 0.02° of it
+    // over a LEO pass (the shadow's edge is half a degree wide).
+    let sun_a = TemeToEarthFixed::at(t0.add_s(aos_s), eop).position(&sun_teme);
+    let sun_b = TemeToEarthFixed::at(t0.add_s(los_s), eop).position(&sun_teme);
+    let span = (los_s - aos_s).max(1e-9);
+    let state_at = |t_s: f64| -> Illumination {
+        let u = ((t_s - aos_s) / span).clamp(0.0, 1.0);
+        let sun = [
+            sun_a[0] + u * (sun_b[0] - sun_a[0]),
+            sun_a[1] + u * (sun_b[1] - sun_a[1]),
+            sun_a[2] + u * (sun_b[2] - sun_a[2]),
+        ];
+        shadow(&track.at(t_s).position_km, &sun).0
     };
     let mut spans = Vec::new();
-    let Some(mut current) = state_at(aos) else {
-        return spans;
-    };
-    let mut span_start = aos;
-    let total = los.s_since(aos);
-    let step = 10.0;
-    let mut prev_t = 0.0;
-    let mut k = 1;
+    let mut current = state_at(aos_s);
+    let mut span_start = aos_s;
+    let step = 20.0;
+    let mut prev_t = aos_s;
     loop {
-        let t_s = (k as f64 * step).min(total);
-        let Some(s) = state_at(aos.add_s(t_s)) else {
-            break;
-        };
+        let t_s = (prev_t + step).min(los_s);
+        let s = state_at(t_s);
         if s != current {
-            // Bisect the change between prev_t and t_s.
             let (mut lo, mut hi) = (prev_t, t_s);
             while hi - lo > 0.01 {
                 let mid = 0.5 * (lo + hi);
-                if state_at(aos.add_s(mid)) == Some(current) {
+                if state_at(mid) == current {
                     lo = mid;
                 } else {
                     hi = mid;
                 }
             }
-            let change = aos.add_s(hi);
             spans.push(IlluminationSpan {
                 state: current,
-                start: span_start,
-                end: change,
+                start: t0.add_s(span_start),
+                end: t0.add_s(hi),
             });
-            span_start = change;
-            current = state_at(change).unwrap_or(s);
+            span_start = hi;
+            current = state_at(hi);
+            prev_t = hi;
+            continue;
         }
         prev_t = t_s;
-        if t_s >= total {
+        if t_s >= los_s {
             break;
         }
-        k += 1;
     }
     spans.push(IlluminationSpan {
         state: current,
-        start: span_start,
-        end: los,
+        start: t0.add_s(span_start),
+        end: t0.add_s(los_s),
     });
     spans
 }
 
-/// Where the pass needs more azimuth or elevation rate than the mount has,
-/// sampled every 0.5 s (rates change over seconds near culmination).
+/// Where the pass needs more azimuth or elevation rate than the mount has.
+/// Rates are central differences over 0.5 s, checked every 5 s and at
+/// culmination (where the azimuth rate peaks); wherever a rate comes within
+/// half of its limit, that stretch is re-checked every 0.5 s.
 fn mount_warnings(
     look: &dyn Fn(f64) -> LookAngles,
     aos_s: f64,
     los_s: f64,
+    tmax_s: f64,
     t0: UtcTime,
     limits: &crate::station::MountLimits,
 ) -> Vec<MountWarning> {
-    let dt = 0.5;
+    let rates = |t: f64| -> (f64, f64) {
+        let a = (t - 0.25).max(aos_s);
+        let b = (t + 0.25).min(los_s);
+        if b <= a {
+            return (0.0, 0.0);
+        }
+        let (la, lb) = (look(a), look(b));
+        let daz = (lb.azimuth_deg - la.azimuth_deg + 540.0).rem_euclid(360.0) - 180.0;
+        (
+            (daz / (b - a)).abs(),
+            ((lb.elevation_deg - la.elevation_deg) / (b - a)).abs(),
+        )
+    };
+    let limit = [limits.max_azimuth_rate_deg_s, limits.max_elevation_rate_deg_s];
+    // Coarse scan: which 5 s cells need a closer look?
+    let mut coarse: Vec<f64> = Vec::new();
+    let mut t = aos_s;
+    while t < los_s {
+        coarse.push(t);
+        t += 5.0;
+    }
+    coarse.push(los_s);
+    let mut hot = vec![false; coarse.len()];
+    for (k, &tc) in coarse.iter().enumerate() {
+        let (az, el) = rates(tc);
+        if az > 0.5 * limit[0] || el > 0.5 * limit[1] {
+            hot[k] = true;
+        }
+    }
+    let (az, el) = rates(tmax_s);
+    if az > 0.5 * limit[0] || el > 0.5 * limit[1] {
+        let k = coarse.partition_point(|&c| c <= tmax_s).saturating_sub(1);
+        hot[k] = true;
+    }
     let mut out = Vec::new();
-    for (axis, limit) in [
-        ("azimuth", limits.max_azimuth_rate_deg_s),
-        ("elevation", limits.max_elevation_rate_deg_s),
-    ] {
-        let mut t = aos_s;
-        let mut prev = look(t);
+    for (axis_index, axis) in ["azimuth", "elevation"].into_iter().enumerate() {
         let mut open: Option<(f64, f64)> = None; // (start, peak)
-        while t < los_s {
-            let t_next = (t + dt).min(los_s);
-            let next = look(t_next);
-            let rate = if axis == "azimuth" {
-                let mut d = next.azimuth_deg - prev.azimuth_deg;
-                if d > 180.0 {
-                    d -= 360.0;
-                }
-                if d < -180.0 {
-                    d += 360.0;
-                }
-                (d / (t_next - t)).abs()
-            } else {
-                ((next.elevation_deg - prev.elevation_deg) / (t_next - t)).abs()
-            };
-            if rate > limit {
-                open = Some(match open {
-                    None => (t, rate),
-                    Some((s, p)) => (s, p.max(rate)),
-                });
-            } else if let Some((s, p)) = open.take() {
+        let close = |open: &mut Option<(f64, f64)>, end: f64, out: &mut Vec<MountWarning>| {
+            if let Some((s, p)) = open.take() {
                 out.push(MountWarning {
                     axis: axis.to_string(),
                     start: t0.add_s(s),
-                    end: t0.add_s(t),
+                    end: t0.add_s(end),
                     required_rate_deg_s: p,
-                    limit_deg_s: limit,
-                    excess_deg_s: p - limit,
+                    limit_deg_s: limit[axis_index],
+                    excess_deg_s: p - limit[axis_index],
                 });
             }
-            prev = next;
-            t = t_next;
+        };
+        for k in 0..coarse.len() {
+            // A hot cell and its neighbours are scanned finely.
+            let near_hot = hot[k] || (k > 0 && hot[k - 1]) || (k + 1 < hot.len() && hot[k + 1]);
+            if !near_hot {
+                close(&mut open, coarse[k], &mut out);
+                continue;
+            }
+            let end = coarse.get(k + 1).copied().unwrap_or(los_s);
+            let mut tf = coarse[k];
+            while tf < end {
+                let r = rates(tf);
+                let rate = if axis_index == 0 { r.0 } else { r.1 };
+                if rate > limit[axis_index] {
+                    open = Some(match open {
+                        None => (tf, rate),
+                        Some((s0, p)) => (s0, p.max(rate)),
+                    });
+                } else {
+                    close(&mut open, tf, &mut out);
+                }
+                tf += 0.5;
+            }
         }
-        if let Some((s, p)) = open {
-            out.push(MountWarning {
-                axis: axis.to_string(),
-                start: t0.add_s(s),
-                end: t0.add_s(los_s),
-                required_rate_deg_s: p,
-                limit_deg_s: limit,
-                excess_deg_s: p - limit,
-            });
-        }
+        close(&mut open, los_s, &mut out);
     }
     out
 }
 
-/// Golden-section search for the extremum of a unimodal function on [a, b],
-/// to 1 ms. Returns (argument, value).
+/// Extremum of a unimodal function on [a, b] to about 1 ms, by Brent's
+/// method (golden section with parabolic steps; Brent 1973, "Algorithms for
+/// Minimization without Derivatives", ch. 5). Returns (argument, value); the
+/// ends are considered too, as a clipped pass can peak on one.
 pub(crate) fn golden_extremum(
     f: impl Fn(f64) -> f64,
     a: f64,
     b: f64,
     maximise: bool,
 ) -> (f64, f64) {
-    let sign = if maximise { 1.0 } else { -1.0 };
+    let sign = if maximise { -1.0 } else { 1.0 };
     let g = |t: f64| sign * f(t);
-    let r = 0.618_033_988_749_894_9;
-    let (mut a, mut b) = (a, b);
-    let mut c = b - r * (b - a);
-    let mut d = a + r * (b - a);
-    let (mut fc, mut fd) = (g(c), g(d));
-    while b - a > 1e-3 {
-        if fc > fd {
-            b = d;
-            d = c;
-            fd = fc;
-            c = b - r * (b - a);
-            fc = g(c);
+    const CGOLD: f64 = 0.381_966_011_250_105_1;
+    let tol = 5e-4;
+    let (mut a, mut b) = (a.min(b), a.max(b));
+    let (lo, hi) = (a, b);
+    let mut x = a + CGOLD * (b - a);
+    let (mut w, mut v) = (x, x);
+    let mut fx = g(x);
+    let (mut fw, mut fv) = (fx, fx);
+    let mut d: f64 = 0.0;
+    let mut e: f64 = 0.0;
+    for _ in 0..100 {
+        let xm = 0.5 * (a + b);
+        let tol1 = tol + 1e-12 * x.abs();
+        let tol2 = 2.0 * tol1;
+        if (x - xm).abs() <= tol2 - 0.5 * (b - a) {
+            break;
+        }
+        let mut golden = true;
+        if e.abs() > tol1 {
+            // Parabola through x, w, v.
+            let r = (x - w) * (fx - fv);
+            let mut q = (x - v) * (fx - fw);
+            let mut p = (x - v) * q - (x - w) * r;
+            q = 2.0 * (q - r);
+            if q > 0.0 {
+                p = -p;
+            }
+            q = q.abs();
+            let e_old = e;
+            if p.abs() < (0.5 * q * e_old).abs() && p > q * (a - x) && p < q * (b - x) {
+                e = d;
+                d = p / q;
+                let u = x + d;
+                if u - a < tol2 || b - u < tol2 {
+                    d = if xm >= x { tol1 } else { -tol1 };
+                }
+                golden = false;
+            }
+        }
+        if golden {
+            e = if x >= xm { a - x } else { b - x };
+            d = CGOLD * e;
+        }
+        let u = if d.abs() >= tol1 { x + d } else { x + tol1.copysign(d) };
+        let fu = g(u);
+        if fu <= fx {
+            if u >= x {
+                a = x;
+            } else {
+                b = x;
+            }
+            v = w;
+            fv = fw;
+            w = x;
+            fw = fx;
+            x = u;
+            fx = fu;
         } else {
-            a = c;
-            c = d;
-            fc = fd;
-            d = a + r * (b - a);
-            fd = g(d);
+            if u < x {
+                a = u;
+            } else {
+                b = u;
+            }
+            if fu <= fw || w == x {
+                v = w;
+                fv = fw;
+                w = u;
+                fw = fu;
+            } else if fu <= fv || v == x || v == w {
+                v = u;
+                fv = fu;
+            }
         }
     }
-    // Also consider the ends: the extremum of a clipped pass can sit on one.
-    let mut best = (0.5 * (a + b), g(0.5 * (a + b)));
-    for t in [a, b] {
-        let v = g(t);
-        if v > best.1 {
-            best = (t, v);
+    let mut best = (x, fx);
+    for t in [lo, hi] {
+        let val = g(t);
+        if val < best.1 {
+            best = (t, val);
         }
     }
     (best.0, sign * best.1)

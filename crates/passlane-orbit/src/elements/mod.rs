@@ -26,6 +26,8 @@ pub struct SourceRef {
 pub struct ElementSet {
     pub name: String,
     pub catalog_number: u32,
+    /// In the TLE form `26901A` (two-digit year, launch number, piece); an OMM
+    /// `OBJECT_ID` such as `2026-901A` is converted to it.
     pub international_designator: String,
     pub classification: char,
     pub epoch: UtcTime,
@@ -100,7 +102,9 @@ pub struct LoadReport {
 
 impl LoadReport {
     pub fn errors(&self) -> impl Iterator<Item = &Diagnostic> {
-        self.diagnostics.iter().filter(|d| d.severity == Severity::Error)
+        self.diagnostics
+            .iter()
+            .filter(|d| d.severity == Severity::Error)
     }
 
     /// Appends another report, then keeps one record per catalog number (the
@@ -112,8 +116,9 @@ impl LoadReport {
     }
 }
 
-mod tle;
+mod lines;
 mod omm;
+mod tle;
 
 pub use tle::tle_checksum;
 
@@ -121,6 +126,15 @@ pub use tle::tle_checksum;
 /// XML (`<`), JSON (`[` or `{`), OMM KVN (`CCSDS_OMM_VERS`), else TLE.
 /// `file` is the name used in diagnostics and in each record's [`SourceRef`].
 pub fn load(bytes: &[u8], file: &str, options: LoadOptions) -> LoadReport {
+    let mut report = load_records(bytes, file, options);
+    dedup_newest(&mut report);
+    report
+}
+
+/// As [`load`], but keeps every good record even when catalog numbers repeat
+/// (for verification files, where the same object appears with different
+/// elements on purpose).
+pub fn load_records(bytes: &[u8], file: &str, options: LoadOptions) -> LoadReport {
     let mut report = LoadReport::default();
     let first = bytes
         .iter()
@@ -139,7 +153,6 @@ pub fn load(bytes: &[u8], file: &str, options: LoadOptions) -> LoadReport {
         Some(_) if contains(bytes, b"CCSDS_OMM_VERS") => omm::load_kvn(bytes, file, &mut report),
         Some(_) => tle::load_tle(bytes, file, options, &mut report),
     }
-    dedup_newest(&mut report);
     report
 }
 
@@ -180,7 +193,9 @@ fn dedup_newest(report: &mut LoadReport) {
         }
     }
     // Keep the original order of the survivors (stable for users and tests).
-    report.sets.sort_by_key(|s| (s.source.file.clone(), s.source.line));
+    report
+        .sets
+        .sort_by_key(|s| (s.source.file.clone(), s.source.line));
 }
 
 impl ElementSet {
@@ -196,7 +211,10 @@ impl ElementSet {
             ("mean motion", self.mean_motion_rev_day),
             ("BSTAR", self.bstar_per_earth_radii),
             ("mean motion derivative", self.mean_motion_dot_rev_day2),
-            ("mean motion second derivative", self.mean_motion_ddot_rev_day3),
+            (
+                "mean motion second derivative",
+                self.mean_motion_ddot_rev_day3,
+            ),
         ];
         for (name, v) in finite {
             if !v.is_finite() {
@@ -209,11 +227,17 @@ impl ElementSet {
         if !(0.0..1.0).contains(&self.eccentricity) {
             return Err((
                 "eccentricity",
-                format!("{} is outside [0, 1): SGP4 needs a closed orbit", self.eccentricity),
+                format!(
+                    "{} is outside [0, 1): SGP4 needs a closed orbit",
+                    self.eccentricity
+                ),
             ));
         }
         if !(0.0..=180.0).contains(&self.inclination_deg) {
-            return Err(("inclination", format!("{} deg is outside 0-180", self.inclination_deg)));
+            return Err((
+                "inclination",
+                format!("{} deg is outside 0-180", self.inclination_deg),
+            ));
         }
         if self.mean_motion_rev_day <= 0.0 {
             return Err((

