@@ -164,10 +164,7 @@ impl Document {
     /// Loads element sets from bytes into the fleet or the catalog, recording
     /// what loaded and every diagnostic.
     pub fn add_element_bytes(&mut self, bytes: &[u8], name: &str, own_fleet: bool) -> usize {
-        let mut report = passlane_orbit::elements::load(bytes, name, LoadOptions::default());
-        if report.sets.is_empty() && report.diagnostics.is_empty() {
-            report.sets = crate::interim_tle::parse(&String::from_utf8_lossy(bytes), name);
-        }
+        let report = passlane_orbit::elements::load(bytes, name, LoadOptions::default());
         let n = report.sets.len();
         let target = if own_fleet { &mut self.fleet } else { &mut self.catalog };
         // A newer set for a catalog number already loaded replaces it.

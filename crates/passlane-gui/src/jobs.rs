@@ -12,7 +12,7 @@ use eframe::egui;
 use passlane_plan::Progress;
 
 /// Fraction done and cancel flag, shared between the UI and a worker.
-#[derive(Debug, Default)]
+#[derive(Default)]
 pub struct JobProgress {
     cancel: AtomicBool,
     fraction_bits: AtomicU64,

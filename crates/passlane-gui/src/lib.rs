@@ -17,7 +17,6 @@ pub mod app;
 pub mod coast;
 pub mod doc;
 pub mod geo;
-mod interim_tle;
 pub mod jobs;
 pub mod palette;
 pub mod state;

@@ -2,15 +2,26 @@
 //! range over time and the encounter-plane picture (miss vector, combined
 //! covariance ellipse, hard-body circle to scale).
 //!
-//! The screening and collision-probability modules are not in the library yet;
-//! until they are, the table is empty and the view says so. The drawing of the
-//! encounter plane works from plain numbers ([`EncounterPicture`]) so wiring the
-//! library's results in is a matter of filling that struct.
+//! Screening runs `passlane_plan::screen::screen_with_progress` on a worker
+//! thread (fleet against the catalog, or the fleet against itself when no
+//! catalog is loaded). With element sets only there is no covariance, so the
+//! Pc column shows the maximum probability over an unknown isotropic
+//! covariance (`pc_max_isotropic`), labelled as such. The encounter-plane
+//! drawing works from plain numbers ([`EncounterPicture`]); it is shown once
+//! events carry a covariance (CDM import is not wired yet).
 
 use eframe::egui::{self, Align2, FontId, Pos2, Sense, Shape, Stroke, vec2};
+use egui_plot::{Line, Plot, PlotPoints};
+use passlane_orbit::frames::{norm, sub};
+use passlane_orbit::Propagator;
+use passlane_plan::screen::{
+    CloseApproach, ScreeningRequest, ScreeningResult, ScreeningSettings, ScreeningVolume,
+    screen_with_progress,
+};
 
+use crate::jobs::{Job, Poll, progress_ui};
 use crate::palette;
-use crate::state::AppState;
+use crate::state::{AppState, time_label};
 
 /// One close-approach row as the table shows it.
 #[derive(Debug, Clone, PartialEq)]
@@ -44,19 +55,54 @@ enum SortKey {
 
 pub struct ApproachesView {
     rows: Vec<ApproachRow>,
+    events: Vec<CloseApproach>,
     selected: Option<usize>,
     sort: SortKey,
     descending: bool,
+    job: Option<Job<ScreeningResult>>,
+    /// Document revision the rows were screened for.
+    screened_revision: Option<u64>,
+    diagnostics: Vec<String>,
+    /// Range over ±10 min around the selected event's TCA: (minutes from TCA, km).
+    range_series: Vec<[f64; 2]>,
 }
 
 impl Default for ApproachesView {
     fn default() -> Self {
-        ApproachesView { rows: Vec::new(), selected: None, sort: SortKey::Tca, descending: false }
+        ApproachesView {
+            rows: Vec::new(),
+            events: Vec::new(),
+            selected: None,
+            sort: SortKey::Tca,
+            descending: false,
+            job: None,
+            screened_revision: None,
+            diagnostics: Vec::new(),
+            range_series: Vec::new(),
+        }
+    }
+}
+
+/// The row for one event; the Pc is the worst case over covariance size.
+fn row_of(e: &CloseApproach, hard_body_radius_m: f64) -> ApproachRow {
+    let pc = passlane_plan::pc::pc_max_isotropic(e.miss_distance_km * 1000.0, hard_body_radius_m)
+        .ok()
+        .map(|p| p.pc_max);
+    ApproachRow {
+        primary: e.primary.clone(),
+        secondary: e.secondary.clone(),
+        tca_iso: e.tca.to_iso_ms(),
+        miss_km: e.miss_distance_km,
+        ric_km: [e.radial_km, e.in_track_km, e.cross_track_km],
+        relative_speed_km_s: e.relative_speed_km_s,
+        pc,
+        covariance_source: "none: max over size".into(),
     }
 }
 
 impl ApproachesView {
     pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
+        let before = self.selected;
         ui.colored_label(
             palette::YELLOW,
             "Element-set screening is advisory: defer to official conjunction messages and coordinate with the other operator.",
@@ -67,15 +113,111 @@ impl ApproachesView {
             state.doc.catalog.len(),
             state.doc.scenario.screening.threshold_km
         ));
+        self.poll(state);
+        ui.horizontal(|ui| {
+            let running = self.job.is_some();
+            if ui.add_enabled(!running, egui::Button::new("Run screening")).clicked() {
+                self.start(state, ui.ctx().clone());
+            }
+            if let Some(job) = &self.job
+                && progress_ui(ui, &job.label, &job.progress, job.started)
+            {
+                job.progress.cancel();
+            }
+            if self.screened_revision.is_some() && self.screened_revision != Some(state.doc.revision) {
+                ui.colored_label(palette::YELLOW, "Inputs changed since this screening: run it again.");
+            }
+        });
+        for d in self.diagnostics.iter().take(20) {
+            ui.colored_label(palette::VERMILLION, d);
+        }
         if self.rows.is_empty() {
-            ui.add_space(8.0);
-            ui.label("Screening is not available in this build yet: close approaches will be listed here once the screening module is part of the library.");
+            ui.label(if self.screened_revision.is_some() {
+                "No close approaches inside the threshold in this window."
+            } else {
+                "Not screened yet: press Run screening."
+            });
         }
         ui.add_space(6.0);
-        self.table(ui);
+        egui::ScrollArea::vertical().id_salt("approach-scroll").max_height(ui.available_height() * 0.5).show(ui, |ui| {
+            self.table(ui);
+        });
+        if self.selected != before {
+            self.compute_range(state);
+        }
         if let Some(row) = self.selected.and_then(|i| self.rows.get(i)).cloned() {
             ui.separator();
-            ui.label(format!("{} and {} at {}", row.primary, row.secondary, row.tca_iso));
+            ui.label(format!(
+                "{} and {} at {}: miss {:.3} km, Pc shown is the maximum over an unknown covariance size (element sets carry no covariance).",
+                row.primary, row.secondary, row.tca_iso, row.miss_km
+            ));
+            let series = self.range_series.clone();
+            Plot::new("approach-range").height(ui.available_height().max(120.0)).show(ui, |p| {
+                p.line(Line::new("range (km) vs minutes from TCA", PlotPoints::from(series)).color(palette::SKY_BLUE));
+            });
+        }
+    }
+
+    fn start(&mut self, state: &AppState, ctx: egui::Context) {
+        let fleet = state.doc.fleet.clone();
+        let catalog = state.doc.catalog.clone();
+        let (start, end) = state.doc.window();
+        let settings = ScreeningSettings {
+            volume: ScreeningVolume::Sphere { radius_km: state.doc.scenario.screening.threshold_km },
+            ..ScreeningSettings::default()
+        };
+        self.job = Some(Job::spawn("Screening", state.doc.revision, Some(ctx), move |p| {
+            use passlane_plan::Progress;
+            let request = ScreeningRequest {
+                primaries: &fleet,
+                secondaries: if catalog.is_empty() { None } else { Some(&catalog) },
+                start,
+                end,
+                settings,
+            };
+            screen_with_progress(&request, &|f| {
+                p.report(f);
+                !p.cancelled()
+            })
+        }));
+    }
+
+    fn poll(&mut self, state: &AppState) {
+        let Some(job) = &self.job else { return };
+        match job.poll() {
+            Poll::Running => {}
+            Poll::Done(result) => {
+                self.screened_revision = Some(job.revision);
+                self.job = None;
+                let hbr = state.doc.scenario.screening.default_hard_body_radius_m;
+                self.rows = result.events.iter().map(|e| row_of(e, hbr)).collect();
+                self.events = result.events;
+                self.diagnostics = result.diagnostics.iter().map(|d| format!("{}: {}", d.name, d.message)).collect();
+                if result.cancelled {
+                    self.diagnostics.insert(0, format!("Cancelled: screened until {}", time_label(result.screened_until)));
+                }
+                self.sort_rows();
+            }
+            Poll::Lost => {
+                self.job = None;
+                self.diagnostics = vec!["The screening stopped unexpectedly.".into()];
+            }
+        }
+    }
+
+    /// Range between the two objects around TCA, from direct SGP4 states.
+    fn compute_range(&mut self, state: &AppState) {
+        self.range_series.clear();
+        let Some(row) = self.selected.and_then(|i| self.rows.get(i)) else { return };
+        let Some(e) = self.events.iter().find(|e| e.tca.to_iso_ms() == row.tca_iso && e.primary == row.primary && e.secondary == row.secondary) else { return };
+        let find = |n: u32| state.doc.fleet.iter().chain(&state.doc.catalog).find(|s| s.catalog_number == n);
+        let (Some(a), Some(b)) = (find(e.primary_catalog_number), find(e.secondary_catalog_number)) else { return };
+        let (Ok(pa), Ok(pb)) = (Propagator::new(a), Propagator::new(b)) else { return };
+        for k in -120..=120 {
+            let t = e.tca.add_s(f64::from(k) * 5.0);
+            if let (Ok(sa), Ok(sb)) = (pa.state_at(t), pb.state_at(t)) {
+                self.range_series.push([f64::from(k) * 5.0 / 60.0, norm(&sub(&sa.position_km, &sb.position_km))]);
+            }
         }
     }
 
@@ -116,7 +258,7 @@ impl ApproachesView {
             ui.strong("Covariance");
             ui.end_row();
             for (i, r) in self.rows.iter().enumerate() {
-                if ui.selectable_label(self.selected == Some(i), &r.tca_iso).clicked() {
+                if ui.selectable_label(self.selected == Some(i), time_label(passlane_orbit::UtcTime::parse_iso(&r.tca_iso).unwrap_or_default())).clicked() {
                     self.selected = Some(i);
                 }
                 ui.label(format!("{} / {}", r.primary, r.secondary));

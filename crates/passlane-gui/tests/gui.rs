@@ -1,0 +1,104 @@
+//! Drives the app headless through its accessible labels and checks state,
+//! plus one image snapshot per main view (rendered by the software GPU path,
+//! so the thresholds tolerate small rasterisation differences).
+
+use std::time::{Duration, Instant};
+
+use egui_kittest::kittest::Queryable;
+use egui_kittest::{Harness, SnapshotOptions};
+use passlane_gui::{AppOptions, Document, PasslaneApp, Tab};
+use passlane_plan::{Silent, find_passes};
+
+fn app() -> PasslaneApp {
+    PasslaneApp::new(Document::demo(), AppOptions { config_dir: None, frame_stats: false, auto_passes: true })
+}
+
+fn harness(app: PasslaneApp) -> Harness<'static, PasslaneApp> {
+    Harness::builder()
+        .with_size([1400.0, 900.0])
+        .build_ui_state(|ui, app: &mut PasslaneApp| app.ui(ui), app)
+}
+
+/// Steps until the background pass search has delivered (it runs on a thread).
+fn wait_for_passes(h: &mut Harness<'static, PasslaneApp>) {
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while !h.state().passes_current() || h.state().passes_running() {
+        assert!(Instant::now() < deadline, "pass search did not finish");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    h.run_steps(3);
+}
+
+fn snapshot_options() -> SnapshotOptions {
+    SnapshotOptions::new().threshold(2.0).failed_pixel_count_threshold(2_000)
+}
+
+#[test]
+fn app_finds_the_same_passes_as_the_library_call() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    let state = &h.state().state;
+    let direct = find_passes(&state.doc.fleet, &state.doc.scenario.stations, &state.pass_options(), &Silent);
+    assert!(!direct.passes.is_empty(), "the demo should have passes");
+    assert_eq!(state.passes.passes, direct.passes);
+}
+
+#[test]
+fn select_a_pass_then_open_close_approaches_and_move_the_cursor() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    h.get_by_label("Sky view").click();
+    h.run_steps(2);
+    assert_eq!(h.state().tab, Tab::Sky);
+    // Pass list rows read "HH:MM · spacecraft · station · max°".
+    let first = h.state().state.passes.passes[0].clone();
+    let label_prefix = format!("{} · {} · {}", &first.aos.to_iso_s()[11..16], first.satellite, first.station);
+    h.get_by_label_contains(&label_prefix).click();
+    h.run_steps(2);
+    assert_eq!(h.state().state.selected_pass, Some(0));
+    h.snapshot_options("sky_view", &snapshot_options());
+
+    h.get_by_label("Close approaches").click();
+    h.run_steps(2);
+    assert_eq!(h.state().tab, Tab::Approaches);
+    assert!(h.query_by_label_contains("Element-set screening is advisory").is_some());
+    h.snapshot_options("close_approaches", &snapshot_options());
+
+    let before = h.state().state.cursor;
+    h.get_by_label("Play").click();
+    for _ in 0..5 {
+        h.step();
+    }
+    assert!(h.state().state.cursor > before, "playing moves the time cursor");
+    h.get_by_label("Pause").click();
+    h.run_steps(1);
+    assert!(!h.state().playing);
+}
+
+#[test]
+fn map_view_snapshot() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    // A cursor at a fixed instant keeps the picture reproducible.
+    let start = h.state().state.doc.window().0;
+    h.state_mut().state.cursor = start.add_s(5.0 * 3600.0);
+    h.run_steps(2);
+    h.snapshot_options("map", &snapshot_options());
+}
+
+#[test]
+fn fleet_view_shows_orbit_summaries_and_stations() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    h.get_by_label("Fleet and stations").click();
+    h.run_steps(2);
+    assert!(h.query_by_label("Orbit summary").is_some());
+    assert!(h.query_by_label("KRSL-1 HERON").is_some());
+    h.snapshot_options("fleet", &snapshot_options());
+    // Adding a station edits the document and makes the passes out of date.
+    h.get_by_label("Add station").click();
+    h.run_steps(1);
+    assert!(h.state().state.doc.dirty);
+    assert_eq!(h.state().state.doc.scenario.stations.len(), 4);
+}
