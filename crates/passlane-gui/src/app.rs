@@ -420,7 +420,7 @@ impl PasslaneApp {
     fn guard_modal(&mut self, ui: &egui::Ui) {
         let Some(pending) = self.pending.clone() else { return };
         let mut answer = None;
-        egui::Modal::new(egui::Id::new("unsaved-guard")).show(ui.ctx(), |ui| {
+        egui::Modal::new(egui::Id::unique("unsaved-guard")).show(ui.ctx(), |ui| {
             ui.heading("Unsaved changes");
             ui.label("This scenario has changes that are not saved.");
             ui.horizontal(|ui| {

@@ -31,7 +31,7 @@ fn wait_for_passes(h: &mut Harness<'static, PasslaneApp>) {
 }
 
 fn snapshot_options() -> SnapshotOptions {
-    SnapshotOptions::new().threshold(2.0).failed_pixel_count_threshold(2_000)
+    SnapshotOptions::new().threshold(2.0).max_failed_pixels(2_000)
 }
 
 #[test]

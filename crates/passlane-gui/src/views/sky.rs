@@ -206,7 +206,7 @@ impl SkyView {
         let t0 = pass.aos;
         let minutes = |t: UtcTime| t.s_since(t0) / 60.0;
         let h = ((ui.available_height() - 60.0) / 3.0).max(90.0);
-        let group = egui::Id::new("sky-series-x");
+        let group = egui::Id::unique("sky-series-x");
         let cursor_min = minutes(cursor);
         let cursor_line = || VLine::new("cursor", cursor_min).color(palette::CURSOR);
 
