@@ -211,7 +211,7 @@ impl Document {
             .and_then(|p| p.file_name())
             .map(|f| f.to_string_lossy().into_owned())
             .unwrap_or_else(|| "(not saved)".to_string());
-        format!("{}{} — {}", if self.dirty { "● " } else { "" }, self.scenario.name, file)
+        format!("{}{} — {}", if self.dirty { "* " } else { "" }, self.scenario.name, file)
     }
 }
 

@@ -209,8 +209,8 @@ impl MapView {
                 ui.label(&set.name);
             }
             ui.separator();
-            ui.label("□ station, dashed: visibility at the circle altitude and mask");
-            ui.colored_label(palette::YELLOW, "○ sub-solar point");
+            ui.label("squares: stations; dashed: visibility at the circle altitude and mask");
+            ui.colored_label(palette::YELLOW, "ring: sub-solar point");
             ui.label("shaded: night");
         });
     }

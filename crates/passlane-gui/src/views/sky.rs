@@ -196,8 +196,8 @@ impl SkyView {
             painter.circle(at(r.azimuth_deg, r.elevation_deg), 6.0, palette::CURSOR, Stroke::new(1.5, Color32::BLACK));
         }
         ui.horizontal_wrapped(|ui| {
-            ui.colored_label(palette::ORANGE, "━ sunlit");
-            ui.colored_label(palette::BLUE, "╍ in Earth's shadow");
+            ui.colored_label(palette::ORANGE, "solid: sunlit");
+            ui.colored_label(palette::BLUE, "dashed: in Earth shadow");
             ui.label("grey band: below mask / minimum elevation");
         });
     }
