@@ -16,6 +16,9 @@ usage:
   passlane ephemeris ...         states on a time grid (TEME, Earth-fixed or geodetic)
   passlane passes ...            contact windows of each spacecraft over each station
   passlane track ...             pointing table (az/el/range/Doppler) of one pass
+  passlane screen ...            close approaches in a fleet or against a catalog, with Pc
+  passlane cdm FILE              re-assess a CCSDS conjunction data message
+  passlane plan ...              network contact plan; calendar, pointing and OEM files
 
 Run `passlane COMMAND --help` for a command's options.
 Times are ISO 8601 UTC, e.g. 2026-12-01T12:00:00Z.
@@ -43,6 +46,9 @@ fn main() -> ExitCode {
         "ephemeris" => (cli::ephemeris_cmd::USAGE, run_or_help(rest, cli::ephemeris_cmd::USAGE, &mut out, cli::ephemeris_cmd::run)),
         "passes" => (cli::passes_cmd::USAGE, run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run)),
         "track" => (cli::passes_cmd::TRACK_USAGE, run_or_help(rest, cli::passes_cmd::TRACK_USAGE, &mut out, cli::passes_cmd::run_track)),
+        "screen" => (cli::screen_cmd::USAGE, run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run)),
+        "cdm" => (cli::screen_cmd::CDM_USAGE, run_or_help(rest, cli::screen_cmd::CDM_USAGE, &mut out, cli::screen_cmd::run_cdm)),
+        "plan" => (cli::plan_cmd::USAGE, run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run)),
         other => {
             eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
             return ExitCode::from(2);

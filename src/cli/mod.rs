@@ -6,3 +6,5 @@ pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;
 pub mod passes_cmd;
+pub mod screen_cmd;
+pub mod plan_cmd;

@@ -117,3 +117,32 @@ fn sun_direction_matches_skyfield_de421_to_almanac_accuracy() {
         assert!(dr < 1e-4, "{t}: distance off by {dr}");
     }
 }
+
+#[test]
+fn polar_motion_matches_skyfield() {
+    // Reference: tests/fixtures/polar-motion-skyfield.json (skyfield 1.55
+    // TEME_to_ITRF with xp = 0.25", yp = 0.40"; values stated, not measured).
+    let fx = fixture("polar-motion-skyfield.json");
+    let eop_base = EarthOrientation {
+        polar_x_arcsec: fx["polar_x_arcsec"].as_f64().unwrap(),
+        polar_y_arcsec: fx["polar_y_arcsec"].as_f64().unwrap(),
+        ..Default::default()
+    };
+    let mut moved_m = 0.0_f64;
+    for s in fx["samples"].as_array().unwrap() {
+        let t = UtcTime::parse_iso(s["time_utc"].as_str().unwrap()).unwrap();
+        let eop = EarthOrientation { ut1_utc_s: s["ut1_utc_s"].as_f64().unwrap(), ..eop_base };
+        let r = v3(&s["teme_position_km"]);
+        let v = v3(&s["teme_velocity_km_s"]);
+        let ef = TemeToEarthFixed::at(t, &eop).state(&r, &v);
+        assert!(dist(&ef.position_km, &v3(&s["itrf_position_km"])) < 1e-6);
+        assert!(dist(&ef.velocity_km_s, &v3(&s["itrf_velocity_km_s"])) < 1e-6);
+        // Polar motion of a fraction of an arcsecond moves a LEO point by metres.
+        let plain = TemeToEarthFixed::at(t, &EarthOrientation { polar_x_arcsec: 0.0, polar_y_arcsec: 0.0, ..eop }).state(&r, &v);
+        moved_m = moved_m.max(dist(&plain.position_km, &ef.position_km) * 1000.0);
+        // The inverse rotation brings the position back.
+        let back = TemeToEarthFixed::at(t, &eop).position_to_teme(&ef.position_km);
+        assert!(dist(&back, &r) < 1e-9);
+    }
+    assert!(moved_m > 1.0 && moved_m < 30.0, "{moved_m} m");
+}

@@ -599,6 +599,7 @@ impl Cdm {
         let mut sections: [RawSection; 4] = Default::default();
         let mut current = Section::Header;
         let mut last_line = 0;
+        let mut pending_comments = Vec::new();
         for (i, raw) in text.lines().enumerate() {
             let line_no = i + 1;
             last_line = line_no;
@@ -607,8 +608,9 @@ impl Cdm {
                 continue;
             }
             if line == "COMMENT" || line.starts_with("COMMENT ") || line.starts_with("COMMENT\t") {
-                let c = line["COMMENT".len()..].trim().to_string();
-                sections[current as usize].comments.push(c);
+                // A comment belongs to the block of the keyword that follows it,
+                // so one written just before `OBJECT = OBJECT1` goes with OBJECT1.
+                pending_comments.push(line["COMMENT".len()..].trim().to_string());
                 continue;
             }
             let Some((key, value)) = line.split_once('=') else {
@@ -645,6 +647,7 @@ impl Cdm {
             }
             current = target;
             let sec = &mut sections[target as usize];
+            sec.comments.append(&mut pending_comments);
             if sec.items.is_empty() {
                 sec.first_line = line_no;
             }
@@ -657,6 +660,9 @@ impl Cdm {
                 line: line_no,
             });
         }
+        sections[current as usize]
+            .comments
+            .append(&mut pending_comments);
         // A block ends where the next non-empty one begins, or at the end of the text.
         let end_of = |idx: usize| -> usize {
             sections[idx + 1..]
@@ -1031,15 +1037,23 @@ impl Cdm {
     /// Rebuilds the encounter from the two states and covariances and computes
     /// the probability by every method, for a combined hard-body radius (m).
     ///
-    /// The states are used in whatever REF_FRAME the CDM gives (usually ITRF
-    /// or EME2000) without conversion. For the encounter geometry the
-    /// Earth-fixed/inertial distinction is minor: over the second or so of a
-    /// LEO encounter Earth turns by ~7e-5 rad, and the rotation's effect on
-    /// the relative velocity (ω × Δr, ~1e-4 m/s per metre of miss) is far below
-    /// the closing speed. Both states must be in the same frame; we do not
-    /// check REF_FRAME beyond that.
+    /// Inertial states (EME2000, GCRF) are used as given. Earth-fixed (ITRF)
+    /// states get the Earth-rotation term ω × r added back to their velocity
+    /// first, because each object's RTN axes (in which its covariance is
+    /// given) are defined by its inertial velocity; the frames' orientation
+    /// does not matter for the encounter geometry as long as both states share
+    /// it. Both states must be in the same frame.
     pub fn recompute(&self, hard_body_radius_m: f64) -> Result<CdmAssessment, EncounterError> {
-        let (s1, s2) = (&self.object1.state, &self.object2.state);
+        // RTN axes need inertial velocities: an Earth-fixed (ITRF) state gets
+        // ω × r added back (see conjunction::earth_fixed_to_aligned_inertial).
+        let inertial = |o: &CdmObject| {
+            if o.ref_frame.trim().to_ascii_uppercase().starts_with("ITRF") {
+                crate::conjunction::earth_fixed_to_aligned_inertial(&o.state)
+            } else {
+                o.state
+            }
+        };
+        let (s1, s2) = (&inertial(&self.object1), &inertial(&self.object2));
         let g = relative_geometry(s1, s2)?;
         let plane = encounter_plane(
             s1,

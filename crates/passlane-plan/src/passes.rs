@@ -399,9 +399,11 @@ impl OrbitBounds {
         let rp = (a * (1.0 - e) * 0.95).max(EARTH_RADIUS_WGS72_KM);
         let ra = a * (1.0 + e) * 1.05 + 50.0;
         let vp = (MU_WGS72_KM3_S2 * (2.0 / rp - 1.0 / a).max(0.0)).sqrt();
-        // Sub-satellite point angular speed ≤ inertial angular rate + Earth rotation;
-        // 20 % margin for perturbations.
-        let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.2;
+        // Sub-satellite point angular speed ≤ |v_earth_fixed| / r ≤ v/r + ω_E, and
+        // v/r is largest at perigee. The perigee radius above is already
+        // lowered by 5 % (which raises v_p/r_p by ~8 %); 5 % more covers SGP4's
+        // short-period wobble.
+        let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.05;
         // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
         // the same ω·Δt product for faster or slower orbits.
         let omega_p = vp / rp;
@@ -654,7 +656,22 @@ fn describe_pass(
         .collect();
     let illumination = illumination_spans(track, t0, aos_s, los_s, &eop);
     let mount_warnings = match &st.station.mount {
-        Some(m) => mount_warnings(&look, aos_s, los_s, tmax_s, t0, m),
+        Some(m) => {
+            // Azimuth and elevation rates from the Earth-fixed state, exactly
+            // (d/dt of atan2(e, n) and asin(u/ρ)), in deg/s.
+            let rates = |t_s: f64| -> (f64, f64) {
+                let s = track.at(t_s);
+                let d = sub(&s.position_km, &st.site.position_km);
+                let [e, n, u] = st.site.to_enu(&d);
+                let [de, dn, du] = st.site.to_enu(&s.velocity_km_s);
+                let h2 = (e * e + n * n).max(1e-12);
+                let r2 = h2 + u * u;
+                let az_rate = (de * n - e * dn) / h2;
+                let el_rate = (du * r2 - u * (e * de + n * dn + u * du)) / (r2 * h2.sqrt());
+                (az_rate.abs().to_degrees(), el_rate.abs().to_degrees())
+            };
+            mount_warnings(&rates, aos_s, los_s, tmax_s, tmin_range_s, t0, m)
+        }
         None => Vec::new(),
     };
     Pass {
@@ -774,30 +791,25 @@ fn illumination_spans(
 }
 
 /// Where the pass needs more azimuth or elevation rate than the mount has.
-/// Rates are central differences over 0.5 s, checked every 5 s and at
-/// culmination (where the azimuth rate peaks); wherever a rate comes within
-/// half of its limit, that stretch is re-checked every 0.5 s.
+/// Rates are checked every 5 s and at culmination (where the azimuth rate
+/// peaks); wherever a rate comes within half of its limit, that stretch is
+/// re-checked every 0.5 s.
 fn mount_warnings(
-    look: &dyn Fn(f64) -> LookAngles,
+    rates: &dyn Fn(f64) -> (f64, f64),
     aos_s: f64,
     los_s: f64,
     tmax_s: f64,
+    tmin_range_s: f64,
     t0: UtcTime,
     limits: &crate::station::MountLimits,
 ) -> Vec<MountWarning> {
-    let rates = |t: f64| -> (f64, f64) {
-        let a = (t - 0.25).max(aos_s);
-        let b = (t + 0.25).min(los_s);
-        if b <= a {
-            return (0.0, 0.0);
-        }
-        let (la, lb) = (look(a), look(b));
-        let daz = (lb.azimuth_deg - la.azimuth_deg + 540.0).rem_euclid(360.0) - 180.0;
-        (
-            (daz / (b - a)).abs(),
-            ((lb.elevation_deg - la.elevation_deg) / (b - a)).abs(),
-        )
-    };
+    // The azimuth rate peaks at culmination and the elevation rate near
+    // closest approach; a pass well inside both limits there needs no scan.
+    let (az_peak, _) = rates(tmax_s);
+    let (_, el_near) = rates(tmin_range_s);
+    if az_peak < 0.5 * limits.max_azimuth_rate_deg_s && el_near < 0.5 * limits.max_elevation_rate_deg_s {
+        return Vec::new();
+    }
     let limit = [limits.max_azimuth_rate_deg_s, limits.max_elevation_rate_deg_s];
     // Coarse scan: which 5 s cells need a closer look?
     let mut coarse: Vec<f64> = Vec::new();
@@ -1045,10 +1057,23 @@ pub fn pointing_table(
     step_s: f64,
     eop: &EarthOrientation,
 ) -> Result<Vec<PointingRow>, PropagationError> {
+    pointing_table_between(set, station, pass.aos, pass.los, step_s, eop)
+}
+
+/// The pointing table between two times (e.g. the usable part of a pass that
+/// the network plan kept), first row at `start`, last at `end` exactly.
+pub fn pointing_table_between(
+    set: &ElementSet,
+    station: &Station,
+    start: UtcTime,
+    end: UtcTime,
+    step_s: f64,
+    eop: &EarthOrientation,
+) -> Result<Vec<PointingRow>, PropagationError> {
     let prop = Propagator::new(set)?;
     let site = station.site();
     let step_s = if step_s.is_finite() && step_s > 0.0 { step_s } else { 1.0 };
-    let duration = pass.los.s_since(pass.aos);
+    let duration = end.s_since(start);
     let mut times: Vec<UtcTime> = Vec::new();
     let mut k = 0usize;
     loop {
@@ -1056,10 +1081,10 @@ pub fn pointing_table(
         if dt >= duration - 1e-6 {
             break;
         }
-        times.push(pass.aos.add_s(dt));
+        times.push(start.add_s(dt));
         k += 1;
     }
-    times.push(pass.los);
+    times.push(end);
     let mut cursor = prop.cursor();
     times
         .into_iter()
@@ -1093,4 +1118,48 @@ pub fn look_at(
     let s = prop.state_at(t)?;
     let ef = TemeToEarthFixed::at(t, eop).state(&s.position_km, &s.velocity_km_s);
     Ok(site.look(&ef))
+}
+
+/// The part of a pass during which the elevation is at least
+/// `min_elevation_deg` (an antenna's own limit, above the station's horizon),
+/// or `None` when the pass never gets that high.
+///
+/// A LEO pass rises to one maximum and sets again, so there is at most one
+/// upward crossing between AOS and culmination and one downward crossing
+/// after it; each is found by Brent's method on direct SGP4 look angles to
+/// 10 ms, about a dozen propagations per crossing. The result is also clipped
+/// to the pass, so a mask that cuts the pass keeps cutting it.
+pub fn interval_above(
+    prop: &Propagator,
+    site: &Site,
+    pass: &Pass,
+    min_elevation_deg: f64,
+    eop: &EarthOrientation,
+) -> Result<Option<(UtcTime, UtcTime)>, PropagationError> {
+    if pass.max_elevation_deg < min_elevation_deg {
+        return Ok(None);
+    }
+    let t0 = pass.aos;
+    let tmax_s = pass.max_elevation_time.s_since(t0).clamp(0.0, pass.duration_s);
+    let los_s = pass.los.s_since(t0);
+    let margin = |t_s: f64| -> Result<f64, PropagationError> {
+        Ok(look_at(prop, site, t0.add_s(t_s), eop)?.elevation_deg - min_elevation_deg)
+    };
+    let f_aos = margin(0.0)?;
+    let f_max = margin(tmax_s)?;
+    let f_los = margin(los_s)?;
+    if f_max < 0.0 {
+        // The interpolated maximum and direct SGP4 differ by far less than a
+        // millidegree; a pass this close to the limit is not usable anyway.
+        return Ok(None);
+    }
+    // A failure inside an interval whose ends propagated is not expected; it
+    // reads as "below the limit" so the contact only gets shorter.
+    let f = |t_s: f64| margin(t_s).unwrap_or(-90.0);
+    let up_s = if f_aos >= 0.0 { 0.0 } else { brent_root(f, 0.0, tmax_s, f_aos, f_max, 0.01) };
+    let down_s = if f_los >= 0.0 { los_s } else { brent_root(f, tmax_s, los_s, f_max, f_los, 0.01) };
+    if down_s <= up_s {
+        return Ok(None);
+    }
+    Ok(Some((t0.add_s(up_s), t0.add_s(down_s))))
 }

@@ -50,9 +50,39 @@ fn one() -> f64 {
     1.0
 }
 
+/// One contact named by the user, for a pin (the planner must keep it) or an
+/// exclusion (the planner must not use it).
+///
+/// A contact is identified by spacecraft, station, optionally antenna, and its
+/// acquisition time: a reference matches a candidate contact when the given
+/// `aos` lies within `tolerance_s` of either the pass's AOS (horizon crossing)
+/// or the contact's usable AOS (after the antenna's minimum elevation), so that
+/// a time copied from `passlane passes` or from a previous plan both work.
+///
+/// Without `antenna`, a pin keeps the pass on the first antenna of the station
+/// (in the scenario's order) that can take it; an exclusion removes the pass
+/// from every antenna of the station.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ContactRef {
+    pub catalog_number: u32,
+    /// Station name, as in `stations[].name`.
+    pub station: String,
+    /// Antenna name, as in `stations[].antennas[].name`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub antenna: Option<String>,
+    pub aos: UtcTime,
+    /// How far `aos` may be from the contact's AOS, s. Default 120.
+    #[serde(default = "default_ref_tolerance")]
+    pub tolerance_s: f64,
+}
+
+fn default_ref_tolerance() -> f64 {
+    120.0
+}
+
 /// Settings for close-approach screening.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct ScreeningSettings {
+pub struct ScreeningDefaults {
     #[serde(default = "default_threshold")]
     pub threshold_km: f64,
     /// Hard-body radius used when an object has none of its own, m.
@@ -82,9 +112,9 @@ fn default_sigma_growth() -> [f64; 3] {
     [50.0, 1000.0, 50.0]
 }
 
-impl Default for ScreeningSettings {
+impl Default for ScreeningDefaults {
     fn default() -> Self {
-        ScreeningSettings {
+        ScreeningDefaults {
             threshold_km: default_threshold(),
             default_hard_body_radius_m: default_hbr(),
             assumed_sigma_at_epoch_m: default_sigma_epoch(),
@@ -115,8 +145,14 @@ pub struct Scenario {
     pub stations: Vec<Station>,
     #[serde(default)]
     pub satellites: Vec<SatelliteNeeds>,
+    /// Contacts the network plan must keep.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub pins: Vec<ContactRef>,
+    /// Contacts the network plan must not use.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub exclusions: Vec<ContactRef>,
     #[serde(default)]
-    pub screening: ScreeningSettings,
+    pub screening: ScreeningDefaults,
 }
 
 impl Default for Scenario {
@@ -131,7 +167,9 @@ impl Default for Scenario {
             earth_orientation: EarthOrientation::default(),
             stations: Vec::new(),
             satellites: Vec::new(),
-            screening: ScreeningSettings::default(),
+            pins: Vec::new(),
+            exclusions: Vec::new(),
+            screening: ScreeningDefaults::default(),
         }
     }
 }
@@ -241,6 +279,34 @@ impl Scenario {
                     if !(v.is_finite() && v >= 0.0) {
                         return Err((field(f), format!("{v} must not be negative")));
                     }
+                }
+            }
+        }
+        let mut seen = std::collections::HashSet::new();
+        for (i, n) in self.satellites.iter().enumerate() {
+            if !seen.insert(n.catalog_number) {
+                return Err((
+                    format!("satellites[{i}].catalog_number"),
+                    format!("{} is listed twice", n.catalog_number),
+                ));
+            }
+        }
+        for (list, refs) in [("pins", &self.pins), ("exclusions", &self.exclusions)] {
+            for (i, r) in refs.iter().enumerate() {
+                let field = |f: &str| format!("{list}[{i}].{f}");
+                let Some(station) = self.stations.iter().find(|s| s.name == r.station) else {
+                    return Err((field("station"), format!("{:?} is not one of the scenario's stations", r.station)));
+                };
+                if let Some(a) = &r.antenna
+                    && !station.antennas.iter().any(|x| &x.name == a)
+                {
+                    return Err((field("antenna"), format!("{a:?} is not an antenna of station {:?}", station.name)));
+                }
+                if !(r.tolerance_s.is_finite() && r.tolerance_s >= 0.0) {
+                    return Err((field("tolerance_s"), format!("{} must not be negative", r.tolerance_s)));
+                }
+                if !r.aos.is_finite() {
+                    return Err((field("aos"), "is not a finite time".into()));
                 }
             }
         }

@@ -193,9 +193,25 @@ impl Station {
             }
         }
         for (i, a) in self.antennas.iter().enumerate() {
+            if a.name.trim().is_empty() {
+                return Err(err(&format!("antennas[{i}].name"), "must not be empty".into()));
+            }
+            if self.antennas[..i].iter().any(|b| b.name == a.name) {
+                return Err(err(&format!("antennas[{i}].name"), format!("{:?} is used by two antennas of this station", a.name)));
+            }
             if !(a.turnaround_s.is_finite() && a.turnaround_s >= 0.0) {
                 return Err(err(&format!("antennas[{i}].turnaround_s"), format!("{} must not be negative", a.turnaround_s)));
             }
+            if let Some(m) = a.min_elevation_deg
+                && !(m.is_finite() && (-5.0..90.0).contains(&m))
+            {
+                return Err(err(&format!("antennas[{i}].min_elevation_deg"), format!("{m} is outside -5..90")));
+            }
+        }
+        if let Some(r) = self.downlink_rate_bps
+            && !(r.is_finite() && r >= 0.0)
+        {
+            return Err(err("downlink_rate_bps", format!("{r} must not be negative")));
         }
         Ok(())
     }

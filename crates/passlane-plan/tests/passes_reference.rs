@@ -357,3 +357,30 @@ fn horizon_mask_affects_only_passes_through_its_sector() {
     }
     assert!(unchanged > 5 && changed > 5, "unchanged {unchanged}, changed {changed}");
 }
+
+/// A satellite that re-enters during the window is reported, and the others'
+/// passes are exactly what they would be without it.
+#[test]
+fn a_decaying_satellite_is_reported_and_the_others_go_on() {
+    let sets = demo_fleet();
+    let mut doomed = sets[0].clone();
+    doomed.name = "DOOMED (invented)".into();
+    doomed.catalog_number = 99_998;
+    doomed.mean_motion_rev_day = 16.3; // about 200 km
+    doomed.bstar_per_earth_radii = 0.05; // very high drag
+    doomed.mean_motion_dot_rev_day2 = 0.01;
+    let sc = demo_scenario();
+    let options = PassOptions::new(t("2026-12-01T00:00:00Z"), t("2026-12-11T00:00:00Z"));
+    let without = find_passes(&sets, &sc.stations, &options, &Silent);
+    let mut with_doomed = sets.clone();
+    with_doomed.push(doomed);
+    let with = find_passes(&with_doomed, &sc.stations, &options, &Silent);
+    assert_eq!(with.failures.len(), 1, "{:?}", with.failures);
+    assert_eq!(with.failures[0].catalog_number, 99_998);
+    let others: Vec<&Pass> = with.passes.iter().filter(|p| p.catalog_number != 99_998).collect();
+    assert_eq!(others.len(), without.passes.len());
+    for (a, b) in others.iter().zip(&without.passes) {
+        assert_eq!(a.aos, b.aos);
+        assert_eq!(a.los, b.los);
+    }
+}

@@ -1,0 +1,259 @@
+//! From a screening event to a decision aid: collision probability with the
+//! covariance the operator assumes, and a CCSDS CDM for any event.
+//!
+//! Element sets carry no covariance. The probability computed here uses an
+//! *assumed* one: per object, a radial/in-track/cross-track 1-σ at element
+//! epoch plus a growth per day of element age (scenario settings), diagonal
+//! in the object's RTN frame. It is labelled as assumed everywhere it goes.
+//! The maximum probability over covariance size (Alfano 2005) does not depend
+//! on that assumption's scale and is what a TLE-only screening can honestly
+//! report.
+
+use passlane_orbit::constants::EARTH_ROTATION_RAD_S;
+use passlane_orbit::frames::cross;
+use passlane_orbit::{EarthOrientation, ElementSet, StateTeme, TemeToEarthFixed, UtcTime};
+use serde::Serialize;
+
+use crate::cdm::{Cdm, CdmHeader, CdmObject, CdmRelative};
+use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
+use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
+use crate::screen::{CloseApproach, ScreeningVolume};
+
+/// The operator's assumption about element-set accuracy.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct AssumedCovariance {
+    /// 1-σ radial, in-track, cross-track at element epoch, m.
+    pub sigma_at_epoch_m: [f64; 3],
+    /// Growth of each 1-σ per day of element age, m/day.
+    pub growth_m_per_day: [f64; 3],
+}
+
+impl AssumedCovariance {
+    /// 1-σ (R, I, C) of an element set at `at`, m.
+    pub fn sigmas_m(&self, set: &ElementSet, at: UtcTime) -> [f64; 3] {
+        let age_days = at.s_since(set.epoch).abs() / 86_400.0;
+        let mut s = [0.0; 3];
+        for k in 0..3 {
+            s[k] = self.sigma_at_epoch_m[k] + self.growth_m_per_day[k] * age_days;
+        }
+        s
+    }
+
+    /// Diagonal RTN position covariance, m².
+    pub fn rtn_m2(&self, set: &ElementSet, at: UtcTime) -> Mat3 {
+        let s = self.sigmas_m(set, at);
+        [
+            [s[0] * s[0], 0.0, 0.0],
+            [0.0, s[1] * s[1], 0.0],
+            [0.0, 0.0, s[2] * s[2]],
+        ]
+    }
+
+    /// A short label for reports: where the covariance came from.
+    pub fn label(&self) -> String {
+        format!(
+            "assumed: RIC 1-sigma {:.0}/{:.0}/{:.0} m at epoch + {:.0}/{:.0}/{:.0} m per day of element age",
+            self.sigma_at_epoch_m[0],
+            self.sigma_at_epoch_m[1],
+            self.sigma_at_epoch_m[2],
+            self.growth_m_per_day[0],
+            self.growth_m_per_day[1],
+            self.growth_m_per_day[2]
+        )
+    }
+}
+
+/// Probability figures of one event.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct EventRisk {
+    /// Foster-style 2-D integration with the assumed covariance.
+    pub pc: f64,
+    pub pc_alfano: f64,
+    pub pc_chan: f64,
+    /// Largest probability over the covariance's size (shape kept).
+    pub pc_max: f64,
+    pub hard_body_radius_m: f64,
+    pub covariance_source: String,
+    /// Combined covariance in the encounter plane, principal axes, m.
+    pub sigma_x_m: f64,
+    pub sigma_y_m: f64,
+    pub miss_x_m: f64,
+    pub miss_y_m: f64,
+    /// Element ages at TCA, days.
+    pub primary_element_age_days: f64,
+    pub secondary_element_age_days: f64,
+}
+
+fn km_state(s: &StateTeme) -> StateKm {
+    StateKm {
+        position_km: s.position_km,
+        velocity_km_s: s.velocity_km_s,
+    }
+}
+
+/// Probability of one screening event with the assumed covariance and the
+/// combined hard-body radius `hard_body_radius_m` (sum of both objects').
+pub fn assess(
+    event: &CloseApproach,
+    primary: &ElementSet,
+    secondary: &ElementSet,
+    covariance: &AssumedCovariance,
+    hard_body_radius_m: f64,
+) -> Result<EventRisk, EncounterError> {
+    let s1 = km_state(&event.primary_state);
+    let s2 = km_state(&event.secondary_state);
+    let plane = encounter_plane(
+        &s1,
+        &covariance.rtn_m2(primary, event.tca),
+        &s2,
+        &covariance.rtn_m2(secondary, event.tca),
+    )?;
+    let e = plane
+        .encounter_2d(hard_body_radius_m)
+        .map_err(EncounterError::Covariance)?;
+    Ok(EventRisk {
+        pc: pc_foster(&e),
+        pc_alfano: pc_alfano(&e),
+        pc_chan: pc_chan(&e),
+        pc_max: pc_max(&e).pc_max,
+        hard_body_radius_m,
+        covariance_source: covariance.label(),
+        sigma_x_m: e.sigma_x_m(),
+        sigma_y_m: e.sigma_y_m(),
+        miss_x_m: e.miss_x_m(),
+        miss_y_m: e.miss_y_m(),
+        primary_element_age_days: event.tca.s_since(primary.epoch) / 86_400.0,
+        secondary_element_age_days: event.tca.s_since(secondary.epoch) / 86_400.0,
+    })
+}
+
+/// Converts an Earth-fixed (ITRF) state to the instantaneous inertial frame
+/// aligned with it, by adding back ω × r to the velocity. RTN frames and
+/// relative velocities must be formed from inertial velocities: with
+/// Earth-fixed ones the in-track axis tilts by up to ~3.5° in LEO.
+pub fn earth_fixed_to_aligned_inertial(s: &StateKm) -> StateKm {
+    let w = [0.0, 0.0, EARTH_ROTATION_RAD_S];
+    let wr = cross(&w, &s.position_km);
+    StateKm {
+        position_km: s.position_km,
+        velocity_km_s: [
+            s.velocity_km_s[0] + wr[0],
+            s.velocity_km_s[1] + wr[1],
+            s.velocity_km_s[2] + wr[2],
+        ],
+    }
+}
+
+/// Settings for writing a CDM from a screening event.
+pub struct CdmContext<'a> {
+    pub originator: &'a str,
+    pub message_id: String,
+    pub creation_date: UtcTime,
+    pub screen_start: UtcTime,
+    pub screen_stop: UtcTime,
+    pub volume: ScreeningVolume,
+    pub earth_orientation: EarthOrientation,
+}
+
+/// Builds a CDM (states in ITRF, as CCSDS 508.0-B-1 allows ITRF, EME2000 and
+/// GCRF, and TEME → ITRF needs only the GMST rotation) for a screening event.
+pub fn event_to_cdm(
+    event: &CloseApproach,
+    primary: &ElementSet,
+    secondary: &ElementSet,
+    risk: Option<&EventRisk>,
+    covariance: &AssumedCovariance,
+    ctx: &CdmContext<'_>,
+) -> Result<Cdm, EncounterError> {
+    let g = relative_geometry(&km_state(&event.primary_state), &km_state(&event.secondary_state))?;
+    let rot = TemeToEarthFixed::at(event.tca, &ctx.earth_orientation);
+    let (shape, xyz_m) = match ctx.volume {
+        ScreeningVolume::Sphere { radius_km } => ("SPHERE", [radius_km * 1000.0; 3]),
+        ScreeningVolume::Box {
+            radial_km,
+            in_track_km,
+            cross_track_km,
+        } => ("BOX", [radial_km * 1000.0, in_track_km * 1000.0, cross_track_km * 1000.0]),
+        ScreeningVolume::Ellipsoid {
+            radial_km,
+            in_track_km,
+            cross_track_km,
+        } => ("ELLIPSOID", [radial_km * 1000.0, in_track_km * 1000.0, cross_track_km * 1000.0]),
+    };
+    let object = |which: &str, set: &ElementSet, s: &StateTeme| -> CdmObject {
+        let ef = rot.state(&s.position_km, &s.velocity_km_s);
+        let sig = covariance.sigmas_m(set, event.tca);
+        // Velocity variances: position σ times the mean motion, a rough but
+        // consistent order of magnitude for an assumed covariance.
+        let n_rad_s = set.mean_motion_rev_day * std::f64::consts::TAU / 86_400.0;
+        let mut cov = [0.0; 21];
+        cov[0] = sig[0] * sig[0];
+        cov[2] = sig[1] * sig[1];
+        cov[5] = sig[2] * sig[2];
+        cov[9] = (sig[0] * n_rad_s).powi(2);
+        cov[14] = (sig[1] * n_rad_s).powi(2);
+        cov[20] = (sig[2] * n_rad_s).powi(2);
+        CdmObject {
+            comments: vec![format!(
+                "State from SGP4 on element set epoch {}; covariance {}",
+                set.epoch,
+                covariance.label()
+            )],
+            object: which.to_string(),
+            object_designator: format!("{:05}", set.catalog_number),
+            catalog_name: "SATCAT".to_string(),
+            object_name: set.name.clone(),
+            international_designator: set.international_designator.clone(),
+            ephemeris_name: "NONE".to_string(),
+            covariance_method: "DEFAULT".to_string(),
+            maneuverable: "N/A".to_string(),
+            ref_frame: "ITRF".to_string(),
+            state: StateKm {
+                position_km: ef.position_km,
+                velocity_km_s: ef.velocity_km_s,
+            },
+            covariance_rtn: cov,
+            other: Vec::new(),
+        }
+    };
+    Ok(Cdm {
+        header: CdmHeader {
+            comments: vec![
+                "Screening on published mean elements (SGP4): advisory only.".to_string(),
+                "Defer to official conjunction messages and coordinate with the other operator.".to_string(),
+            ],
+            ccsds_cdm_vers: "1.0".to_string(),
+            creation_date: ctx.creation_date,
+            originator: ctx.originator.to_string(),
+            message_for: Some(primary.name.clone()),
+            message_id: ctx.message_id.clone(),
+        },
+        relative: CdmRelative {
+            comments: Vec::new(),
+            tca: event.tca,
+            miss_distance_m: g.miss_distance_km * 1000.0,
+            relative_speed_m_s: Some(g.relative_speed_km_s * 1000.0),
+            relative_position_rtn_m: [
+                Some(g.radial_km * 1000.0),
+                Some(g.in_track_km * 1000.0),
+                Some(g.cross_track_km * 1000.0),
+            ],
+            relative_velocity_rtn_m_s: [
+                Some(g.relative_velocity_rtn_km_s[0] * 1000.0),
+                Some(g.relative_velocity_rtn_km_s[1] * 1000.0),
+                Some(g.relative_velocity_rtn_km_s[2] * 1000.0),
+            ],
+            start_screen_period: Some(ctx.screen_start),
+            stop_screen_period: Some(ctx.screen_stop),
+            screen_volume_frame: Some("RTN".to_string()),
+            screen_volume_shape: Some(shape.to_string()),
+            screen_volume_xyz_m: [Some(xyz_m[0]), Some(xyz_m[1]), Some(xyz_m[2])],
+            screen_entry_time: Some(event.volume_entry),
+            screen_exit_time: Some(event.volume_exit),
+            collision_probability: risk.map(|r| r.pc),
+            collision_probability_method: risk.map(|_| "FOSTER-1992".to_string()),
+        },
+        object1: object("OBJECT1", primary, &event.primary_state),
+        object2: object("OBJECT2", secondary, &event.secondary_state),
+    })
+}

@@ -1,0 +1,284 @@
+//! `passlane plan`: the network contact plan of a scenario, with its hand-off
+//! files written into a folder.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, bail};
+use passlane_orbit::{ElementSet, UtcTime};
+use passlane_plan::export;
+use passlane_plan::passes::{PassOptions, Silent, find_passes, pointing_table_between};
+use passlane_plan::schedule::{Method, Plan, plan_scenario};
+
+use super::args::RawArgs;
+use super::common::{self, Format};
+
+pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO] [--out DIR] [--format table|json] \
+[--pointing-step-s S]";
+
+/// Writes a file through the crash-safe writer, naming it in the error.
+fn write_file(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<()> {
+    passlane_files::write_atomic_with(path, fill)
+        .with_context(|| format!("cannot write {}", path.display()))
+}
+
+pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(
+        argv,
+        &[
+            "scenario",
+            "elements",
+            "start",
+            "end",
+            "out",
+            "format",
+            "pointing-step-s",
+        ],
+        &["lenient"],
+    )?;
+    if args.value("scenario").is_none() {
+        bail!("--scenario FILE is required: the network (stations, antennas, demands) lives there");
+    }
+    let inputs = common::gather(&args, true)?;
+    let (start, end) = common::window(&inputs)?;
+    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
+    let pointing_step_s = args.f64_value("pointing-step-s")?.unwrap_or(1.0);
+    if pointing_step_s <= 0.0 {
+        bail!("--pointing-step-s must be positive");
+    }
+    let Some((scenario_path, scenario)) = &inputs.scenario else {
+        bail!("--scenario FILE is required");
+    };
+    let eop = scenario.earth_orientation;
+    let options = PassOptions {
+        start,
+        end,
+        earth_orientation: eop,
+        min_elevation_deg: None,
+    };
+    let report = find_passes(&inputs.sets, &scenario.stations, &options, &Silent);
+    for f in &report.failures {
+        eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
+    }
+    let plan = plan_scenario(
+        scenario,
+        &inputs.sets,
+        &report.passes,
+        start,
+        end,
+        &eop,
+        &Silent,
+    )
+    .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
+    for w in &plan.warnings {
+        eprintln!("warning: {w}");
+    }
+    let created = UtcTime::from_chrono(chrono::Utc::now());
+    let written = match args.value("out") {
+        Some(dir) => Some(write_outputs(
+            Path::new(dir),
+            &plan,
+            &inputs.sets,
+            scenario,
+            created,
+            pointing_step_s,
+        )?),
+        None => None,
+    };
+    match format {
+        Format::Json => {
+            export::write_plan_json(out, &plan)?;
+        }
+        _ => write_summary(out, &plan, written.as_ref())?,
+    }
+    Ok(())
+}
+
+/// What went into the output folder.
+struct Written {
+    dir: PathBuf,
+    files: usize,
+}
+
+fn write_outputs(
+    dir: &Path,
+    plan: &Plan,
+    sets: &[ElementSet],
+    scenario: &passlane_plan::Scenario,
+    created: UtcTime,
+    pointing_step_s: f64,
+) -> Result<Written> {
+    std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
+    let mut files = 0;
+    write_file(&dir.join("plan.csv"), |w| export::write_plan_csv(w, plan))?;
+    write_file(&dir.join("plan.json"), |w| export::write_plan_json(w, plan))?;
+    let name = if scenario.name.is_empty() {
+        "Passlane plan"
+    } else {
+        scenario.name.as_str()
+    };
+    write_file(&dir.join("plan.ics"), |w| {
+        export::write_icalendar(w, plan, created, name)
+    })?;
+    files += 3;
+    let pointing_dir = dir.join("pointing");
+    std::fs::create_dir_all(&pointing_dir)
+        .with_context(|| format!("cannot create {}", pointing_dir.display()))?;
+    for c in &plan.contacts {
+        let (Some(set), Some(station)) = (
+            sets.iter().find(|s| s.catalog_number == c.catalog_number),
+            scenario.stations.iter().find(|s| s.name == c.station),
+        ) else {
+            continue;
+        };
+        let rows = match pointing_table_between(
+            set,
+            station,
+            c.aos,
+            c.los,
+            pointing_step_s,
+            &scenario.earth_orientation,
+        ) {
+            Ok(r) => r,
+            Err(e) => {
+                eprintln!(
+                    "warning: no pointing table for {} at {}: {e}",
+                    c.spacecraft, c.aos
+                );
+                continue;
+            }
+        };
+        write_file(&pointing_dir.join(export::pointing_file_name(c)), |w| {
+            export::write_pointing_csv(w, station, &rows)
+        })?;
+        files += 1;
+    }
+    let oem_dir = dir.join("oem");
+    std::fs::create_dir_all(&oem_dir)
+        .with_context(|| format!("cannot create {}", oem_dir.display()))?;
+    let originator = if scenario.operator.is_empty() {
+        "PASSLANE"
+    } else {
+        scenario.operator.as_str()
+    };
+    for d in &plan.demand {
+        let Some(set) = sets.iter().find(|s| s.catalog_number == d.catalog_number) else {
+            continue;
+        };
+        let states = match export::oem_states(set, plan.start, plan.end, export::oem_step_s(set)) {
+            Ok(s) => s,
+            Err(e) => {
+                eprintln!("warning: no OEM for {}: {e}", set.name);
+                continue;
+            }
+        };
+        let file = oem_dir.join(format!(
+            "{}_{}.oem",
+            set.catalog_number,
+            export::oem::slug_name(&set.name)
+        ));
+        write_file(&file, |w| {
+            export::write_oem(w, set, &states, created, originator)
+        })?;
+        files += 1;
+    }
+    Ok(Written {
+        dir: dir.to_path_buf(),
+        files,
+    })
+}
+
+fn pct(x: f64) -> String {
+    format!("{:.0}%", 100.0 * x)
+}
+
+fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) -> Result<()> {
+    writeln!(
+        out,
+        "Network plan {} to {}: {} contact(s) kept from {} candidate(s); {}",
+        plan.start.to_iso_s(),
+        plan.end.to_iso_s(),
+        plan.contacts.len(),
+        plan.candidates,
+        match plan.method {
+            Method::Exact => "optimal (exhaustive search)",
+            Method::Heuristic => "greedy + local search",
+        }
+    )?;
+    writeln!(
+        out,
+        "Demand met: {} of the priority-weighted demand (no plan can exceed {} on these windows).\n",
+        pct(plan.demand_met_fraction()),
+        pct(if plan.max_score > 0.0 {
+            plan.upper_bound / plan.max_score
+        } else {
+            1.0
+        })
+    )?;
+    writeln!(
+        out,
+        "{:<16} {:>6} {:>4} {:>9} {:>12} {:>5}  short days",
+        "spacecraft", "cat", "prio", "contacts", "volume MB", "met"
+    )?;
+    for d in &plan.demand {
+        let contacts = match d.contacts_wanted {
+            Some(w) => format!("{}/{:.0}", d.contacts, w),
+            None => d.contacts.to_string(),
+        };
+        let volume = match d.volume_wanted_mb {
+            Some(w) => format!("{:.0}/{:.0}", d.volume_mb, w),
+            None => format!("{:.0}", d.volume_mb),
+        };
+        let short: Vec<String> = d
+            .unmet_days
+            .iter()
+            .map(|u| u.day_start.to_iso_s()[5..10].to_string())
+            .collect();
+        writeln!(
+            out,
+            "{} {:>6} {:>4} {:>9} {:>12} {:>5}  {}",
+            common::fit(&d.spacecraft, 16),
+            d.catalog_number,
+            d.priority,
+            contacts,
+            volume,
+            pct(d.met_fraction),
+            if short.is_empty() {
+                "-".to_string()
+            } else {
+                short.join(" ")
+            }
+        )?;
+    }
+    writeln!(out, "\nConflicts resolved: {}", plan.conflicts.len())?;
+    if plan.score + 1e-9 >= plan.upper_bound && plan.score + 1e-9 < plan.max_score {
+        writeln!(
+            out,
+            "  (every shortfall above is for want of contact windows, not of antenna time)"
+        )?;
+    }
+    const SHOWN: usize = 15;
+    for c in plan.conflicts.iter().take(SHOWN) {
+        writeln!(out, "  {}", c.describe())?;
+    }
+    if plan.conflicts.len() > SHOWN {
+        writeln!(
+            out,
+            "  ... and {} more (all in plan.json)",
+            plan.conflicts.len() - SHOWN
+        )?;
+    }
+    match written {
+        Some(w) => writeln!(
+            out,
+            "\nWrote {} file(s) to {}: plan.csv, plan.json, plan.ics, pointing/*.csv, oem/*.oem",
+            w.files,
+            w.dir.display()
+        )?,
+        None => writeln!(
+            out,
+            "\nNo files written (give --out DIR for the plan, calendar, pointing and OEM files)."
+        )?,
+    }
+    Ok(())
+}

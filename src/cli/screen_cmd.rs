@@ -1,0 +1,372 @@
+//! `passlane screen` and `passlane cdm`: close approaches and conjunction messages.
+
+use std::collections::HashMap;
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::{Context, Result, bail};
+use passlane_orbit::{ElementSet, UtcTime};
+use passlane_plan::cdm::Cdm;
+use passlane_plan::conjunction::{AssumedCovariance, CdmContext, EventRisk, assess, event_to_cdm};
+use passlane_plan::screen::{CloseApproach, ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress};
+use serde::Serialize;
+
+use super::args::RawArgs;
+use super::common::{self, Format};
+use super::passes_cmd::csv_field;
+
+pub const USAGE: &str = "passlane screen --elements FLEET_FILE [--catalog FILE] [--all-vs-all] --start ISO --end ISO \
+--threshold-km D [--box-km R,I,C | --ellipsoid-km R,I,C] [--hard-body-radius-m R] [--format table|csv|json] \
+[--cdm-dir DIR] [--scenario FILE] [--quiet]";
+pub const CDM_USAGE: &str = "passlane cdm FILE [--hard-body-radius-m R] [--format table|json]";
+
+const CAUTION: &str = "Caution: screening on published mean elements is advisory. Defer to official conjunction \
+messages and coordinate with the other operator before acting.";
+
+/// One event as printed: the screening figures plus the probability.
+#[derive(Serialize)]
+struct Row<'a> {
+    #[serde(flatten)]
+    event: &'a CloseApproach,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pc: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pc_alfano: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pc_chan: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pc_max: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    covariance_source: Option<&'a str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    hard_body_radius_m: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    risk_note: Option<String>,
+}
+
+fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
+    let Some(v) = args.value(name) else {
+        return Ok(None);
+    };
+    let parts: Vec<f64> = v
+        .split(',')
+        .map(|p| p.trim().parse::<f64>())
+        .collect::<std::result::Result<_, _>>()
+        .map_err(|_| anyhow::anyhow!("--{name} {v:?}: expected three numbers R,I,C in km"))?;
+    match parts.as_slice() {
+        [r, i, c] if [r, i, c].iter().all(|x| x.is_finite() && **x > 0.0) => Ok(Some([*r, *i, *c])),
+        _ => bail!("--{name} {v:?}: expected three positive numbers R,I,C in km"),
+    }
+}
+
+pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(
+        argv,
+        &[
+            "elements", "catalog", "scenario", "start", "end", "threshold-km", "box-km", "ellipsoid-km",
+            "hard-body-radius-m", "format", "cdm-dir", "originator",
+        ],
+        &["all-vs-all", "lenient", "quiet"],
+    )?;
+    let inputs = common::gather(&args, false)?;
+    let (start, end) = common::window(&inputs)?;
+    let format = common::format(&args, Format::Table, &[Format::Table, Format::Csv, Format::Json])?;
+    let scenario = inputs.scenario.as_ref().map(|(_, s)| s);
+    let defaults = scenario.map(|s| s.screening.clone()).unwrap_or_default();
+    let threshold_km = args.f64_value("threshold-km")?.unwrap_or(defaults.threshold_km);
+    if !(threshold_km > 0.0) {
+        bail!("--threshold-km must be positive");
+    }
+    let volume = match (three(&args, "box-km")?, three(&args, "ellipsoid-km")?) {
+        (Some(_), Some(_)) => bail!("give --box-km or --ellipsoid-km, not both"),
+        (Some([r, i, c]), None) => ScreeningVolume::Box { radial_km: r, in_track_km: i, cross_track_km: c },
+        (None, Some([r, i, c])) => ScreeningVolume::Ellipsoid { radial_km: r, in_track_km: i, cross_track_km: c },
+        (None, None) => ScreeningVolume::Sphere { radius_km: threshold_km },
+    };
+    let mut catalog_paths: Vec<PathBuf> = args.values("catalog").iter().map(PathBuf::from).collect();
+    if catalog_paths.is_empty() && !args.flag("all-vs-all") {
+        if let Some((p, s)) = &inputs.scenario {
+            if args.values("elements").is_empty() {
+                catalog_paths = s.catalog_files.iter().map(|f| common::resolve(p, f)).collect();
+            }
+        }
+    }
+    let catalog: Option<Vec<ElementSet>> = if catalog_paths.is_empty() {
+        None
+    } else {
+        Some(common::load_fleet(&catalog_paths, args.flag("lenient"))?)
+    };
+    // All-vs-all: the catalog (or the element files) against itself.
+    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) = if args.flag("all-vs-all") {
+        let mut all = inputs.sets.clone();
+        if let Some(c) = catalog {
+            all.extend(c);
+        }
+        (all, None)
+    } else {
+        (inputs.sets.clone(), catalog)
+    };
+    // The fleet screens against itself too: fleet-vs-catalog adds the catalog.
+    let request = ScreeningRequest {
+        primaries: &primaries,
+        secondaries: secondaries.as_deref(),
+        start,
+        end,
+        settings: ScreeningSettings {
+            volume,
+            ..ScreeningSettings::default()
+        },
+    };
+    let quiet = args.flag("quiet");
+    let last_pct = std::sync::atomic::AtomicI64::new(-1);
+    let progress = |f: f64| {
+        let pct = (f * 100.0).floor() as i64;
+        let before = last_pct.swap(pct, std::sync::atomic::Ordering::Relaxed);
+        if !quiet && pct != before && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
+            eprint!("\rscreening… {pct:3}%");
+        }
+        true
+    };
+    let mut result = screen_with_progress(&request, &progress);
+    if !quiet && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
+        eprintln!("\rscreening… done ");
+    }
+    // Fleet-vs-catalog also wants the fleet's own pairs.
+    if secondaries.is_some() && !args.flag("all-vs-all") {
+        if primaries.len() > 1 {
+            let own = screen_with_progress(
+                &ScreeningRequest { secondaries: None, ..request },
+                &|_| true,
+            );
+            result.events.extend(own.events);
+            result.events.sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
+        }
+    }
+    for d in &result.diagnostics {
+        eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
+    }
+    let by_number: HashMap<u32, &ElementSet> = primaries
+        .iter()
+        .chain(secondaries.iter().flatten())
+        .map(|s| (s.catalog_number, s))
+        .collect();
+    let covariance = AssumedCovariance {
+        sigma_at_epoch_m: defaults.assumed_sigma_at_epoch_m,
+        growth_m_per_day: defaults.assumed_sigma_growth_m_per_day,
+    };
+    let hbr_of = |n: u32| -> f64 {
+        scenario
+            .and_then(|s| s.satellites.iter().find(|x| x.catalog_number == n))
+            .and_then(|x| x.hard_body_radius_m)
+            .unwrap_or(defaults.default_hard_body_radius_m)
+    };
+    let hbr_override = args.f64_value("hard-body-radius-m")?;
+    let risks: Vec<Result<EventRisk, String>> = result
+        .events
+        .iter()
+        .map(|e| {
+            let (Some(p), Some(s)) = (by_number.get(&e.primary_catalog_number), by_number.get(&e.secondary_catalog_number)) else {
+                return Err("element set not found".to_string());
+            };
+            let hbr = hbr_override.unwrap_or(hbr_of(e.primary_catalog_number) + hbr_of(e.secondary_catalog_number));
+            assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
+        })
+        .collect();
+    let label = covariance.label();
+    let rows: Vec<Row> = result
+        .events
+        .iter()
+        .zip(&risks)
+        .map(|(e, r)| match r {
+            Ok(r) => Row {
+                event: e,
+                pc: Some(r.pc),
+                pc_alfano: Some(r.pc_alfano),
+                pc_chan: Some(r.pc_chan),
+                pc_max: Some(r.pc_max),
+                covariance_source: Some(label.as_str()),
+                hard_body_radius_m: Some(r.hard_body_radius_m),
+                risk_note: None,
+            },
+            Err(msg) => Row {
+                event: e,
+                pc: None,
+                pc_alfano: None,
+                pc_chan: None,
+                pc_max: None,
+                covariance_source: None,
+                hard_body_radius_m: None,
+                risk_note: Some(msg.clone()),
+            },
+        })
+        .collect();
+    if let Some(dir) = args.value("cdm-dir") {
+        let dir = PathBuf::from(dir);
+        std::fs::create_dir_all(&dir).with_context(|| format!("cannot create {}", dir.display()))?;
+        let now = UtcTime::from_chrono(chrono::Utc::now());
+        let originator = args.value("originator").unwrap_or("PASSLANE");
+        for (k, (e, r)) in result.events.iter().zip(&risks).enumerate() {
+            let (Some(p), Some(s)) = (by_number.get(&e.primary_catalog_number), by_number.get(&e.secondary_catalog_number)) else {
+                continue;
+            };
+            let stamp: String = e.tca.to_iso_s().chars().filter(|c| c.is_ascii_digit()).collect();
+            let message_id = format!("{}_{}_{}_{}", e.primary_catalog_number, e.secondary_catalog_number, stamp, k + 1);
+            let cdm = event_to_cdm(
+                e,
+                p,
+                s,
+                r.as_ref().ok(),
+                &covariance,
+                &CdmContext {
+                    originator,
+                    message_id: message_id.clone(),
+                    creation_date: now,
+                    screen_start: start,
+                    screen_stop: end,
+                    volume,
+                    earth_orientation: scenario.map(|s| s.earth_orientation).unwrap_or_default(),
+                },
+            )?;
+            let path = dir.join(format!("{message_id}.cdm"));
+            passlane_files::write_atomic_with(&path, |w| {
+                let mut buf = Vec::new();
+                cdm.write_kvn(&mut buf)?;
+                w.write_all(&buf)
+            })
+            .with_context(|| format!("cannot write {}", path.display()))?;
+        }
+        eprintln!("wrote {} CDM file(s) to {}", result.events.len(), dir.display());
+    }
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &rows)?;
+            writeln!(out)?;
+        }
+        Format::Csv => {
+            writeln!(
+                out,
+                "primary,primary_catalog_number,secondary,secondary_catalog_number,tca,miss_distance_km,radial_km,in_track_km,cross_track_km,relative_speed_km_s,approach_angle_deg,volume_entry,volume_exit,pc,pc_max"
+            )?;
+            for r in &rows {
+                let e = r.event;
+                writeln!(
+                    out,
+                    "{},{},{},{},{},{:.4},{:.4},{:.4},{:.4},{:.4},{:.2},{},{},{},{}",
+                    csv_field(&e.primary),
+                    e.primary_catalog_number,
+                    csv_field(&e.secondary),
+                    e.secondary_catalog_number,
+                    e.tca,
+                    e.miss_distance_km,
+                    e.radial_km,
+                    e.in_track_km,
+                    e.cross_track_km,
+                    e.relative_speed_km_s,
+                    e.approach_angle_deg,
+                    e.volume_entry,
+                    e.volume_exit,
+                    r.pc.map(|p| format!("{p:.3e}")).unwrap_or_default(),
+                    r.pc_max.map(|p| format!("{p:.3e}")).unwrap_or_default()
+                )?;
+            }
+        }
+        Format::Table => {
+            writeln!(
+                out,
+                "Close approaches {} to {}: {} primary object(s){}, volume {}\n",
+                start.to_iso_s(),
+                end.to_iso_s(),
+                primaries.len(),
+                secondaries.as_ref().map(|s| format!(" vs {} catalog object(s)", s.len())).unwrap_or_default(),
+                describe_volume(&volume)
+            )?;
+            writeln!(
+                out,
+                "{:<16} {:<16} {:<24} {:>9} {:>9} {:>9} {:>9} {:>8} {:>10} {:>10}",
+                "primary", "secondary", "TCA (UTC)", "miss km", "R km", "I km", "C km", "v km/s", "Pc*", "Pc max"
+            )?;
+            for r in &rows {
+                let e = r.event;
+                writeln!(
+                    out,
+                    "{} {} {:<24} {:>9.3} {:>9.3} {:>9.3} {:>9.3} {:>8.3} {:>10} {:>10}",
+                    common::fit(&e.primary, 16),
+                    common::fit(&e.secondary, 16),
+                    e.tca.to_iso_ms(),
+                    e.miss_distance_km,
+                    e.radial_km,
+                    e.in_track_km,
+                    e.cross_track_km,
+                    e.relative_speed_km_s,
+                    r.pc.map(|p| format!("{p:.2e}")).unwrap_or_else(|| "-".into()),
+                    r.pc_max.map(|p| format!("{p:.2e}")).unwrap_or_else(|| "-".into()),
+                )?;
+            }
+            writeln!(
+                out,
+                "\n{} event(s). R/I/C: secondary relative to primary in the primary's radial/in-track/cross-track frame.",
+                rows.len()
+            )?;
+            writeln!(out, "*Pc with {label}; combined hard-body radius per event (see --format json).")?;
+            writeln!(out, "Pc max: largest probability over the covariance's size, the honest figure for element sets.")?;
+            writeln!(out, "{CAUTION}")?;
+        }
+    }
+    Ok(())
+}
+
+fn describe_volume(v: &ScreeningVolume) -> String {
+    match *v {
+        ScreeningVolume::Sphere { radius_km } => format!("sphere {radius_km} km"),
+        ScreeningVolume::Box { radial_km, in_track_km, cross_track_km } => {
+            format!("box ±{radial_km}/{in_track_km}/{cross_track_km} km (R/I/C)")
+        }
+        ScreeningVolume::Ellipsoid { radial_km, in_track_km, cross_track_km } => {
+            format!("ellipsoid {radial_km}/{in_track_km}/{cross_track_km} km (R/I/C)")
+        }
+    }
+}
+
+pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
+    let args = RawArgs::parse(argv, &["hard-body-radius-m", "format"], &[])?;
+    let [file] = args.positionals.as_slice() else {
+        bail!("give one CDM file\nusage: {CDM_USAGE}");
+    };
+    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
+    let bytes = passlane_files::read_limited(std::path::Path::new(file), 16 * 1024 * 1024)
+        .with_context(|| format!("cannot read {file}"))?;
+    let text = String::from_utf8(bytes).map_err(|e| anyhow::anyhow!("{file}: not UTF-8 text (byte {})", e.utf8_error().valid_up_to()))?;
+    let cdm = Cdm::parse(&text, file)?;
+    let hbr = args.f64_value("hard-body-radius-m")?.unwrap_or(10.0);
+    if !(hbr > 0.0) {
+        bail!("--hard-body-radius-m must be positive");
+    }
+    let a = cdm.recompute(hbr).map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
+    match format {
+        Format::Json => {
+            serde_json::to_writer_pretty(&mut *out, &a)?;
+            writeln!(out)?;
+        }
+        _ => {
+            writeln!(out, "CDM {} from {} ({})", cdm.header.message_id, cdm.header.originator, cdm.header.creation_date)?;
+            writeln!(out, "  object 1: {} ({})", cdm.object1.object_name, cdm.object1.object_designator)?;
+            writeln!(out, "  object 2: {} ({})", cdm.object2.object_name, cdm.object2.object_designator)?;
+            writeln!(out, "  TCA                {}", a.tca)?;
+            writeln!(out, "  miss distance      {:.1} m (CDM says {:.1} m)", a.miss_distance_m, a.cdm_miss_distance_m)?;
+            writeln!(out, "  R / T / N          {:.1} / {:.1} / {:.1} m", a.radial_m, a.in_track_m, a.cross_track_m)?;
+            writeln!(out, "  relative speed     {:.1} m/s, approach angle {:.1}°", a.relative_speed_m_s, a.approach_angle_deg)?;
+            writeln!(out, "  encounter plane    miss ({:.1}, {:.1}) m, sigma ({:.1}, {:.1}) m, hard-body radius {:.1} m",
+                a.miss_x_m, a.miss_y_m, a.sigma_x_m, a.sigma_y_m, a.hard_body_radius_m)?;
+            writeln!(out, "  Pc (2-D integral)  {:.4e}", a.pc)?;
+            writeln!(out, "  Pc (Alfano 1-D)    {:.4e}", a.pc_alfano)?;
+            writeln!(out, "  Pc (Chan series)   {:.4e}", a.pc_chan)?;
+            writeln!(out, "  Pc max             {:.4e} (over covariance size)", a.pc_max)?;
+            if let Some(p) = a.cdm_collision_probability {
+                writeln!(out, "  CDM's own Pc       {p:.4e}")?;
+            }
+            writeln!(out, "  covariance from the {}", a.covariance_source)?;
+            writeln!(out, "{CAUTION}")?;
+        }
+    }
+    Ok(())
+}

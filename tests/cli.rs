@@ -1,0 +1,264 @@
+//! The command line as scripts use it: field names of the JSON outputs are a
+//! contract, errors name the file, line and field, and bad records never
+//! spoil the good ones.
+
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+use serde_json::Value;
+
+fn repo() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn passlane(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_passlane"))
+        .args(args)
+        .current_dir(repo())
+        .output()
+        .expect("run passlane")
+}
+
+fn ok_json(args: &[&str]) -> Value {
+    let out = passlane(args);
+    assert!(
+        out.status.success(),
+        "passlane {args:?} failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("JSON on stdout")
+}
+
+fn tmp(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("passlane-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&d).unwrap();
+    d.join(name)
+}
+
+fn has_fields(v: &Value, fields: &[&str]) {
+    for f in fields {
+        assert!(v.get(*f).is_some(), "missing field {f} in {v}");
+    }
+}
+
+fn is_iso_ms(s: &str) -> bool {
+    // 2026-12-01T12:00:00.000Z
+    s.len() == 24 && s.ends_with('Z') && &s[10..11] == "T" && &s[19..20] == "."
+}
+
+#[test]
+fn elements_json_contract() {
+    let v = ok_json(&["elements", "scenarios/demo-fleet.tle", "--format", "json", "--at", "2026-12-02T00:00:00Z"]);
+    let rows = v.as_array().unwrap();
+    assert_eq!(rows.len(), 6);
+    for r in rows {
+        has_fields(
+            r,
+            &[
+                "name", "catalog_number", "epoch", "period_min", "semi_major_axis_km", "perigee_altitude_km",
+                "apogee_altitude_km", "inclination_deg", "eccentricity",
+            ],
+        );
+        assert!(is_iso_ms(r["epoch"].as_str().unwrap()));
+    }
+}
+
+#[test]
+fn elements_reports_bad_records_with_file_and_line_and_keeps_good_ones() {
+    let good = std::fs::read_to_string(repo().join("scenarios/demo-fleet.tle")).unwrap();
+    let mut lines: Vec<String> = good.lines().map(String::from).collect();
+    // Break the checksum of the second satellite's line 2 (file line 6).
+    let l = &mut lines[5];
+    let last = l.pop().unwrap();
+    l.push(if last == '0' { '1' } else { '0' });
+    let path = tmp("broken.tle");
+    std::fs::write(&path, lines.join("\n")).unwrap();
+    let out = passlane(&["elements", path.to_str().unwrap(), "--format", "json"]);
+    assert!(out.status.success());
+    let v: Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v.as_array().unwrap().len(), 5, "the five good records still load");
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("broken.tle:6:"), "diagnostic names file and line: {err}");
+    assert!(err.contains("checksum"), "{err}");
+}
+
+#[test]
+fn ephemeris_json_contract_in_every_frame() {
+    for frame in ["teme", "earth-fixed"] {
+        let v = ok_json(&[
+            "ephemeris", "--elements", "scenarios/demo-fleet.tle", "--start", "2026-12-01T00:00:00Z",
+            "--end", "2026-12-01T00:10:00Z", "--step-s", "300", "--frame", frame, "--format", "json",
+        ]);
+        let rows = v.as_array().unwrap();
+        assert_eq!(rows.len(), 6 * 3);
+        for r in rows {
+            has_fields(r, &["catalog_number", "time", "position_km", "velocity_km_s"]);
+            assert!(is_iso_ms(r["time"].as_str().unwrap()));
+            assert_eq!(r["position_km"].as_array().unwrap().len(), 3);
+        }
+    }
+    let v = ok_json(&[
+        "ephemeris", "--elements", "scenarios/demo-fleet.tle", "--start", "2026-12-01T00:00:00Z",
+        "--end", "2026-12-01T00:10:00Z", "--step-s", "600", "--frame", "geodetic", "--format", "json",
+    ]);
+    for r in v.as_array().unwrap() {
+        has_fields(r, &["catalog_number", "time", "latitude_deg", "longitude_deg", "altitude_km"]);
+    }
+}
+
+#[test]
+fn passes_json_contract_sorted_by_aos() {
+    let v = ok_json(&[
+        "passes", "--elements", "scenarios/demo-fleet.tle", "--station", "Bramble Hill,51.45,-1.3,120",
+        "--station", "Coral Shoal,1.35,103.82,15", "--start", "2026-12-01T00:00:00Z", "--end",
+        "2026-12-02T00:00:00Z", "--min-elevation", "10", "--format", "json", "--ut1-utc-s", "0.08",
+    ]);
+    let rows = v.as_array().unwrap();
+    assert!(rows.len() > 10);
+    let mut prev = String::new();
+    for r in rows {
+        has_fields(
+            r,
+            &[
+                "satellite", "catalog_number", "station", "aos", "max_elevation_time", "los", "max_elevation_deg",
+                "aos_azimuth_deg", "los_azimuth_deg", "duration_s", "aos_clipped", "los_clipped",
+            ],
+        );
+        let aos = r["aos"].as_str().unwrap().to_string();
+        assert!(is_iso_ms(&aos));
+        assert!(aos >= prev, "sorted by AOS");
+        prev = aos;
+    }
+}
+
+#[test]
+fn passes_from_the_demo_scenario_alone() {
+    let out = passlane(&["passes", "--scenario", "scenarios/demo.json"]);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("Northfell") && text.contains("KRSL-5 AUK"));
+    assert!(text.contains("pass(es)"));
+}
+
+#[test]
+fn track_gives_a_pointing_table_from_aos_to_los() {
+    let passes = ok_json(&[
+        "passes", "--elements", "scenarios/demo-fleet.tle", "--station", "Coral Shoal,1.35,103.82,15",
+        "--start", "2026-12-01T00:00:00Z", "--end", "2026-12-02T00:00:00Z", "--format", "json",
+    ]);
+    let p = &passes.as_array().unwrap()[0];
+    let inside = p["max_elevation_time"].as_str().unwrap();
+    let rows = ok_json(&[
+        "track", "--elements", "scenarios/demo-fleet.tle", "--station", "Coral Shoal,1.35,103.82,15",
+        "--satellite", &p["catalog_number"].to_string(), "--pass-start", inside, "--step-s", "1", "--format", "json",
+    ]);
+    let rows = rows.as_array().unwrap();
+    assert_eq!(rows[0]["time"], p["aos"]);
+    assert_eq!(rows[rows.len() - 1]["time"], p["los"]);
+    let expected = p["duration_s"].as_f64().unwrap().ceil() as usize + 1;
+    assert!(rows.len().abs_diff(expected) <= 1, "{} rows for {} s", rows.len(), expected);
+    for r in rows {
+        has_fields(r, &["time", "azimuth_deg", "elevation_deg", "range_km", "range_rate_km_s"]);
+    }
+}
+
+#[test]
+fn screen_json_contract_and_cdm_round_trip() {
+    let dir = tmp("cdms");
+    let v = ok_json(&[
+        "screen", "--elements", "scenarios/demo-fleet.tle", "--catalog", "scenarios/demo-debris.tle",
+        "--start", "2026-12-01T00:00:00Z", "--end", "2026-12-08T00:00:00Z", "--threshold-km", "5",
+        "--format", "json", "--cdm-dir", dir.to_str().unwrap(),
+    ]);
+    let events = v.as_array().unwrap();
+    assert!(!events.is_empty(), "the demo debris passes close to the fleet");
+    let mut prev = String::new();
+    for e in events {
+        has_fields(
+            e,
+            &[
+                "primary", "secondary", "primary_catalog_number", "secondary_catalog_number", "tca",
+                "miss_distance_km", "radial_km", "in_track_km", "cross_track_km", "relative_speed_km_s",
+            ],
+        );
+        let tca = e["tca"].as_str().unwrap().to_string();
+        assert!(is_iso_ms(&tca));
+        assert!(tca >= prev);
+        prev = tca;
+        assert!(e["miss_distance_km"].as_f64().unwrap() <= 5.0);
+    }
+    let files: Vec<_> = std::fs::read_dir(&dir).unwrap().flatten().collect();
+    assert_eq!(files.len(), events.len(), "one CDM per event");
+    // Reading a written CDM back gives the event's figures.
+    let first = &events[0];
+    let cdm_file = files
+        .iter()
+        .map(|f| f.path())
+        .find(|p| {
+            let name = p.file_name().unwrap().to_string_lossy().to_string();
+            name.starts_with(&format!(
+                "{}_{}_",
+                first["primary_catalog_number"], first["secondary_catalog_number"]
+            ))
+        })
+        .unwrap();
+    let a = ok_json(&["cdm", cdm_file.to_str().unwrap(), "--format", "json", "--hard-body-radius-m", "3"]);
+    for f in ["tca", "miss_distance_m", "relative_speed_m_s", "pc", "pc_alfano", "pc_chan", "pc_max"] {
+        assert!(a.get(f).is_some(), "cdm json lacks {f}");
+    }
+    let miss_m = first["miss_distance_km"].as_f64().unwrap() * 1000.0;
+    assert!((a["miss_distance_m"].as_f64().unwrap() - miss_m).abs() < 1e-3);
+    let speed = first["relative_speed_km_s"].as_f64().unwrap() * 1000.0;
+    assert!((a["relative_speed_m_s"].as_f64().unwrap() - speed).abs() < 1e-3);
+}
+
+#[test]
+fn errors_are_clear_and_exit_nonzero() {
+    let out = passlane(&["passes", "--elements", "scenarios/demo-fleet.tle", "--start", "yesterday", "--end", "now", "--station", "X,1,2,3"]);
+    assert!(!out.status.success());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("--start") && err.contains("ISO 8601"), "{err}");
+
+    let out = passlane(&["passes", "--elements", "scenarios/demo-fleet.tle", "--station", "X,95,2,3", "--start", "2026-12-01T00:00:00Z", "--end", "2026-12-02T00:00:00Z"]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("latitude_deg"));
+
+    let out = passlane(&["passes", "--elements", "no/such/file.tle", "--station", "X,1,2,3"]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("no/such/file.tle"));
+
+    let out = passlane(&["passes", "--bogus"]);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("unknown option --bogus"));
+}
+
+#[test]
+fn plan_writes_every_hand_off_file() {
+    let dir = tmp("plan-out");
+    let dir_s = dir.to_str().unwrap();
+    let v = ok_json(&[
+        "plan",
+        "--scenario",
+        "scenarios/demo.json",
+        "--end",
+        "2026-12-02T00:00:00Z",
+        "--out",
+        dir_s,
+        "--format",
+        "json",
+    ]);
+    has_fields(&v, &["contacts", "demand", "conflicts", "score", "max_score", "upper_bound", "method"]);
+    let contacts = v["contacts"].as_array().unwrap();
+    assert!(!contacts.is_empty());
+    for c in contacts {
+        has_fields(c, &["spacecraft", "catalog_number", "station", "antenna", "aos", "los", "max_elevation_deg", "channels", "volume_mb"]);
+        assert!(is_iso_ms(c["aos"].as_str().unwrap()));
+    }
+    let csv = std::fs::read_to_string(dir.join("plan.csv")).unwrap();
+    assert_eq!(csv.lines().count(), contacts.len() + 1);
+    let ics = std::fs::read_to_string(dir.join("plan.ics")).unwrap();
+    assert_eq!(ics.matches("BEGIN:VEVENT\r\n").count(), contacts.len());
+    assert_eq!(std::fs::read_dir(dir.join("pointing")).unwrap().count(), contacts.len());
+    assert_eq!(std::fs::read_dir(dir.join("oem")).unwrap().count(), 6);
+    let _ = std::fs::remove_dir_all(&dir);
+}
