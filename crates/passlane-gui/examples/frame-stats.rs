@@ -35,14 +35,24 @@ fn main() {
     doc.fleet = spread(&template, 100, 100_000);
     doc.catalog = spread(&template, 30_000, 200_000);
     doc.revision += 1;
-    let mut app = PasslaneApp::new(doc, AppOptions { config_dir: None, frame_stats: false, auto_passes: false });
+    let mut app = PasslaneApp::new(
+        doc,
+        AppOptions {
+            config_dir: None,
+            frame_stats: false,
+            auto_passes: false,
+        },
+    );
     let ctx = egui::Context::default();
     let mut times_ms = Vec::new();
     for frame in 0..240 {
         // Advance the cursor 30 s per frame (playback at 1800× and 60 frames/s).
         app.state.cursor = app.state.cursor.add_s(30.0);
         let input = egui::RawInput {
-            screen_rect: Some(egui::Rect::from_min_size(egui::Pos2::ZERO, egui::vec2(1500.0, 950.0))),
+            screen_rect: Some(egui::Rect::from_min_size(
+                egui::Pos2::ZERO,
+                egui::vec2(1500.0, 950.0),
+            )),
             ..Default::default()
         };
         let t = Instant::now();

@@ -79,7 +79,11 @@ pub struct PasslaneApp {
 
 impl PasslaneApp {
     pub fn new(doc: Document, options: AppOptions) -> Self {
-        let recent = options.config_dir.as_deref().map(load_recent).unwrap_or_default();
+        let recent = options
+            .config_dir
+            .as_deref()
+            .map(load_recent)
+            .unwrap_or_default();
         PasslaneApp {
             state: AppState::new(doc),
             tab: Tab::Map,
@@ -120,9 +124,12 @@ impl PasslaneApp {
         let sets = self.state.doc.fleet.clone();
         let stations = self.state.doc.scenario.stations.clone();
         let options = self.state.pass_options();
-        self.pass_job = Some(Job::spawn("Finding passes", self.state.doc.revision, ctx, move |p| {
-            find_passes(&sets, &stations, &options, p)
-        }));
+        self.pass_job = Some(Job::spawn(
+            "Finding passes",
+            self.state.doc.revision,
+            ctx,
+            move |p| find_passes(&sets, &stations, &options, p),
+        ));
     }
 
     /// Takes a finished job's result. Called once per frame before drawing.
@@ -134,7 +141,8 @@ impl PasslaneApp {
                 let revision = job.revision;
                 self.pass_job = None;
                 if report.cancelled {
-                    self.state.status = "Pass search cancelled: the timeline shows what was found.".into();
+                    self.state.status =
+                        "Pass search cancelled: the timeline shows what was found.".into();
                 }
                 self.state.passes = report;
                 self.state.passes_revision = Some(revision);
@@ -143,7 +151,8 @@ impl PasslaneApp {
             Poll::Lost => {
                 self.pass_job = None;
                 self.state.passes_revision = Some(self.state.doc.revision);
-                self.state.status = "The pass search stopped unexpectedly; edit or reload to retry.".into();
+                self.state.status =
+                    "The pass search stopped unexpectedly; edit or reload to retry.".into();
             }
         }
     }
@@ -201,10 +210,18 @@ impl PasslaneApp {
         ui.horizontal_wrapped(|ui| {
             ui.strong("Passlane");
             ui.separator();
-            if ui.button("New").on_hover_text("Start an empty scenario").clicked() {
+            if ui
+                .button("New")
+                .on_hover_text("Start an empty scenario")
+                .clicked()
+            {
                 self.request(Pending::New);
             }
-            if ui.button("Open…").on_hover_text("Choose a scenario file").clicked() {
+            if ui
+                .button("Open…")
+                .on_hover_text("Choose a scenario file")
+                .clicked()
+            {
                 self.open_dialog(DialogPurpose::OpenScenario);
             }
             if ui.button("Save").clicked() {
@@ -369,15 +386,22 @@ impl PasslaneApp {
         let (tx, rx) = channel();
         let saving = matches!(purpose, DialogPurpose::SaveScenario);
         let scenario = !matches!(purpose, DialogPurpose::ElementFile { .. });
-        let spawned = std::thread::Builder::new().name("passlane file dialog".into()).spawn(move || {
-            let dialog = if scenario {
-                rfd::FileDialog::new().add_filter("Passlane scenario", &["json"])
-            } else {
-                rfd::FileDialog::new().add_filter("Element sets", &["tle", "txt", "json", "xml", "kvn", "omm"])
-            };
-            let picked = if saving { dialog.save_file() } else { dialog.pick_file() };
-            let _ = tx.send(picked);
-        });
+        let spawned = std::thread::Builder::new()
+            .name("passlane file dialog".into())
+            .spawn(move || {
+                let dialog = if scenario {
+                    rfd::FileDialog::new().add_filter("Passlane scenario", &["json"])
+                } else {
+                    rfd::FileDialog::new()
+                        .add_filter("Element sets", &["tle", "txt", "json", "xml", "kvn", "omm"])
+                };
+                let picked = if saving {
+                    dialog.save_file()
+                } else {
+                    dialog.pick_file()
+                };
+                let _ = tx.send(picked);
+            });
         if spawned.is_ok() {
             self.dialog = Some((purpose, rx));
         } else {
@@ -392,9 +416,12 @@ impl PasslaneApp {
             Err(std::sync::mpsc::TryRecvError::Empty) => return,
             Err(std::sync::mpsc::TryRecvError::Disconnected) => None,
         };
-        let Some((purpose, _)) = self.dialog.take() else { return };
+        let Some((purpose, _)) = self.dialog.take() else {
+            return;
+        };
         let Some(path) = picked else {
-            self.state.status = "No file chosen (if no dialog appeared, type the path in the Path field).".into();
+            self.state.status =
+                "No file chosen (if no dialog appeared, type the path in the Path field).".into();
             return;
         };
         match purpose {
@@ -411,14 +438,17 @@ impl PasslaneApp {
     fn handle_close_request(&mut self, ui: &egui::Ui) {
         let close = ui.input(|i| i.viewport().close_requested());
         if close && self.state.doc.dirty && !self.quit_confirmed {
-            ui.ctx().send_viewport_cmd(egui::ViewportCommand::CancelClose);
+            ui.ctx()
+                .send_viewport_cmd(egui::ViewportCommand::CancelClose);
             self.pending = Some(Pending::Quit);
         }
     }
 
     /// The unsaved-changes question.
     fn guard_modal(&mut self, ui: &egui::Ui) {
-        let Some(pending) = self.pending.clone() else { return };
+        let Some(pending) = self.pending.clone() else {
+            return;
+        };
         let mut answer = None;
         egui::Modal::new(egui::Id::unique("unsaved-guard")).show(ui.ctx(), |ui| {
             ui.heading("Unsaved changes");
@@ -470,7 +500,8 @@ impl PasslaneApp {
         if !self.options.frame_stats {
             return;
         }
-        self.frame_times_ms.push(start.elapsed().as_secs_f32() * 1000.0);
+        self.frame_times_ms
+            .push(start.elapsed().as_secs_f32() * 1000.0);
         if self.frame_stats_since.elapsed() >= Duration::from_secs(2) {
             let n = self.frame_times_ms.len().max(1) as f32;
             let mean = self.frame_times_ms.iter().sum::<f32>() / n;

@@ -55,7 +55,10 @@ impl Document {
         );
         let scenario = Scenario {
             name: "Untitled scenario".to_string(),
-            window: Some(Window { start: day_start, end: day_start.add_s(86_400.0) }),
+            window: Some(Window {
+                start: day_start,
+                end: day_start.add_s(86_400.0),
+            }),
             ..Scenario::default()
         };
         Document {
@@ -73,7 +76,10 @@ impl Document {
     pub fn demo() -> Self {
         match Scenario::from_json(DEMO_SCENARIO_JSON, "demo.json") {
             Ok(scenario) => {
-                let mut doc = Document { scenario, ..Document::new_empty() };
+                let mut doc = Document {
+                    scenario,
+                    ..Document::new_empty()
+                };
                 doc.reload_elements(None);
                 doc
             }
@@ -88,7 +94,11 @@ impl Document {
             .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
         let text = String::from_utf8_lossy(&bytes);
         let scenario = Scenario::from_json(&text, &path.display().to_string())?;
-        let mut doc = Document { scenario, path: Some(path.to_path_buf()), ..Document::new_empty() };
+        let mut doc = Document {
+            scenario,
+            path: Some(path.to_path_buf()),
+            ..Document::new_empty()
+        };
         doc.reload_elements(path.parent());
         Ok(doc)
     }
@@ -129,7 +139,11 @@ impl Document {
         self.files.clear();
         let own = self.scenario.element_files.clone();
         let other = self.scenario.catalog_files.clone();
-        for (name, own_fleet) in own.iter().map(|n| (n, true)).chain(other.iter().map(|n| (n, false))) {
+        for (name, own_fleet) in own
+            .iter()
+            .map(|n| (n, true))
+            .chain(other.iter().map(|n| (n, false)))
+        {
             let resolved = match base {
                 Some(dir) if Path::new(name).is_relative() => dir.join(name),
                 _ => PathBuf::from(name),
@@ -166,10 +180,17 @@ impl Document {
     pub fn add_element_bytes(&mut self, bytes: &[u8], name: &str, own_fleet: bool) -> usize {
         let report = passlane_orbit::elements::load(bytes, name, LoadOptions::default());
         let n = report.sets.len();
-        let target = if own_fleet { &mut self.fleet } else { &mut self.catalog };
+        let target = if own_fleet {
+            &mut self.fleet
+        } else {
+            &mut self.catalog
+        };
         // A newer set for a catalog number already loaded replaces it.
         for set in report.sets {
-            match target.iter_mut().find(|s| s.catalog_number == set.catalog_number) {
+            match target
+                .iter_mut()
+                .find(|s| s.catalog_number == set.catalog_number)
+            {
                 Some(old) if old.epoch <= set.epoch => *old = set,
                 Some(_) => {}
                 None => target.push(set),
@@ -211,7 +232,12 @@ impl Document {
             .and_then(|p| p.file_name())
             .map(|f| f.to_string_lossy().into_owned())
             .unwrap_or_else(|| "(not saved)".to_string());
-        format!("{}{} — {}", if self.dirty { "* " } else { "" }, self.scenario.name, file)
+        format!(
+            "{}{} — {}",
+            if self.dirty { "* " } else { "" },
+            self.scenario.name,
+            file
+        )
     }
 }
 
@@ -229,6 +255,10 @@ mod tests {
         assert_eq!(doc.scenario.stations.len(), 3);
         assert_eq!(doc.fleet.len(), 6);
         // The demo names a catalog file that is not bundled: that is reported, not fatal.
-        assert!(doc.files.iter().any(|f| !f.own_fleet && !f.diagnostics.is_empty()));
+        assert!(
+            doc.files
+                .iter()
+                .any(|f| !f.own_fleet && !f.diagnostics.is_empty())
+        );
     }
 }

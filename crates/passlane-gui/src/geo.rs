@@ -29,7 +29,11 @@ pub fn split_at_antimeridian(points: &[LonLat]) -> Vec<Vec<LonLat>> {
             if dlon.abs() > 180.0 {
                 // Unwrap p next to q, find where the segment meets ±180.
                 let edge = if dlon > 0.0 { -180.0 } else { 180.0 };
-                let p_unwrapped = if dlon > 0.0 { p[0] - 360.0 } else { p[0] + 360.0 };
+                let p_unwrapped = if dlon > 0.0 {
+                    p[0] - 360.0
+                } else {
+                    p[0] + 360.0
+                };
                 let f = (edge - q[0]) / (p_unwrapped - q[0]);
                 let lat = q[1] + f * (p[1] - q[1]);
                 current.push([edge, lat]);
@@ -48,7 +52,11 @@ pub fn split_at_antimeridian(points: &[LonLat]) -> Vec<Vec<LonLat>> {
 
 /// Sub-satellite point (geodetic) of one element set at one time, or `None`
 /// when SGP4 fails there (decayed, bad elements).
-pub fn sub_satellite_point(prop: &Propagator, t: UtcTime, eop: &EarthOrientation) -> Option<LonLat> {
+pub fn sub_satellite_point(
+    prop: &Propagator,
+    t: UtcTime,
+    eop: &EarthOrientation,
+) -> Option<LonLat> {
     let s = prop.state_at(t).ok()?;
     let ef = TemeToEarthFixed::at(t, eop).position(&s.position_km);
     let g = earth_fixed_to_geodetic(&ef);
@@ -104,8 +112,8 @@ pub fn destination(lat_deg: f64, lon_deg: f64, bearing_deg: f64, angle_deg: f64)
     let (theta, delta) = (bearing_deg.to_radians(), angle_deg.to_radians());
     let sin_phi2 = phi1.sin() * delta.cos() + phi1.cos() * delta.sin() * theta.cos();
     let phi2 = sin_phi2.clamp(-1.0, 1.0).asin();
-    let lam2 = lam1
-        + (theta.sin() * delta.sin() * phi1.cos()).atan2(delta.cos() - phi1.sin() * sin_phi2);
+    let lam2 =
+        lam1 + (theta.sin() * delta.sin() * phi1.cos()).atan2(delta.cos() - phi1.sin() * sin_phi2);
     [wrap_lon_deg(lam2.to_degrees()), phi2.to_degrees()]
 }
 
@@ -138,15 +146,25 @@ pub fn night_bands(sub_solar: LonLat, lon_step_deg: f64) -> Vec<(f64, f64, f64)>
     let [lon_s, lat_s] = sub_solar;
     // Keep the declination away from zero: at an equinox the terminator is a
     // meridian pair, and the formula's division needs a finite tangent.
-    let lat_s = if lat_s.abs() < 0.01 { 0.01_f64.copysign(lat_s + 1e-12) } else { lat_s };
+    let lat_s = if lat_s.abs() < 0.01 {
+        0.01_f64.copysign(lat_s + 1e-12)
+    } else {
+        lat_s
+    };
     let tan_s = lat_s.to_radians().tan();
     let n = (360.0 / lon_step_deg.max(0.1)).round() as usize;
     (0..=n)
         .map(|i| {
             let lon = -180.0 + i as f64 * 360.0 / n as f64;
-            let term = (-(lon - lon_s).to_radians().cos() / tan_s).atan().to_degrees();
+            let term = (-(lon - lon_s).to_radians().cos() / tan_s)
+                .atan()
+                .to_degrees();
             // The pole away from the Sun is in night.
-            if lat_s > 0.0 { (lon, -90.0, term) } else { (lon, term, 90.0) }
+            if lat_s > 0.0 {
+                (lon, -90.0, term)
+            } else {
+                (lon, term, 90.0)
+            }
         })
         .collect()
 }
@@ -173,7 +191,8 @@ mod tests {
 
     #[test]
     fn antimeridian_split_reaches_both_edges() {
-        let strips = split_at_antimeridian(&[[170.0, 0.0], [179.0, 1.0], [-179.0, 2.0], [-170.0, 3.0]]);
+        let strips =
+            split_at_antimeridian(&[[170.0, 0.0], [179.0, 1.0], [-179.0, 2.0], [-170.0, 3.0]]);
         assert_eq!(strips.len(), 2);
         assert_eq!(strips[0].last().map(|p| p[0]), Some(180.0));
         assert_eq!(strips[1].first().map(|p| p[0]), Some(-180.0));

@@ -31,7 +31,8 @@ impl JobProgress {
 
 impl Progress for JobProgress {
     fn report(&self, fraction: f64) {
-        self.fraction_bits.store(fraction.clamp(0.0, 1.0).to_bits(), Ordering::Relaxed);
+        self.fraction_bits
+            .store(fraction.clamp(0.0, 1.0).to_bits(), Ordering::Relaxed);
         if let Some(ctx) = &self.repaint {
             ctx.request_repaint();
         }
@@ -67,20 +68,31 @@ impl<T: Send + 'static> Job<T> {
         ctx: Option<egui::Context>,
         work: impl FnOnce(&JobProgress) -> T + Send + 'static,
     ) -> Self {
-        let progress = Arc::new(JobProgress { repaint: ctx.clone(), ..JobProgress::default() });
+        let progress = Arc::new(JobProgress {
+            repaint: ctx.clone(),
+            ..JobProgress::default()
+        });
         let (tx, rx) = channel();
         let worker_progress = Arc::clone(&progress);
-        let spawned = std::thread::Builder::new().name(format!("passlane {label}")).spawn(move || {
-            let result = work(&worker_progress);
-            // The receiver is gone when the job was replaced; nothing to do then.
-            let _ = tx.send(result);
-            if let Some(ctx) = &worker_progress.repaint {
-                ctx.request_repaint();
-            }
-        });
+        let spawned = std::thread::Builder::new()
+            .name(format!("passlane {label}"))
+            .spawn(move || {
+                let result = work(&worker_progress);
+                // The receiver is gone when the job was replaced; nothing to do then.
+                let _ = tx.send(result);
+                if let Some(ctx) = &worker_progress.repaint {
+                    ctx.request_repaint();
+                }
+            });
         // If no thread could be started the job reports itself lost on the first poll.
         drop(spawned);
-        Job { label: label.to_string(), progress, started: Instant::now(), revision, rx }
+        Job {
+            label: label.to_string(),
+            progress,
+            started: Instant::now(),
+            revision,
+            rx,
+        }
     }
 
     pub fn poll(&self) -> Poll<T> {
@@ -98,12 +110,23 @@ impl<T: Send + 'static> Job<T> {
 }
 
 /// Draws a job's progress bar and cancel button; returns true when cancel was clicked.
-pub fn progress_ui(ui: &mut egui::Ui, label: &str, progress: &JobProgress, started: Instant) -> bool {
+pub fn progress_ui(
+    ui: &mut egui::Ui,
+    label: &str,
+    progress: &JobProgress,
+    started: Instant,
+) -> bool {
     let fraction = progress.fraction() as f32;
     ui.add(
         egui::ProgressBar::new(fraction)
             .desired_width(160.0)
-            .text(format!("{label}: {:.0}% ({:.1} s)", fraction * 100.0, started.elapsed().as_secs_f32())),
+            .text(format!(
+                "{label}: {:.0}% ({:.1} s)",
+                fraction * 100.0,
+                started.elapsed().as_secs_f32()
+            )),
     );
-    ui.button("Cancel").on_hover_text("Stop this computation and keep what it has found").clicked()
+    ui.button("Cancel")
+        .on_hover_text("Stop this computation and keep what it has found")
+        .clicked()
 }

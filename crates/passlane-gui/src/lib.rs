@@ -49,7 +49,11 @@ fn find_demo_on_disk() -> Option<PathBuf> {
     if let Ok(cwd) = std::env::current_dir() {
         candidates.push(cwd.join(&rel));
     }
-    candidates.push(PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..").join(&rel));
+    candidates.push(
+        PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+            .join("../..")
+            .join(&rel),
+    );
     candidates.into_iter().find(|p| p.is_file())
 }
 
@@ -80,8 +84,13 @@ fn config_dir() -> Option<PathBuf> {
 /// Opens the window and runs until it is closed.
 pub fn run(options: RunOptions) -> anyhow::Result<()> {
     let doc = initial_document(options.scenario.as_deref())?;
-    let frame_stats = options.frame_stats || std::env::var("PASSLANE_FRAME_STATS").is_ok_and(|v| v == "1");
-    let app_options = AppOptions { config_dir: config_dir(), frame_stats, auto_passes: true };
+    let frame_stats =
+        options.frame_stats || std::env::var("PASSLANE_FRAME_STATS").is_ok_and(|v| v == "1");
+    let app_options = AppOptions {
+        config_dir: config_dir(),
+        frame_stats,
+        auto_passes: true,
+    };
     let native = eframe::NativeOptions {
         viewport: eframe::egui::ViewportBuilder::default()
             .with_inner_size([1500.0, 950.0])

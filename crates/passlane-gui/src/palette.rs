@@ -23,7 +23,14 @@ pub const STATION: Color32 = Color32::from_rgb(0xF5, 0xF5, 0xF5);
 
 /// Colour of the n-th spacecraft; cycles through the seven non-black Okabe–Ito hues.
 pub fn series(n: usize) -> Color32 {
-    const SERIES: [Color32; 7] =
-        [ORANGE, SKY_BLUE, BLUISH_GREEN, YELLOW, VERMILLION, REDDISH_PURPLE, BLUE];
+    const SERIES: [Color32; 7] = [
+        ORANGE,
+        SKY_BLUE,
+        BLUISH_GREEN,
+        YELLOW,
+        VERMILLION,
+        REDDISH_PURPLE,
+        BLUE,
+    ];
     SERIES[n % SERIES.len()]
 }

@@ -38,7 +38,10 @@ impl AppState {
     /// command line derives from a scenario (window and Earth orientation).
     pub fn pass_options(&self) -> PassOptions {
         let (start, end) = self.doc.window();
-        PassOptions { earth_orientation: self.doc.scenario.earth_orientation, ..PassOptions::new(start, end) }
+        PassOptions {
+            earth_orientation: self.doc.scenario.earth_orientation,
+            ..PassOptions::new(start, end)
+        }
     }
 
     pub fn selected(&self) -> Option<&Pass> {
@@ -48,7 +51,11 @@ impl AppState {
     /// Colour index of a spacecraft: its position in the fleet, so colours stay
     /// put when passes change.
     pub fn fleet_index(&self, catalog_number: u32) -> usize {
-        self.doc.fleet.iter().position(|s| s.catalog_number == catalog_number).unwrap_or(0)
+        self.doc
+            .fleet
+            .iter()
+            .position(|s| s.catalog_number == catalog_number)
+            .unwrap_or(0)
     }
 
     /// Clamps the cursor into the window (after the window or document changed).

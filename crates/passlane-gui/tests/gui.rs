@@ -4,13 +4,21 @@
 
 use std::time::{Duration, Instant};
 
+use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, SnapshotOptions};
 use passlane_gui::{AppOptions, Document, PasslaneApp, Tab};
 use passlane_plan::{Silent, find_passes};
 
 fn app() -> PasslaneApp {
-    PasslaneApp::new(Document::demo(), AppOptions { config_dir: None, frame_stats: false, auto_passes: true })
+    PasslaneApp::new(
+        Document::demo(),
+        AppOptions {
+            config_dir: None,
+            frame_stats: false,
+            auto_passes: true,
+        },
+    )
 }
 
 fn harness(app: PasslaneApp) -> Harness<'static, PasslaneApp> {
@@ -33,7 +41,9 @@ fn wait_for_passes(h: &mut Harness<'static, PasslaneApp>) {
 }
 
 fn snapshot_options() -> SnapshotOptions {
-    SnapshotOptions::new().threshold(2.0).max_failed_pixels(2_000)
+    SnapshotOptions::new()
+        .threshold(2.0)
+        .max_failed_pixels(2_000)
 }
 
 #[test]
@@ -41,7 +51,12 @@ fn app_finds_the_same_passes_as_the_library_call() {
     let mut h = harness(app());
     wait_for_passes(&mut h);
     let state = &h.state().state;
-    let direct = find_passes(&state.doc.fleet, &state.doc.scenario.stations, &state.pass_options(), &Silent);
+    let direct = find_passes(
+        &state.doc.fleet,
+        &state.doc.scenario.stations,
+        &state.pass_options(),
+        &Silent,
+    );
     assert!(!direct.passes.is_empty(), "the demo should have passes");
     assert_eq!(state.passes.passes, direct.passes);
 }
@@ -55,7 +70,12 @@ fn select_a_pass_then_open_close_approaches_and_move_the_cursor() {
     assert_eq!(h.state().tab, Tab::Sky);
     // Pass list rows read "HH:MM · spacecraft · station · max°".
     let first = h.state().state.passes.passes[0].clone();
-    let label_prefix = format!("{} · {} · {}", &first.aos.to_iso_s()[11..16], first.satellite, first.station);
+    let label_prefix = format!(
+        "{} · {} · {}",
+        &first.aos.to_iso_s()[11..16],
+        first.satellite,
+        first.station
+    );
     h.get_by_label_contains(&label_prefix).click();
     h.run_steps(2);
     assert_eq!(h.state().state.selected_pass, Some(0));
@@ -64,7 +84,10 @@ fn select_a_pass_then_open_close_approaches_and_move_the_cursor() {
     h.get_by_label("Close approaches").click();
     h.run_steps(2);
     assert_eq!(h.state().tab, Tab::Approaches);
-    assert!(h.query_by_label_contains("Element-set screening is advisory").is_some());
+    assert!(
+        h.query_by_label_contains("Element-set screening is advisory")
+            .is_some()
+    );
     h.snapshot_options("close_approaches", &snapshot_options());
 
     let before = h.state().state.cursor;
@@ -72,7 +95,10 @@ fn select_a_pass_then_open_close_approaches_and_move_the_cursor() {
     for _ in 0..5 {
         h.step();
     }
-    assert!(h.state().state.cursor > before, "playing moves the time cursor");
+    assert!(
+        h.state().state.cursor > before,
+        "playing moves the time cursor"
+    );
     h.get_by_label("Pause").click();
     h.run_steps(1);
     assert!(!h.state().playing);
@@ -96,11 +122,78 @@ fn fleet_view_shows_orbit_summaries_and_stations() {
     h.get_by_label("Fleet and stations").click();
     h.run_steps(2);
     assert!(h.query_by_label("Orbit summary").is_some());
-    assert!(h.query_by_label("KRSL-1 HERON").is_some());
+    // The name also labels the spacecraft's timeline row, so it appears more than
+    // once; the summary row is recognised by its period, computed here directly.
+    assert!(
+        h.query_all_by_label("KRSL-1 HERON").count() >= 2,
+        "timeline row and summary row"
+    );
+    let heron = h
+        .state()
+        .state
+        .doc
+        .fleet
+        .iter()
+        .find(|s| s.name == "KRSL-1 HERON")
+        .cloned();
+    let heron = heron.expect("the demo fleet has KRSL-1 HERON");
+    let period = format!("{:.2}", passlane_orbit::OrbitSummary::of(&heron).period_min);
+    assert!(
+        h.query_by_label(&period).is_some(),
+        "orbit summary shows the period {period} min"
+    );
     h.snapshot_options("fleet", &snapshot_options());
     // Adding a station edits the document and makes the passes out of date.
     h.get_by_label("Add station").click();
     h.run_steps(1);
     assert!(h.state().state.doc.dirty);
     assert_eq!(h.state().state.doc.scenario.stations.len(), 4);
+}
+
+/// The bundled fonts are small: a character they lack panics in tests and draws
+/// a box in the window. Every non-ASCII character on a code line of the UI
+/// sources (doc comments and whole-line comments excluded) must have a glyph in
+/// both the proportional and the monospace font.
+#[test]
+fn every_non_ascii_character_in_the_ui_sources_has_a_glyph() {
+    let sources = [
+        include_str!("../src/app.rs"),
+        include_str!("../src/doc.rs"),
+        include_str!("../src/jobs.rs"),
+        include_str!("../src/state.rs"),
+        include_str!("../src/geo.rs"),
+        include_str!("../src/views/approaches.rs"),
+        include_str!("../src/views/fleet.rs"),
+        include_str!("../src/views/map.rs"),
+        include_str!("../src/views/sky.rs"),
+        include_str!("../src/views/timeline.rs"),
+    ];
+    let mut chars: Vec<char> = sources
+        .iter()
+        .flat_map(|s| s.lines())
+        .filter(|l| !l.trim_start().starts_with("//"))
+        .flat_map(|l| l.chars())
+        .filter(|c| !c.is_ascii())
+        .collect();
+    chars.sort_unstable();
+    chars.dedup();
+    let ctx = egui::Context::default();
+    // Fonts are loaded at the first pass; its texture upload is not needed here.
+    ctx.run_ui(egui::RawInput::default(), |_| {})
+        .textures_delta
+        .clear();
+    let missing: Vec<String> = ctx.fonts_mut(|f| {
+        chars
+            .iter()
+            .filter(|c| {
+                !f.has_glyph(&egui::FontId::proportional(14.0), **c)
+                    || !f.has_glyph(&egui::FontId::monospace(14.0), **c)
+            })
+            .map(|c| format!("{c} (U+{:04X})", u32::from(*c)))
+            .collect()
+    });
+    assert!(
+        missing.is_empty(),
+        "characters without a glyph in the bundled fonts: {missing:?}"
+    );
 }

@@ -12,8 +12,8 @@
 
 use eframe::egui::{self, Align2, FontId, Pos2, Sense, Shape, Stroke, vec2};
 use egui_plot::{Line, Plot, PlotPoints};
-use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::Propagator;
+use passlane_orbit::frames::{norm, sub};
 use passlane_plan::screen::{
     CloseApproach, ScreeningRequest, ScreeningResult, ScreeningSettings, ScreeningVolume,
     screen_with_progress,
@@ -116,7 +116,10 @@ impl ApproachesView {
         self.poll(state);
         ui.horizontal(|ui| {
             let running = self.job.is_some();
-            if ui.add_enabled(!running, egui::Button::new("Run screening")).clicked() {
+            if ui
+                .add_enabled(!running, egui::Button::new("Run screening"))
+                .clicked()
+            {
                 self.start(state, ui.ctx().clone());
             }
             if let Some(job) = &self.job
@@ -124,8 +127,13 @@ impl ApproachesView {
             {
                 job.progress.cancel();
             }
-            if self.screened_revision.is_some() && self.screened_revision != Some(state.doc.revision) {
-                ui.colored_label(palette::YELLOW, "Inputs changed since this screening: run it again.");
+            if self.screened_revision.is_some()
+                && self.screened_revision != Some(state.doc.revision)
+            {
+                ui.colored_label(
+                    palette::YELLOW,
+                    "Inputs changed since this screening: run it again.",
+                );
             }
         });
         for d in self.diagnostics.iter().take(20) {
@@ -139,9 +147,12 @@ impl ApproachesView {
             });
         }
         ui.add_space(6.0);
-        egui::ScrollArea::vertical().id_salt("approach-scroll").max_height(ui.available_height() * 0.5).show(ui, |ui| {
-            self.table(ui);
-        });
+        egui::ScrollArea::vertical()
+            .id_salt("approach-scroll")
+            .max_height(ui.available_height() * 0.5)
+            .show(ui, |ui| {
+                self.table(ui);
+            });
         if self.selected != before {
             self.compute_range(state);
         }
@@ -152,9 +163,14 @@ impl ApproachesView {
                 row.primary, row.secondary, row.tca_iso, row.miss_km
             ));
             let series = self.range_series.clone();
-            Plot::new("approach-range").height(ui.available_height().max(120.0)).show(ui, |p| {
-                p.line(Line::new("range (km) vs minutes from TCA", PlotPoints::from(series)).color(palette::SKY_BLUE));
-            });
+            Plot::new("approach-range")
+                .height(ui.available_height().max(120.0))
+                .show(ui, |p| {
+                    p.line(
+                        Line::new("range (km) vs minutes from TCA", PlotPoints::from(series))
+                            .color(palette::SKY_BLUE),
+                    );
+                });
         }
     }
 
@@ -163,23 +179,34 @@ impl ApproachesView {
         let catalog = state.doc.catalog.clone();
         let (start, end) = state.doc.window();
         let settings = ScreeningSettings {
-            volume: ScreeningVolume::Sphere { radius_km: state.doc.scenario.screening.threshold_km },
+            volume: ScreeningVolume::Sphere {
+                radius_km: state.doc.scenario.screening.threshold_km,
+            },
             ..ScreeningSettings::default()
         };
-        self.job = Some(Job::spawn("Screening", state.doc.revision, Some(ctx), move |p| {
-            use passlane_plan::Progress;
-            let request = ScreeningRequest {
-                primaries: &fleet,
-                secondaries: if catalog.is_empty() { None } else { Some(&catalog) },
-                start,
-                end,
-                settings,
-            };
-            screen_with_progress(&request, &|f| {
-                p.report(f);
-                !p.cancelled()
-            })
-        }));
+        self.job = Some(Job::spawn(
+            "Screening",
+            state.doc.revision,
+            Some(ctx),
+            move |p| {
+                use passlane_plan::Progress;
+                let request = ScreeningRequest {
+                    primaries: &fleet,
+                    secondaries: if catalog.is_empty() {
+                        None
+                    } else {
+                        Some(&catalog)
+                    },
+                    start,
+                    end,
+                    settings,
+                };
+                screen_with_progress(&request, &|f| {
+                    p.report(f);
+                    !p.cancelled()
+                })
+            },
+        ));
     }
 
     fn poll(&mut self, state: &AppState) {
@@ -192,9 +219,19 @@ impl ApproachesView {
                 let hbr = state.doc.scenario.screening.default_hard_body_radius_m;
                 self.rows = result.events.iter().map(|e| row_of(e, hbr)).collect();
                 self.events = result.events;
-                self.diagnostics = result.diagnostics.iter().map(|d| format!("{}: {}", d.name, d.message)).collect();
+                self.diagnostics = result
+                    .diagnostics
+                    .iter()
+                    .map(|d| format!("{}: {}", d.name, d.message))
+                    .collect();
                 if result.cancelled {
-                    self.diagnostics.insert(0, format!("Cancelled: screened until {}", time_label(result.screened_until)));
+                    self.diagnostics.insert(
+                        0,
+                        format!(
+                            "Cancelled: screened until {}",
+                            time_label(result.screened_until)
+                        ),
+                    );
                 }
                 self.sort_rows();
             }
@@ -208,15 +245,40 @@ impl ApproachesView {
     /// Range between the two objects around TCA, from direct SGP4 states.
     fn compute_range(&mut self, state: &AppState) {
         self.range_series.clear();
-        let Some(row) = self.selected.and_then(|i| self.rows.get(i)) else { return };
-        let Some(e) = self.events.iter().find(|e| e.tca.to_iso_ms() == row.tca_iso && e.primary == row.primary && e.secondary == row.secondary) else { return };
-        let find = |n: u32| state.doc.fleet.iter().chain(&state.doc.catalog).find(|s| s.catalog_number == n);
-        let (Some(a), Some(b)) = (find(e.primary_catalog_number), find(e.secondary_catalog_number)) else { return };
-        let (Ok(pa), Ok(pb)) = (Propagator::new(a), Propagator::new(b)) else { return };
+        let Some(row) = self.selected.and_then(|i| self.rows.get(i)) else {
+            return;
+        };
+        let Some(e) = self.events.iter().find(|e| {
+            e.tca.to_iso_ms() == row.tca_iso
+                && e.primary == row.primary
+                && e.secondary == row.secondary
+        }) else {
+            return;
+        };
+        let find = |n: u32| {
+            state
+                .doc
+                .fleet
+                .iter()
+                .chain(&state.doc.catalog)
+                .find(|s| s.catalog_number == n)
+        };
+        let (Some(a), Some(b)) = (
+            find(e.primary_catalog_number),
+            find(e.secondary_catalog_number),
+        ) else {
+            return;
+        };
+        let (Ok(pa), Ok(pb)) = (Propagator::new(a), Propagator::new(b)) else {
+            return;
+        };
         for k in -120..=120 {
             let t = e.tca.add_s(f64::from(k) * 5.0);
             if let (Ok(sa), Ok(sb)) = (pa.state_at(t), pb.state_at(t)) {
-                self.range_series.push([f64::from(k) * 5.0 / 60.0, norm(&sub(&sa.position_km, &sb.position_km))]);
+                self.range_series.push([
+                    f64::from(k) * 5.0 / 60.0,
+                    norm(&sub(&sa.position_km, &sb.position_km)),
+                ]);
             }
         }
     }
@@ -235,7 +297,11 @@ impl ApproachesView {
     }
 
     fn header(&mut self, ui: &mut egui::Ui, label: &str, key: SortKey) {
-        let arrow = if self.sort == key { if self.descending { " ▼" } else { " ▲" } } else { "" };
+        let arrow = if self.sort == key {
+            if self.descending { " (desc)" } else { " (asc)" }
+        } else {
+            ""
+        };
         if ui.button(format!("{label}{arrow}")).clicked() {
             if self.sort == key {
                 self.descending = !self.descending;
@@ -248,28 +314,45 @@ impl ApproachesView {
     }
 
     fn table(&mut self, ui: &mut egui::Ui) {
-        egui::Grid::new("approach-table").striped(true).num_columns(7).show(ui, |ui| {
-            self.header(ui, "TCA (UTC)", SortKey::Tca);
-            ui.strong("Objects");
-            self.header(ui, "Miss (km)", SortKey::Miss);
-            ui.strong("R / I / C (km)");
-            ui.strong("Rel. speed (km/s)");
-            self.header(ui, "Pc", SortKey::Pc);
-            ui.strong("Covariance");
-            ui.end_row();
-            for (i, r) in self.rows.iter().enumerate() {
-                if ui.selectable_label(self.selected == Some(i), time_label(passlane_orbit::UtcTime::parse_iso(&r.tca_iso).unwrap_or_default())).clicked() {
-                    self.selected = Some(i);
-                }
-                ui.label(format!("{} / {}", r.primary, r.secondary));
-                ui.label(format!("{:.3}", r.miss_km));
-                ui.label(format!("{:.3} / {:.3} / {:.3}", r.ric_km[0], r.ric_km[1], r.ric_km[2]));
-                ui.label(format!("{:.2}", r.relative_speed_km_s));
-                ui.label(r.pc.map(|p| format!("{p:.1e}")).unwrap_or_else(|| "—".into()));
-                ui.label(&r.covariance_source);
+        egui::Grid::new("approach-table")
+            .striped(true)
+            .num_columns(7)
+            .show(ui, |ui| {
+                self.header(ui, "TCA (UTC)", SortKey::Tca);
+                ui.strong("Objects");
+                self.header(ui, "Miss (km)", SortKey::Miss);
+                ui.strong("R / I / C (km)");
+                ui.strong("Rel. speed (km/s)");
+                self.header(ui, "Pc", SortKey::Pc);
+                ui.strong("Covariance");
                 ui.end_row();
-            }
-        });
+                for (i, r) in self.rows.iter().enumerate() {
+                    if ui
+                        .selectable_label(
+                            self.selected == Some(i),
+                            time_label(
+                                passlane_orbit::UtcTime::parse_iso(&r.tca_iso).unwrap_or_default(),
+                            ),
+                        )
+                        .clicked()
+                    {
+                        self.selected = Some(i);
+                    }
+                    ui.label(format!("{} / {}", r.primary, r.secondary));
+                    ui.label(format!("{:.3}", r.miss_km));
+                    ui.label(format!(
+                        "{:.3} / {:.3} / {:.3}",
+                        r.ric_km[0], r.ric_km[1], r.ric_km[2]
+                    ));
+                    ui.label(format!("{:.2}", r.relative_speed_km_s));
+                    ui.label(
+                        r.pc.map(|p| format!("{p:.1e}"))
+                            .unwrap_or_else(|| "—".into()),
+                    );
+                    ui.label(&r.covariance_source);
+                    ui.end_row();
+                }
+            });
     }
 }
 
@@ -288,7 +371,9 @@ pub fn encounter_plane_ui(ui: &mut egui::Ui, pic: &EncounterPicture) {
     let l1 = (tr / 2.0 + disc).max(0.0);
     let l2 = (tr / 2.0 - disc).max(0.0);
     let angle = 0.5 * (2.0 * b).atan2(a - d);
-    let extent_m = (pic.miss_m[0].hypot(pic.miss_m[1]) + 3.0 * l1.sqrt()).max(pic.hard_body_radius_m * 4.0).max(1.0);
+    let extent_m = (pic.miss_m[0].hypot(pic.miss_m[1]) + 3.0 * l1.sqrt())
+        .max(pic.hard_body_radius_m * 4.0)
+        .max(1.0);
     let scale = (size / 2.0 - 10.0) / extent_m as f32;
     let c = rect.center();
     let at = |x: f64, z: f64| Pos2::new(c.x + x as f32 * scale, c.y - z as f32 * scale);
@@ -297,12 +382,29 @@ pub fn encounter_plane_ui(ui: &mut egui::Ui, pic: &EncounterPicture) {
             .map(|i| {
                 let t = f64::from(i) * std::f64::consts::TAU / 72.0;
                 let (u, v) = (k * l1.sqrt() * t.cos(), k * l2.sqrt() * t.sin());
-                at(pic.miss_m[0] + u * angle.cos() - v * angle.sin(), pic.miss_m[1] + u * angle.sin() + v * angle.cos())
+                at(
+                    pic.miss_m[0] + u * angle.cos() - v * angle.sin(),
+                    pic.miss_m[1] + u * angle.sin() + v * angle.cos(),
+                )
             })
             .collect();
         painter.add(Shape::line(pts, Stroke::new(1.5, colour)));
     }
-    painter.circle_filled(c, (pic.hard_body_radius_m as f32 * scale).max(1.0), palette::VERMILLION);
-    painter.arrow(c, at(pic.miss_m[0], pic.miss_m[1]) - c, Stroke::new(1.5, palette::CURSOR));
-    painter.text(rect.left_top() + vec2(4.0, 4.0), Align2::LEFT_TOP, format!("scale: {extent_m:.0} m to the edge"), FontId::proportional(11.0), ui.visuals().text_color());
+    painter.circle_filled(
+        c,
+        (pic.hard_body_radius_m as f32 * scale).max(1.0),
+        palette::VERMILLION,
+    );
+    painter.arrow(
+        c,
+        at(pic.miss_m[0], pic.miss_m[1]) - c,
+        Stroke::new(1.5, palette::CURSOR),
+    );
+    painter.text(
+        rect.left_top() + vec2(4.0, 4.0),
+        Align2::LEFT_TOP,
+        format!("scale: {extent_m:.0} m to the edge"),
+        FontId::proportional(11.0),
+        ui.visuals().text_color(),
+    );
 }

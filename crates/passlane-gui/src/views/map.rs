@@ -70,23 +70,33 @@ impl MapView {
         let key = (doc.revision, self.track_span_min.to_bits(), bucket);
         if self.tracks.key != Some(key) {
             // Start a little behind the cursor so the recent path stays visible.
-            let start = UtcTime::from_s_since_j2000(bucket as f64 * TRACK_BUCKET_S).add_s(-self.track_span_min * 60.0 * 0.15);
+            let start = UtcTime::from_s_since_j2000(bucket as f64 * TRACK_BUCKET_S)
+                .add_s(-self.track_span_min * 60.0 * 0.15);
             self.tracks.tracks = doc
                 .fleet
                 .iter()
                 .take(MAX_TRACKS)
-                .map(|set| geo::ground_track(set, start, self.track_span_min * 60.0 * 1.15, 30.0, &eop))
+                .map(|set| {
+                    geo::ground_track(set, start, self.track_span_min * 60.0 * 1.15, 30.0, &eop)
+                })
                 .collect();
             self.tracks.key = Some(key);
         }
         let ckey = (doc.revision, self.circle_altitude_km.to_bits());
         if self.circles.key != Some(ckey) {
-            self.circles.circles =
-                doc.scenario.stations.iter().map(|s| geo::visibility_circle(s, self.circle_altitude_km)).collect();
+            self.circles.circles = doc
+                .scenario
+                .stations
+                .iter()
+                .map(|s| geo::visibility_circle(s, self.circle_altitude_km))
+                .collect();
             self.circles.key = Some(ckey);
         }
         if self.propagators.0 != Some(doc.revision) {
-            self.propagators = (Some(doc.revision), doc.fleet.iter().map(|s| Propagator::new(s).ok()).collect());
+            self.propagators = (
+                Some(doc.revision),
+                doc.fleet.iter().map(|s| Propagator::new(s).ok()).collect(),
+            );
         }
     }
 
@@ -96,7 +106,10 @@ impl MapView {
         self.propagators
             .1
             .iter()
-            .map(|p| p.as_ref().and_then(|p| geo::sub_satellite_point(p, state.cursor, &eop)))
+            .map(|p| {
+                p.as_ref()
+                    .and_then(|p| geo::sub_satellite_point(p, state.cursor, &eop))
+            })
             .collect()
     }
 
@@ -104,13 +117,25 @@ impl MapView {
         self.prepare(state);
         let now = self.points_now(state);
         let sub_solar = geo::sub_solar_point(state.cursor, &state.doc.scenario.earth_orientation);
-        let night = if self.show_night { geo::night_bands(sub_solar, 4.0) } else { Vec::new() };
+        let night = if self.show_night {
+            geo::night_bands(sub_solar, 4.0)
+        } else {
+            Vec::new()
+        };
 
         ui.horizontal_wrapped(|ui| {
             ui.label("Track span (min)");
-            ui.add(egui::DragValue::new(&mut self.track_span_min).range(10.0..=1440.0).speed(5.0));
+            ui.add(
+                egui::DragValue::new(&mut self.track_span_min)
+                    .range(10.0..=1440.0)
+                    .speed(5.0),
+            );
             ui.label("Circle altitude (km)");
-            ui.add(egui::DragValue::new(&mut self.circle_altitude_km).range(150.0..=40_000.0).speed(10.0));
+            ui.add(
+                egui::DragValue::new(&mut self.circle_altitude_km)
+                    .range(150.0..=40_000.0)
+                    .speed(10.0),
+            );
             ui.checkbox(&mut self.show_tracks, "Ground tracks");
             ui.checkbox(&mut self.show_circles, "Visibility circles");
             ui.checkbox(&mut self.show_night, "Night side");
@@ -134,11 +159,17 @@ impl MapView {
         // Graticule every 30°.
         for k in -5..=5 {
             let lon = f64::from(k) * 30.0;
-            painter.line_segment([to_screen(lon, 90.0), to_screen(lon, -90.0)], Stroke::new(0.5, palette::GRATICULE));
+            painter.line_segment(
+                [to_screen(lon, 90.0), to_screen(lon, -90.0)],
+                Stroke::new(0.5, palette::GRATICULE),
+            );
         }
         for k in -2..=2 {
             let lat = f64::from(k) * 30.0;
-            painter.line_segment([to_screen(-180.0, lat), to_screen(180.0, lat)], Stroke::new(0.5, palette::GRATICULE));
+            painter.line_segment(
+                [to_screen(-180.0, lat), to_screen(180.0, lat)],
+                Stroke::new(0.5, palette::GRATICULE),
+            );
         }
 
         // Night side: a strip mesh between the terminator and the dark pole.
@@ -158,7 +189,10 @@ impl MapView {
 
         let coast_stroke = Stroke::new(1.0, palette::COAST);
         for line in &self.coastlines {
-            let pts: Vec<Pos2> = line.iter().map(|p| to_screen(f64::from(p[0]), f64::from(p[1]))).collect();
+            let pts: Vec<Pos2> = line
+                .iter()
+                .map(|p| to_screen(f64::from(p[0]), f64::from(p[1])))
+                .collect();
             painter.add(Shape::line(pts, coast_stroke));
         }
 
@@ -166,7 +200,12 @@ impl MapView {
             for strips in &self.circles.circles {
                 for s in strips {
                     let pts: Vec<Pos2> = s.iter().map(|p| to_screen(p[0], p[1])).collect();
-                    painter.add(Shape::dashed_line(&pts, Stroke::new(1.2, palette::STATION), 6.0, 4.0));
+                    painter.add(Shape::dashed_line(
+                        &pts,
+                        Stroke::new(1.2, palette::STATION),
+                        6.0,
+                        4.0,
+                    ));
                 }
             }
         }
@@ -182,14 +221,30 @@ impl MapView {
         let text_colour = Color32::from_gray(235);
         for st in &state.doc.scenario.stations {
             let p = to_screen(st.longitude_deg, st.latitude_deg);
-            painter.rect_filled(Rect::from_center_size(p, vec2(7.0, 7.0)), 0.0, palette::STATION);
-            painter.text(p + vec2(6.0, -6.0), Align2::LEFT_BOTTOM, &st.name, FontId::proportional(12.0), text_colour);
+            painter.rect_filled(
+                Rect::from_center_size(p, vec2(7.0, 7.0)),
+                0.0,
+                palette::STATION,
+            );
+            painter.text(
+                p + vec2(6.0, -6.0),
+                Align2::LEFT_BOTTOM,
+                &st.name,
+                FontId::proportional(12.0),
+                text_colour,
+            );
         }
         for (i, (p, set)) in now.iter().zip(&state.doc.fleet).enumerate() {
             let Some(p) = p else { continue };
             let q = to_screen(p[0], p[1]);
             painter.circle(q, 5.5, palette::series(i), Stroke::new(1.5, Color32::BLACK));
-            painter.text(q + vec2(7.0, 2.0), Align2::LEFT_TOP, &set.name, FontId::proportional(11.0), text_colour);
+            painter.text(
+                q + vec2(7.0, 2.0),
+                Align2::LEFT_TOP,
+                &set.name,
+                FontId::proportional(11.0),
+                text_colour,
+            );
         }
         // Sub-solar point: a ring, so it is not mistaken for a spacecraft.
         let sun = to_screen(sub_solar[0], sub_solar[1]);
@@ -205,7 +260,8 @@ impl MapView {
         ui.horizontal_wrapped(|ui| {
             for (i, set) in state.doc.fleet.iter().enumerate().take(20) {
                 let (r, _) = ui.allocate_exact_size(vec2(12.0, 12.0), Sense::hover());
-                ui.painter().circle_filled(r.center(), 5.0, palette::series(i));
+                ui.painter()
+                    .circle_filled(r.center(), 5.0, palette::series(i));
                 ui.label(&set.name);
             }
             ui.separator();

@@ -46,11 +46,28 @@ impl SkyView {
         self.key = Some(key);
         self.rows.clear();
         self.error = None;
-        let Some(pass) = state.passes.passes.get(i) else { return };
-        let set = state.doc.fleet.iter().find(|s| s.catalog_number == pass.catalog_number);
-        let station = state.doc.scenario.stations.iter().find(|s| s.name == pass.station);
+        let Some(pass) = state.passes.passes.get(i) else {
+            return;
+        };
+        let set = state
+            .doc
+            .fleet
+            .iter()
+            .find(|s| s.catalog_number == pass.catalog_number);
+        let station = state
+            .doc
+            .scenario
+            .stations
+            .iter()
+            .find(|s| s.name == pass.station);
         if let (Some(set), Some(station)) = (set, station) {
-            match pointing_table(set, station, pass, STEP_S, &state.doc.scenario.earth_orientation) {
+            match pointing_table(
+                set,
+                station,
+                pass,
+                STEP_S,
+                &state.doc.scenario.earth_orientation,
+            ) {
                 Ok(rows) => self.rows = rows,
                 Err(e) => self.error = Some(e.to_string()),
             }
@@ -59,14 +76,24 @@ impl SkyView {
 
     pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
         self.prepare(state);
-        egui::Panel::left("sky-pass-list").resizable(true).default_size(270.0).show(ui, |ui| {
-            self.pass_list(ui, state);
-        });
+        egui::Panel::left("sky-pass-list")
+            .resizable(true)
+            .default_size(270.0)
+            .show(ui, |ui| {
+                self.pass_list(ui, state);
+            });
         let Some(pass) = state.selected().cloned() else {
             ui.label("Select a pass in the list or on the contact timeline.");
             return;
         };
-        let Some(station) = state.doc.scenario.stations.iter().find(|s| s.name == pass.station).cloned() else {
+        let Some(station) = state
+            .doc
+            .scenario
+            .stations
+            .iter()
+            .find(|s| s.name == pass.station)
+            .cloned()
+        else {
             return;
         };
         ui.horizontal_wrapped(|ui| {
@@ -78,7 +105,11 @@ impl SkyView {
                 hm_label(pass.max_elevation_time),
                 hm_label(pass.los),
                 pass.duration_s / 60.0,
-                if pass.direction == passlane_plan::passes::PassDirection::Ascending { "northbound" } else { "southbound" },
+                if pass.direction == passlane_plan::passes::PassDirection::Ascending {
+                    "northbound"
+                } else {
+                    "southbound"
+                },
                 pass.sky.label()
             ));
         });
@@ -107,29 +138,41 @@ impl SkyView {
     fn pass_list(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
         ui.strong("Passes");
         let filter_label = ui.label("Filter");
-        ui.add(egui::TextEdit::singleline(&mut self.filter).hint_text("spacecraft or station")).labelled_by(filter_label.id);
+        ui.add(egui::TextEdit::singleline(&mut self.filter).hint_text("spacecraft or station"))
+            .labelled_by(filter_label.id);
         let needle = self.filter.to_lowercase();
-        egui::ScrollArea::vertical().auto_shrink([false, false]).show(ui, |ui| {
-            for (i, p) in state.passes.passes.iter().enumerate() {
-                if !needle.is_empty()
-                    && !p.satellite.to_lowercase().contains(&needle)
-                    && !p.station.to_lowercase().contains(&needle)
-                {
-                    continue;
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                for (i, p) in state.passes.passes.iter().enumerate() {
+                    if !needle.is_empty()
+                        && !p.satellite.to_lowercase().contains(&needle)
+                        && !p.station.to_lowercase().contains(&needle)
+                    {
+                        continue;
+                    }
+                    let text = format!(
+                        "{} · {} · {} · {:.0}°",
+                        hm_label(p.aos),
+                        p.satellite,
+                        p.station,
+                        p.max_elevation_deg
+                    );
+                    let r = ui
+                        .selectable_label(state.selected_pass == Some(i), text)
+                        .on_hover_text(format!("AOS {}", time_label(p.aos)));
+                    if r.clicked() {
+                        state.selected_pass = Some(i);
+                    }
                 }
-                let text = format!("{} · {} · {} · {:.0}°", hm_label(p.aos), p.satellite, p.station, p.max_elevation_deg);
-                let r = ui
-                    .selectable_label(state.selected_pass == Some(i), text)
-                    .on_hover_text(format!("AOS {}", time_label(p.aos)));
-                if r.clicked() {
-                    state.selected_pass = Some(i);
-                }
-            }
-        });
+            });
     }
 
     fn polar(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime) {
-        let size = ui.available_width().min(ui.available_height() - 30.0).clamp(160.0, 520.0);
+        let size = ui
+            .available_width()
+            .min(ui.available_height() - 30.0)
+            .clamp(160.0, 520.0);
         let (rect, _) = ui.allocate_exact_size(vec2(size, size), Sense::hover());
         let painter = ui.painter_at(rect);
         let c = rect.center();
@@ -158,24 +201,48 @@ impl SkyView {
         for el in [0.0, 30.0, 60.0] {
             let r = radius * ((90.0 - el) / 90.0) as f32;
             painter.circle_stroke(c, r, Stroke::new(1.0, palette::COAST));
-            painter.text(Pos2::new(c.x + 3.0, c.y - r + 2.0), Align2::LEFT_TOP, format!("{el:.0}°"), FontId::proportional(10.0), text);
+            painter.text(
+                Pos2::new(c.x + 3.0, c.y - r + 2.0),
+                Align2::LEFT_TOP,
+                format!("{el:.0}°"),
+                FontId::proportional(10.0),
+                text,
+            );
         }
         for (az, label) in [(0.0, "N"), (90.0, "E"), (180.0, "S"), (270.0, "W")] {
             painter.line_segment([c, at(az, 0.0)], Stroke::new(0.5, palette::COAST));
             let a = (az as f32).to_radians();
-            let p = Pos2::new(c.x + (radius + 10.0) * a.sin(), c.y - (radius + 10.0) * a.cos());
-            painter.text(p, Align2::CENTER_CENTER, label, FontId::proportional(13.0), text);
+            let p = Pos2::new(
+                c.x + (radius + 10.0) * a.sin(),
+                c.y - (radius + 10.0) * a.cos(),
+            );
+            painter.text(
+                p,
+                Align2::CENTER_CENTER,
+                label,
+                FontId::proportional(13.0),
+                text,
+            );
         }
         // Track, one segment at a time so its colour follows the illumination.
         for w in self.rows.windows(2) {
             let lit = illumination_at(pass, w[0].time) == Illumination::Sunlit;
-            let (colour, width) = if lit { (palette::ORANGE, 2.5) } else { (palette::BLUE, 2.5) };
+            let (colour, width) = if lit {
+                (palette::ORANGE, 2.5)
+            } else {
+                (palette::BLUE, 2.5)
+            };
             let a = at(w[0].azimuth_deg, w[0].elevation_deg);
             let b = at(w[1].azimuth_deg, w[1].elevation_deg);
             if lit {
                 painter.line_segment([a, b], Stroke::new(width, colour));
             } else {
-                painter.add(Shape::dashed_line(&[a, b], Stroke::new(width, colour), 4.0, 3.0));
+                painter.add(Shape::dashed_line(
+                    &[a, b],
+                    Stroke::new(width, colour),
+                    4.0,
+                    3.0,
+                ));
             }
         }
         // Time labels every two minutes, plus AOS and LOS.
@@ -185,15 +252,29 @@ impl SkyView {
             if dt >= next_label || k + 1 == self.rows.len() {
                 let p = at(r.azimuth_deg, r.elevation_deg);
                 painter.circle_filled(p, 2.5, text);
-                painter.text(p + vec2(5.0, 0.0), Align2::LEFT_CENTER, hm_label(r.time), FontId::proportional(10.0), text);
+                painter.text(
+                    p + vec2(5.0, 0.0),
+                    Align2::LEFT_CENTER,
+                    hm_label(r.time),
+                    FontId::proportional(10.0),
+                    text,
+                );
                 next_label = dt + 120.0;
             }
         }
         if let Some(r) = self.rows.iter().min_by(|a, b| {
-            a.time.s_since(cursor).abs().total_cmp(&b.time.s_since(cursor).abs())
+            a.time
+                .s_since(cursor)
+                .abs()
+                .total_cmp(&b.time.s_since(cursor).abs())
         }) && (pass.aos..=pass.los).contains(&cursor)
         {
-            painter.circle(at(r.azimuth_deg, r.elevation_deg), 6.0, palette::CURSOR, Stroke::new(1.5, Color32::BLACK));
+            painter.circle(
+                at(r.azimuth_deg, r.elevation_deg),
+                6.0,
+                palette::CURSOR,
+                Stroke::new(1.5, Color32::BLACK),
+            );
         }
         ui.horizontal_wrapped(|ui| {
             ui.colored_label(palette::ORANGE, "solid: sunlit");
@@ -211,19 +292,37 @@ impl SkyView {
         let cursor_line = || VLine::new("cursor", cursor_min).color(palette::CURSOR);
 
         ui.label("Elevation (deg) vs minutes after AOS");
-        Plot::new("sky-elevation").height(h).link_axis(group, [true, false]).show(ui, |p| {
-            let pts: PlotPoints = self.rows.iter().map(|r| [minutes(r.time), r.elevation_deg]).collect();
-            p.line(Line::new("elevation", pts).color(palette::ORANGE));
-            let mask: PlotPoints = self.rows.iter().map(|r| [minutes(r.time), station.horizon_deg(r.azimuth_deg)]).collect();
-            p.line(Line::new("horizon at that azimuth", mask).color(palette::COAST));
-            p.vline(cursor_line());
-        });
+        Plot::new("sky-elevation")
+            .height(h)
+            .link_axis(group, [true, false])
+            .show(ui, |p| {
+                let pts: PlotPoints = self
+                    .rows
+                    .iter()
+                    .map(|r| [minutes(r.time), r.elevation_deg])
+                    .collect();
+                p.line(Line::new("elevation", pts).color(palette::ORANGE));
+                let mask: PlotPoints = self
+                    .rows
+                    .iter()
+                    .map(|r| [minutes(r.time), station.horizon_deg(r.azimuth_deg)])
+                    .collect();
+                p.line(Line::new("horizon at that azimuth", mask).color(palette::COAST));
+                p.vline(cursor_line());
+            });
         ui.label("Range (km)");
-        Plot::new("sky-range").height(h).link_axis(group, [true, false]).show(ui, |p| {
-            let pts: PlotPoints = self.rows.iter().map(|r| [minutes(r.time), r.range_km]).collect();
-            p.line(Line::new("range", pts).color(palette::SKY_BLUE));
-            p.vline(cursor_line());
-        });
+        Plot::new("sky-range")
+            .height(h)
+            .link_axis(group, [true, false])
+            .show(ui, |p| {
+                let pts: PlotPoints = self
+                    .rows
+                    .iter()
+                    .map(|r| [minutes(r.time), r.range_km])
+                    .collect();
+                p.line(Line::new("range", pts).color(palette::SKY_BLUE));
+                p.vline(cursor_line());
+            });
         ui.label("Doppler shift (kHz) per channel");
         Plot::new("sky-doppler")
             .height(h)
@@ -234,7 +333,11 @@ impl SkyView {
                     let pts: PlotPoints = self
                         .rows
                         .iter()
-                        .filter_map(|r| r.frequencies_hz.get(k).map(|f| [minutes(r.time), (f - ch.frequency_hz) / 1e3]))
+                        .filter_map(|r| {
+                            r.frequencies_hz
+                                .get(k)
+                                .map(|f| [minutes(r.time), (f - ch.frequency_hz) / 1e3])
+                        })
                         .collect();
                     p.line(Line::new(ch.name.clone(), pts).color(palette::series(k + 2)));
                 }

@@ -22,7 +22,10 @@ pub struct TimelineView {
 
 impl Default for TimelineView {
     fn default() -> Self {
-        TimelineView { zoom: Zoom::Hours(24.0), selection_event: false }
+        TimelineView {
+            zoom: Zoom::Hours(24.0),
+            selection_event: false,
+        }
     }
 }
 
@@ -62,10 +65,22 @@ impl TimelineView {
             let n = state.passes.passes.len();
             ui.label(format!("{n} passes"));
             if !state.passes.failures.is_empty() {
-                ui.colored_label(palette::VERMILLION, format!("{} spacecraft failed to propagate", state.passes.failures.len()))
-                    .on_hover_text(
-                        state.passes.failures.iter().map(|f| format!("{}: {}", f.satellite, f.message)).collect::<Vec<_>>().join("\n"),
-                    );
+                ui.colored_label(
+                    palette::VERMILLION,
+                    format!(
+                        "{} spacecraft failed to propagate",
+                        state.passes.failures.len()
+                    ),
+                )
+                .on_hover_text(
+                    state
+                        .passes
+                        .failures
+                        .iter()
+                        .map(|f| format!("{}: {}", f.satellite, f.message))
+                        .collect::<Vec<_>>()
+                        .join("\n"),
+                );
             }
             ui.separator();
             // Legend: spacecraft colours.
@@ -76,7 +91,13 @@ impl TimelineView {
             }
         });
 
-        let stations: Vec<String> = state.doc.scenario.stations.iter().map(|s| s.name.clone()).collect();
+        let stations: Vec<String> = state
+            .doc
+            .scenario
+            .stations
+            .iter()
+            .map(|s| s.name.clone())
+            .collect();
         let rows = stations.len().max(1);
         let height = 18.0 + rows as f32 * ROW_H;
         let (rect, response) =
@@ -86,7 +107,10 @@ impl TimelineView {
 
         let (t0, t1) = self.visible(state);
         let span_s = t1.s_since(t0).max(1.0);
-        let bars = Rect::from_min_max(Pos2::new(rect.left() + LABEL_W, rect.top() + 18.0), rect.max);
+        let bars = Rect::from_min_max(
+            Pos2::new(rect.left() + LABEL_W, rect.top() + 18.0),
+            rect.max,
+        );
         let x_of = |t: UtcTime| bars.left() + (t.s_since(t0) / span_s) as f32 * bars.width();
         let t_of = |x: f32| t0.add_s(f64::from((x - bars.left()) / bars.width().max(1.0)) * span_s);
         let text_color = ui.visuals().text_color();
@@ -100,16 +124,38 @@ impl TimelineView {
         let mut tick = UtcTime::from_s_since_j2000(first);
         while tick <= t1 {
             let x = x_of(tick);
-            painter.line_segment([Pos2::new(x, rect.top() + 14.0), Pos2::new(x, rect.bottom())], Stroke::new(1.0, palette::GRATICULE));
-            let label = if hm_label(tick) == "00:00" { tick.to_iso_s()[5..10].to_string() } else { hm_label(tick) };
-            painter.text(Pos2::new(x, rect.top() + 1.0), Align2::CENTER_TOP, label, FontId::proportional(11.0), text_color);
+            painter.line_segment(
+                [Pos2::new(x, rect.top() + 14.0), Pos2::new(x, rect.bottom())],
+                Stroke::new(1.0, palette::GRATICULE),
+            );
+            let label = if hm_label(tick) == "00:00" {
+                tick.to_iso_s()[5..10].to_string()
+            } else {
+                hm_label(tick)
+            };
+            painter.text(
+                Pos2::new(x, rect.top() + 1.0),
+                Align2::CENTER_TOP,
+                label,
+                FontId::proportional(11.0),
+                text_color,
+            );
             tick = tick.add_s(step_h * 3600.0);
         }
 
         for (row, name) in stations.iter().enumerate() {
             let y = bars.top() + row as f32 * ROW_H;
-            painter.text(Pos2::new(rect.left() + 6.0, y + ROW_H / 2.0), Align2::LEFT_CENTER, name, FontId::proportional(13.0), text_color);
-            painter.line_segment([Pos2::new(rect.left(), y), Pos2::new(rect.right(), y)], Stroke::new(0.5, palette::GRATICULE));
+            painter.text(
+                Pos2::new(rect.left() + 6.0, y + ROW_H / 2.0),
+                Align2::LEFT_CENTER,
+                name,
+                FontId::proportional(13.0),
+                text_color,
+            );
+            painter.line_segment(
+                [Pos2::new(rect.left(), y), Pos2::new(rect.right(), y)],
+                Stroke::new(0.5, palette::GRATICULE),
+            );
         }
 
         // Bars; remember which one is under the pointer.
@@ -119,7 +165,9 @@ impl TimelineView {
             if p.los < t0 || p.aos > t1 {
                 continue;
             }
-            let Some(row) = stations.iter().position(|s| *s == p.station) else { continue };
+            let Some(row) = stations.iter().position(|s| *s == p.station) else {
+                continue;
+            };
             let y = bars.top() + row as f32 * ROW_H;
             let x0 = x_of(p.aos).max(bars.left());
             let x1 = x_of(p.los).min(bars.right()).max(x0 + 2.0);
@@ -127,7 +175,12 @@ impl TimelineView {
             let colour = palette::series(state.fleet_index(p.catalog_number));
             painter.rect_filled(r, 2.0, colour);
             if state.selected_pass == Some(i) {
-                painter.rect_stroke(r.expand(2.0), 3.0, Stroke::new(2.0, palette::CURSOR), StrokeKind::Outside);
+                painter.rect_stroke(
+                    r.expand(2.0),
+                    3.0,
+                    Stroke::new(2.0, palette::CURSOR),
+                    StrokeKind::Outside,
+                );
             }
             if pointer.is_some_and(|q| r.expand2(vec2(2.0, 0.0)).contains(q)) {
                 hovered = Some(i);
@@ -137,7 +190,10 @@ impl TimelineView {
         // Cursor line.
         if (t0..=t1).contains(&state.cursor) {
             let x = x_of(state.cursor);
-            painter.line_segment([Pos2::new(x, rect.top()), Pos2::new(x, rect.bottom())], Stroke::new(2.0, palette::CURSOR));
+            painter.line_segment(
+                [Pos2::new(x, rect.top()), Pos2::new(x, rect.bottom())],
+                Stroke::new(2.0, palette::CURSOR),
+            );
         }
 
         if let Some(i) = hovered
