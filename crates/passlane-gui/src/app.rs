@@ -288,13 +288,16 @@ impl PasslaneApp {
             if ui.button(play_label).clicked() {
                 self.playing = !self.playing;
             }
+            let speed_label = ui.label("Speed");
             egui::ComboBox::from_id_salt("play-speed")
                 .selected_text(format!("{}×", self.play_speed))
                 .show_ui(ui, |ui| {
                     for s in [1.0, 10.0, 60.0, 300.0, 1800.0] {
                         ui.selectable_value(&mut self.play_speed, s, format!("{s}×"));
                     }
-                });
+                })
+                .response
+                .labelled_by(speed_label.id);
             let mut hours = self.state.cursor.s_since(start) / 3600.0;
             let width = (ui.available_width() - 240.0).max(120.0);
             ui.spacing_mut().slider_width = width;

@@ -24,8 +24,9 @@ fn app() -> PasslaneApp {
 fn harness(app: PasslaneApp) -> Harness<'static, PasslaneApp> {
     Harness::builder()
         .with_size([1400.0, 900.0])
-        // The painted map, timeline and sky plot have no accessible roles yet; see the report.
-        .with_accessibility_check(false)
+        // On: every interactive widget must carry an accessible name (a label tied to it with
+        // `labelled_by`), which is also what lets these tests find widgets by label.
+        .with_accessibility_check(true)
         .build_ui_state(|ui, app: &mut PasslaneApp| app.ui(ui), app)
 }
 

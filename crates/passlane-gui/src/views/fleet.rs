@@ -201,36 +201,40 @@ fn station_editor(ui: &mut egui::Ui, st: &mut Station, remove: &mut bool) -> boo
                 .labelled_by(l.id)
                 .changed();
             ui.end_row();
-            ui.label("Latitude (deg)");
+            let l = ui.label("Latitude (deg)");
             changed |= ui
                 .add(
                     egui::DragValue::new(&mut st.latitude_deg)
                         .range(-90.0..=90.0)
                         .speed(0.01),
                 )
+                .labelled_by(l.id)
                 .changed();
             ui.end_row();
-            ui.label("Longitude (deg)");
+            let l = ui.label("Longitude (deg)");
             changed |= ui
                 .add(
                     egui::DragValue::new(&mut st.longitude_deg)
                         .range(-180.0..=180.0)
                         .speed(0.01),
                 )
+                .labelled_by(l.id)
                 .changed();
             ui.end_row();
-            ui.label("Height (m)");
+            let l = ui.label("Height (m)");
             changed |= ui
                 .add(egui::DragValue::new(&mut st.height_m).range(-500.0..=9000.0))
+                .labelled_by(l.id)
                 .changed();
             ui.end_row();
-            ui.label("Minimum elevation (deg)");
+            let l = ui.label("Minimum elevation (deg)");
             changed |= ui
                 .add(
                     egui::DragValue::new(&mut st.min_elevation_deg)
                         .range(-5.0..=89.0)
                         .speed(0.1),
                 )
+                .labelled_by(l.id)
                 .changed();
             ui.end_row();
         });
@@ -240,17 +244,19 @@ fn station_editor(ui: &mut egui::Ui, st: &mut Station, remove: &mut bool) -> boo
             let mut drop = None;
             for (i, p) in st.horizon_mask.iter_mut().enumerate() {
                 ui.horizontal(|ui| {
-                    ui.label("az");
+                    let l = ui.label("az");
                     changed |= ui
                         .add(egui::DragValue::new(&mut p.azimuth_deg).range(0.0..=359.9))
+                        .labelled_by(l.id)
                         .changed();
-                    ui.label("el");
+                    let l = ui.label("el");
                     changed |= ui
                         .add(
                             egui::DragValue::new(&mut p.elevation_deg)
                                 .range(-5.0..=90.0)
                                 .speed(0.1),
                         )
+                        .labelled_by(l.id)
                         .changed();
                     if ui.small_button("Remove").clicked() {
                         drop = Some(i);
@@ -342,22 +348,24 @@ fn station_editor(ui: &mut egui::Ui, st: &mut Station, remove: &mut bool) -> boo
                             .changed();
                     });
                     ui.end_row();
-                    ui.label("Max azimuth rate (deg/s)");
+                    let l = ui.label("Max azimuth rate (deg/s)");
                     changed |= ui
                         .add(
                             egui::DragValue::new(&mut m.max_azimuth_rate_deg_s)
                                 .range(0.01..=90.0)
                                 .speed(0.1),
                         )
+                        .labelled_by(l.id)
                         .changed();
                     ui.end_row();
-                    ui.label("Max elevation rate (deg/s)");
+                    let l = ui.label("Max elevation rate (deg/s)");
                     changed |= ui
                         .add(
                             egui::DragValue::new(&mut m.max_elevation_rate_deg_s)
                                 .range(0.01..=90.0)
                                 .speed(0.1),
                         )
+                        .labelled_by(l.id)
                         .changed();
                     ui.end_row();
                 });

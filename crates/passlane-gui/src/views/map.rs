@@ -124,18 +124,20 @@ impl MapView {
         };
 
         ui.horizontal_wrapped(|ui| {
-            ui.label("Track span (min)");
+            let l = ui.label("Track span (min)");
             ui.add(
                 egui::DragValue::new(&mut self.track_span_min)
                     .range(10.0..=1440.0)
                     .speed(5.0),
-            );
-            ui.label("Circle altitude (km)");
+            )
+            .labelled_by(l.id);
+            let l = ui.label("Circle altitude (km)");
             ui.add(
                 egui::DragValue::new(&mut self.circle_altitude_km)
                     .range(150.0..=40_000.0)
                     .speed(10.0),
-            );
+            )
+            .labelled_by(l.id);
             ui.checkbox(&mut self.show_tracks, "Ground tracks");
             ui.checkbox(&mut self.show_circles, "Visibility circles");
             ui.checkbox(&mut self.show_night, "Night side");
