@@ -111,6 +111,11 @@ impl PasslaneApp {
         self.pass_job.is_some()
     }
 
+    /// The close-approach view (tests read its finished screening).
+    pub fn approaches(&self) -> &ApproachesView {
+        &self.approaches
+    }
+
     /// Whether the shown passes belong to the current document revision.
     pub fn passes_current(&self) -> bool {
         self.state.passes_revision == Some(self.state.doc.revision)

@@ -12,7 +12,17 @@ use passlane_plan::scenario::Window;
 pub const DEMO_SCENARIO_JSON: &str = include_str!("../../../scenarios/demo.json");
 /// The demo fleet the demo scenario names.
 pub const DEMO_FLEET_TLE: &str = include_str!("../../../scenarios/demo-fleet.tle");
-const DEMO_FLEET_NAME: &str = "demo-fleet.tle";
+/// The catalog objects the demo scenario screens against.
+pub const DEMO_DEBRIS_TLE: &str = include_str!("../../../scenarios/demo-debris.tle");
+
+/// The embedded copy of an element file the bundled demo names, if any.
+fn embedded_demo_file(name: &str) -> Option<&'static str> {
+    match name {
+        "demo-fleet.tle" => Some(DEMO_FLEET_TLE),
+        "demo-debris.tle" => Some(DEMO_DEBRIS_TLE),
+        _ => None,
+    }
+}
 
 /// Element files larger than this are refused rather than read into memory.
 const MAX_ELEMENT_FILE_BYTES: u64 = 256 * 1024 * 1024;
@@ -150,8 +160,10 @@ impl Document {
             };
             let bytes = match passlane_files::read_limited(&resolved, MAX_ELEMENT_FILE_BYTES) {
                 Ok(b) => Some(b),
-                // The bundled demo names its fleet file; use the embedded copy when it is not on disk.
-                Err(_) if name == DEMO_FLEET_NAME => Some(DEMO_FLEET_TLE.as_bytes().to_vec()),
+                // The bundled demo names its element files; use the embedded copies when they are not on disk.
+                Err(_) if embedded_demo_file(name).is_some() => {
+                    embedded_demo_file(name).map(|t| t.as_bytes().to_vec())
+                }
                 Err(e) => {
                     self.files.push(LoadedFile {
                         name: name.clone(),

@@ -8,6 +8,10 @@ use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, SnapshotOptions};
 use passlane_gui::{AppOptions, Document, PasslaneApp, Tab};
+use passlane_plan::conjunction::{AssumedCovariance, assess};
+use passlane_plan::screen::{
+    ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
+};
 use passlane_plan::{Silent, find_passes};
 
 fn app() -> PasslaneApp {
@@ -103,6 +107,114 @@ fn select_a_pass_then_open_close_approaches_and_move_the_cursor() {
     h.get_by_label("Pause").click();
     h.run_steps(1);
     assert!(!h.state().playing);
+}
+
+/// Steps until `done` holds, failing after two minutes.
+fn wait_until(
+    h: &mut Harness<'static, PasslaneApp>,
+    what: &str,
+    done: impl Fn(&PasslaneApp) -> bool,
+) {
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while !done(h.state()) {
+        assert!(Instant::now() < deadline, "{what} did not finish");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    h.run_steps(2);
+}
+
+#[test]
+fn screening_and_pc_match_the_library_calls_of_the_command_line() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    h.get_by_label("Close approaches").click();
+    h.run_steps(2);
+    h.get_by_label("Run screening").click();
+    h.run_steps(1);
+    wait_until(&mut h, "screening", |a| {
+        !a.approaches().running() && a.approaches().outcome().is_some()
+    });
+    let app = h.state();
+    let Some(outcome) = app.approaches().outcome() else {
+        unreachable!("waited for it")
+    };
+    let doc = &app.state.doc;
+    let (start, end) = doc.window();
+    let scenario = &doc.scenario;
+
+    // What `passlane screen --scenario` does, spelled out with the library calls.
+    let request = ScreeningRequest {
+        primaries: &doc.fleet,
+        secondaries: Some(&doc.catalog),
+        start,
+        end,
+        settings: ScreeningSettings {
+            volume: ScreeningVolume::Sphere {
+                radius_km: scenario.screening.threshold_km,
+            },
+            ..ScreeningSettings::default()
+        },
+    };
+    let mut direct = screen_with_progress(&request, &|_| true);
+    let own = screen_with_progress(
+        &ScreeningRequest {
+            secondaries: None,
+            ..request
+        },
+        &|_| true,
+    );
+    direct.events.extend(own.events);
+    direct
+        .events
+        .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
+    assert!(!direct.events.is_empty(), "the demo has close approaches");
+    assert_eq!(outcome.result.events, direct.events);
+
+    let covariance = AssumedCovariance {
+        sigma_at_epoch_m: scenario.screening.assumed_sigma_at_epoch_m,
+        growth_m_per_day: scenario.screening.assumed_sigma_growth_m_per_day,
+    };
+    assert_eq!(outcome.covariance_label, covariance.label());
+    let hbr = |n: u32| {
+        scenario
+            .satellites
+            .iter()
+            .find(|s| s.catalog_number == n)
+            .and_then(|s| s.hard_body_radius_m)
+            .unwrap_or(scenario.screening.default_hard_body_radius_m)
+    };
+    let set = |n: u32| {
+        doc.fleet
+            .iter()
+            .chain(&doc.catalog)
+            .find(|s| s.catalog_number == n)
+    };
+    assert_eq!(outcome.risks.len(), direct.events.len());
+    for (e, got) in direct.events.iter().zip(&outcome.risks) {
+        let (Some(p), Some(s)) = (
+            set(e.primary_catalog_number),
+            set(e.secondary_catalog_number),
+        ) else {
+            panic!("element sets of {} / {} not loaded", e.primary, e.secondary);
+        };
+        let want = assess(
+            e,
+            p,
+            s,
+            &covariance,
+            hbr(e.primary_catalog_number) + hbr(e.secondary_catalog_number),
+        );
+        let want = want.map_err(|err| err.to_string());
+        assert_eq!(got, &want, "{} / {} at {}", e.primary, e.secondary, e.tca);
+    }
+
+    // Selecting the first event shows its encounter plane.
+    h.get_by_label(&passlane_gui::state::time_label(direct.events[0].tca))
+        .click();
+    h.run_steps(2);
+    assert!(h.query_by_label_contains("Encounter plane: Pc").is_some());
+    h.snapshot_options("close_approaches_selected", &snapshot_options());
 }
 
 #[test]
