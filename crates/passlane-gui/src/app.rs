@@ -14,7 +14,7 @@ use crate::doc::Document;
 use crate::jobs::{Job, Poll, progress_ui};
 use crate::state::{AppState, time_label};
 use crate::views::{
-    approaches::ApproachesView, fleet::FleetView, map::MapView, sky::SkyView,
+    approaches::ApproachesView, fleet::FleetView, map::MapView, plan::PlanView, sky::SkyView,
     timeline::TimelineView,
 };
 
@@ -24,6 +24,7 @@ pub enum Tab {
     Map,
     Sky,
     Approaches,
+    Plan,
     Fleet,
 }
 
@@ -65,6 +66,7 @@ pub struct PasslaneApp {
     timeline: TimelineView,
     sky: SkyView,
     approaches: ApproachesView,
+    plan: PlanView,
     fleet: FleetView,
     pass_job: Option<Job<PassReport>>,
     typed_path: String,
@@ -93,6 +95,7 @@ impl PasslaneApp {
             timeline: TimelineView::default(),
             sky: SkyView::default(),
             approaches: ApproachesView::default(),
+            plan: PlanView::default(),
             fleet: FleetView::default(),
             pass_job: None,
             typed_path: String::new(),
@@ -114,6 +117,11 @@ impl PasslaneApp {
     /// The close-approach view (tests read its finished screening).
     pub fn approaches(&self) -> &ApproachesView {
         &self.approaches
+    }
+
+    /// The plan view (tests read its plan and drive its export).
+    pub fn plan_view(&mut self) -> &mut PlanView {
+        &mut self.plan
     }
 
     /// Whether the shown passes belong to the current document revision.
@@ -187,6 +195,7 @@ impl PasslaneApp {
                 ui.selectable_value(&mut self.tab, Tab::Map, "Map");
                 ui.selectable_value(&mut self.tab, Tab::Sky, "Sky view");
                 ui.selectable_value(&mut self.tab, Tab::Approaches, "Close approaches");
+                ui.selectable_value(&mut self.tab, Tab::Plan, "Plan");
                 ui.selectable_value(&mut self.tab, Tab::Fleet, "Fleet and stations");
             });
             ui.separator();
@@ -194,6 +203,7 @@ impl PasslaneApp {
                 Tab::Map => self.map.ui(ui, &mut self.state),
                 Tab::Sky => self.sky.ui(ui, &mut self.state),
                 Tab::Approaches => self.approaches.ui(ui, &mut self.state),
+                Tab::Plan => self.plan.ui(ui, &mut self.state),
                 Tab::Fleet => self.fleet.ui(ui, &mut self.state),
             }
         });

@@ -9,6 +9,8 @@ use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, SnapshotOptions};
 use passlane_gui::{AppOptions, Document, PasslaneApp, Tab};
 use passlane_plan::conjunction::{AssumedCovariance, assess};
+use passlane_plan::passes::PassOptions;
+use passlane_plan::schedule::plan_scenario;
 use passlane_plan::screen::{
     ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
 };
@@ -218,6 +220,100 @@ fn screening_and_pc_match_the_library_calls_of_the_command_line() {
 }
 
 #[test]
+fn plan_matches_the_library_chain_and_exports_the_command_line_files() {
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    h.get_by_label("Plan").click();
+    h.run_steps(2);
+    assert_eq!(h.state().tab, Tab::Plan);
+    h.get_by_label("Make plan").click();
+    h.run_steps(1);
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while h.state_mut().plan_view().plan().is_none() || h.state_mut().plan_view().running() {
+        assert!(Instant::now() < deadline, "planning did not finish");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    h.run_steps(2);
+    let got = h.state_mut().plan_view().plan().cloned();
+    let Some(Ok(got)) = got else {
+        panic!("the demo should plan: {got:?}")
+    };
+
+    // The command line's chain, spelled out.
+    let doc = &h.state().state.doc;
+    let (start, end) = doc.window();
+    let eop = doc.scenario.earth_orientation;
+    let options = PassOptions {
+        earth_orientation: eop,
+        min_elevation_deg: None,
+        start,
+        end,
+    };
+    let report = find_passes(&doc.fleet, &doc.scenario.stations, &options, &Silent);
+    let direct = plan_scenario(
+        &doc.scenario,
+        &doc.fleet,
+        &report.passes,
+        start,
+        end,
+        &eop,
+        &Silent,
+    );
+    let direct = direct.expect("the demo plans");
+    assert!(!direct.contacts.is_empty());
+    assert_eq!(got, direct);
+    assert!(
+        h.query_by_label_contains("Transmitting needs a licence")
+            .is_some()
+    );
+    assert!(h.query_by_label("Demand met per spacecraft").is_some());
+    let first_conflict = direct.conflicts.first().map(|c| c.describe());
+    if let Some(line) = first_conflict {
+        assert!(h.query_by_label(&line).is_some(), "conflict listed: {line}");
+    }
+    h.snapshot_options("plan", &snapshot_options());
+
+    // Export into a fresh folder through the typed-path route (no file dialog in tests).
+    let dir = std::env::temp_dir().join(format!("passlane-gui-export-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    h.state_mut().plan_view().set_export_dir(&dir);
+    h.run_steps(1);
+    h.get_by_label("Export to folder").click();
+    h.run_steps(1);
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while h.state_mut().plan_view().running() {
+        assert!(Instant::now() < deadline, "export did not finish");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    let status = h.state_mut().plan_view().export_status().to_string();
+    assert!(status.starts_with("Wrote "), "{status}");
+    for f in ["plan.csv", "plan.json", "plan.ics"] {
+        assert!(dir.join(f).is_file(), "{f} written");
+    }
+    let mut csv = Vec::new();
+    passlane_plan::export::write_plan_csv(&mut csv, &direct).expect("CSV into memory");
+    assert_eq!(
+        std::fs::read(dir.join("plan.csv")).expect("read plan.csv"),
+        csv
+    );
+    let pointing = std::fs::read_dir(dir.join("pointing"))
+        .map(|d| d.count())
+        .unwrap_or(0);
+    assert_eq!(
+        pointing,
+        direct.contacts.len(),
+        "one pointing table per kept contact"
+    );
+    let oem = std::fs::read_dir(dir.join("oem"))
+        .map(|d| d.count())
+        .unwrap_or(0);
+    assert_eq!(oem, direct.demand.len(), "one OEM per spacecraft");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
 fn map_view_snapshot() {
     let mut h = harness(app());
     wait_for_passes(&mut h);
@@ -278,6 +374,7 @@ fn every_non_ascii_character_in_the_ui_sources_has_a_glyph() {
         include_str!("../src/views/approaches.rs"),
         include_str!("../src/views/fleet.rs"),
         include_str!("../src/views/map.rs"),
+        include_str!("../src/views/plan.rs"),
         include_str!("../src/views/sky.rs"),
         include_str!("../src/views/timeline.rs"),
     ];

@@ -5,5 +5,6 @@
 pub mod approaches;
 pub mod fleet;
 pub mod map;
+pub mod plan;
 pub mod sky;
 pub mod timeline;
