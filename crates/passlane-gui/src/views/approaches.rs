@@ -288,10 +288,12 @@ impl ApproachesView {
             });
         }
         ui.add_space(4.0);
-        egui::ScrollArea::vertical()
-            .id_salt("approach-scroll")
-            .max_height(ui.available_height() * 0.42)
-            .show(ui, |ui| self.table(ui));
+        if !self.rows.is_empty() {
+            egui::ScrollArea::vertical()
+                .id_salt("approach-scroll")
+                .max_height(ui.available_height() * 0.42)
+                .show(ui, |ui| self.table(ui));
+        }
         if self.selected != before {
             self.compute_range(state);
         }

@@ -286,15 +286,22 @@ impl SkyView {
     fn series(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime) {
         let t0 = pass.aos;
         let minutes = |t: UtcTime| t.s_since(t0) / 60.0;
-        let h = ((ui.available_height() - 60.0) / 3.0).max(90.0);
+        // Three titles, the caution line and the spacing between them take about 120 px.
+        let h = ((ui.available_height() - 120.0) / 3.0).max(90.0);
         let group = egui::Id::unique("sky-series-x");
         let cursor_min = minutes(cursor);
+        // The cursor is marked only while it is inside the pass: a line far outside
+        // would stretch the time axis and squeeze the pass into a corner.
+        let cursor_in_pass = (pass.aos..=pass.los).contains(&cursor);
         let cursor_line = || VLine::new("cursor", cursor_min).color(palette::CURSOR);
 
         ui.label("Elevation (deg) vs minutes after AOS");
         Plot::new("sky-elevation")
             .height(h)
+            // One y-axis width for all three keeps their time axes lined up.
+            .y_axis_min_width(44.0)
             .link_axis(group, [true, false])
+            .legend(Legend::default())
             .show(ui, |p| {
                 let pts: PlotPoints = self
                     .rows
@@ -308,11 +315,15 @@ impl SkyView {
                     .map(|r| [minutes(r.time), station.horizon_deg(r.azimuth_deg)])
                     .collect();
                 p.line(Line::new("horizon at that azimuth", mask).color(palette::COAST));
-                p.vline(cursor_line());
+                if cursor_in_pass {
+                    p.vline(cursor_line());
+                }
             });
         ui.label("Range (km)");
         Plot::new("sky-range")
             .height(h)
+            // One y-axis width for all three keeps their time axes lined up.
+            .y_axis_min_width(44.0)
             .link_axis(group, [true, false])
             .show(ui, |p| {
                 let pts: PlotPoints = self
@@ -321,11 +332,15 @@ impl SkyView {
                     .map(|r| [minutes(r.time), r.range_km])
                     .collect();
                 p.line(Line::new("range", pts).color(palette::SKY_BLUE));
-                p.vline(cursor_line());
+                if cursor_in_pass {
+                    p.vline(cursor_line());
+                }
             });
         ui.label("Doppler shift (kHz) per channel");
         Plot::new("sky-doppler")
             .height(h)
+            // One y-axis width for all three keeps their time axes lined up.
+            .y_axis_min_width(44.0)
             .link_axis(group, [true, false])
             .legend(Legend::default())
             .show(ui, |p| {
@@ -341,7 +356,9 @@ impl SkyView {
                         .collect();
                     p.line(Line::new(ch.name.clone(), pts).color(palette::series(k + 2)));
                 }
-                p.vline(cursor_line());
+                if cursor_in_pass {
+                    p.vline(cursor_line());
+                }
             });
         ui.colored_label(
             palette::YELLOW,
