@@ -5,6 +5,7 @@
 mod cli;
 
 use std::io::Write;
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 const HELP: &str = "\
@@ -12,6 +13,9 @@ Passlane: plan contacts and check close approaches for a small-satellite fleet.
 
 usage:
   passlane                       open the desktop window on the demo scenario
+  passlane open FILE             open the desktop window on a scenario file
+  passlane --scenario FILE       the same
+  passlane [...] --frame-stats   log the window's frame times to standard error
   passlane elements FILE...      what loaded from element files (TLE, OMM KVN/XML/JSON)
   passlane ephemeris ...         states on a time grid (TEME, Earth-fixed or geodetic)
   passlane passes ...            contact windows of each spacecraft over each station
@@ -30,6 +34,15 @@ and follows local rules.
 
 fn main() -> ExitCode {
     let argv: Vec<String> = std::env::args().skip(1).collect();
+    if let Some(window) = window_request(&argv) {
+        return match window {
+            Ok(options) => open_window(options),
+            Err(message) => {
+                eprintln!("passlane: {message}\n\n{HELP}");
+                ExitCode::from(2)
+            }
+        };
+    }
     let Some(command) = argv.first() else {
         println!("{HELP}");
         return ExitCode::SUCCESS;
@@ -109,6 +122,67 @@ fn main() -> ExitCode {
         Err(e) => {
             eprintln!("passlane {command}: error: {e:#}");
             eprintln!("usage: {usage}");
+            ExitCode::FAILURE
+        }
+    }
+}
+
+/// Whether the arguments ask for the window (no subcommand, `open FILE`,
+/// `--scenario FILE`, `--frame-stats`), and with which options. `None` means
+/// command-line mode.
+fn window_request(argv: &[String]) -> Option<Result<passlane_gui::RunOptions, String>> {
+    let mut rest = argv;
+    let mut options = passlane_gui::RunOptions::default();
+    if rest.first().map(String::as_str) == Some("open") {
+        let Some(file) = rest.get(1) else {
+            return Some(Err("open: give a scenario file".into()));
+        };
+        options.scenario = Some(PathBuf::from(file));
+        rest = &rest[2..];
+    } else if rest
+        .first()
+        .is_some_and(|a| !a.starts_with("--") || a == "--help")
+    {
+        // A subcommand (or help): command-line mode.
+        return None;
+    }
+    let mut i = 0;
+    while i < rest.len() {
+        match rest[i].as_str() {
+            "--frame-stats" => options.frame_stats = true,
+            "--scenario" if options.scenario.is_none() => match rest.get(i + 1) {
+                Some(file) => {
+                    options.scenario = Some(PathBuf::from(file));
+                    i += 1;
+                }
+                None => return Some(Err("--scenario: give a scenario file".into())),
+            },
+            other => return Some(Err(format!("unexpected argument {other:?} for the window"))),
+        }
+        i += 1;
+    }
+    Some(Ok(options))
+}
+
+/// Opens the desktop window; without a display, says so and points at the
+/// command-line mode instead of failing somewhere inside the windowing stack.
+fn open_window(options: passlane_gui::RunOptions) -> ExitCode {
+    const NO_WINDOW: &str =
+        "Run `passlane --help` for the command-line mode, which needs no display.";
+    // The window is built for X11 only (see the GUI crate's manifest); without
+    // a display server address there is nothing to connect to.
+    if cfg!(all(unix, not(target_os = "macos")))
+        && std::env::var_os("DISPLAY").is_none_or(|d| d.is_empty())
+    {
+        eprintln!(
+            "passlane: cannot open the window: no display (DISPLAY is not set).\n{NO_WINDOW}"
+        );
+        return ExitCode::FAILURE;
+    }
+    match passlane_gui::run(options) {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(e) => {
+            eprintln!("passlane: {e:#}\n{NO_WINDOW}");
             ExitCode::FAILURE
         }
     }

@@ -470,3 +470,39 @@ fn plan_writes_every_hand_off_file() {
     assert_eq!(std::fs::read_dir(dir.join("oem")).unwrap().count(), 6);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn window_without_a_display_fails_cleanly_and_help_still_prints() {
+    for args in [
+        &[][..],
+        &["open", "scenarios/demo.json"][..],
+        &["--scenario", "scenarios/demo.json", "--frame-stats"][..],
+    ] {
+        let out = Command::new(env!("CARGO_BIN_EXE_passlane"))
+            .args(args)
+            .current_dir(repo())
+            .env_remove("DISPLAY")
+            .env_remove("WAYLAND_DISPLAY")
+            .output()
+            .expect("run passlane");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(
+            !out.status.success(),
+            "{args:?}: should fail without a display"
+        );
+        assert!(
+            err.contains("no display") && err.contains("command-line mode"),
+            "{args:?}: {err}"
+        );
+        assert!(!err.contains("panicked"), "{args:?}: {err}");
+    }
+    let out = passlane(&["--help"]);
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("passlane open FILE"));
+    let out = passlane(&["--frames-stats"]);
+    assert_eq!(
+        out.status.code(),
+        Some(2),
+        "a misspelt window option is a usage error"
+    );
+}
