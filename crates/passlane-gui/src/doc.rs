@@ -100,6 +100,9 @@ impl Document {
 
     /// Reads a scenario file and the element files it names (relative to it).
     pub fn open(path: &Path) -> anyhow::Result<Self> {
+        // A save interrupted by a crash or power loss may have left its
+        // temporary beside the file; the file itself is intact (atomic rename).
+        passlane_files::remove_stale_temporaries(path);
         let bytes = passlane_files::read_limited(path, MAX_SCENARIO_BYTES)
             .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
         let text = String::from_utf8_lossy(&bytes);
@@ -115,6 +118,7 @@ impl Document {
 
     /// Writes the scenario atomically (a crash never leaves a half-written file).
     pub fn save_to(&mut self, path: &Path) -> anyhow::Result<()> {
+        passlane_files::remove_stale_temporaries(path);
         passlane_files::write_atomic(path, self.scenario.to_json().as_bytes())
             .map_err(|e| anyhow::anyhow!("could not save {}: {e}", path.display()))?;
         self.path = Some(path.to_path_buf());
