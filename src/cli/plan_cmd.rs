@@ -4,10 +4,10 @@
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use anyhow::{Context, Result, bail};
+use anyhow::{Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::export;
-use passlane_plan::passes::{PassOptions, Silent, find_passes, pointing_table_between};
+use passlane_plan::passes::{PassOptions, Silent, find_passes};
 use passlane_plan::schedule::{Method, Plan, plan_scenario};
 
 use super::args::RawArgs;
@@ -15,14 +15,6 @@ use super::common::{self, Format};
 
 pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO] [--out DIR] [--format table|json] \
 [--pointing-step-s S]";
-
-/// Writes a file through the crash-safe writer, naming it in the error.
-fn write_file(path: &Path, fill: impl FnOnce(&mut dyn Write) -> std::io::Result<()>) -> Result<()> {
-    // Temporaries of an earlier, interrupted run would otherwise pile up.
-    passlane_files::remove_stale_temporaries(path);
-    passlane_files::write_atomic_with(path, fill)
-        .with_context(|| format!("cannot write {}", path.display()))
-}
 
 pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let args = RawArgs::parse(
@@ -110,83 +102,21 @@ fn write_outputs(
     created: UtcTime,
     pointing_step_s: f64,
 ) -> Result<Written> {
-    std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
-    let mut files = 0;
-    write_file(&dir.join("plan.csv"), |w| export::write_plan_csv(w, plan))?;
-    write_file(&dir.join("plan.json"), |w| export::write_plan_json(w, plan))?;
-    let name = if scenario.name.is_empty() {
-        "Passlane plan"
-    } else {
-        scenario.name.as_str()
-    };
-    write_file(&dir.join("plan.ics"), |w| {
-        export::write_icalendar(w, plan, created, name)
-    })?;
-    files += 3;
-    let pointing_dir = dir.join("pointing");
-    std::fs::create_dir_all(&pointing_dir)
-        .with_context(|| format!("cannot create {}", pointing_dir.display()))?;
-    for c in &plan.contacts {
-        let (Some(set), Some(station)) = (
-            sets.iter().find(|s| s.catalog_number == c.catalog_number),
-            scenario.stations.iter().find(|s| s.name == c.station),
-        ) else {
-            continue;
-        };
-        let rows = match pointing_table_between(
-            set,
-            station,
-            c.aos,
-            c.los,
-            pointing_step_s,
-            &scenario.earth_orientation,
-        ) {
-            Ok(r) => r,
-            Err(e) => {
-                eprintln!(
-                    "warning: no pointing table for {} at {}: {e}",
-                    c.spacecraft, c.aos
-                );
-                continue;
-            }
-        };
-        write_file(&pointing_dir.join(export::pointing_file_name(c)), |w| {
-            export::write_pointing_csv(w, station, &rows)
-        })?;
-        files += 1;
-    }
-    let oem_dir = dir.join("oem");
-    std::fs::create_dir_all(&oem_dir)
-        .with_context(|| format!("cannot create {}", oem_dir.display()))?;
-    let originator = if scenario.operator.is_empty() {
-        "PASSLANE"
-    } else {
-        scenario.operator.as_str()
-    };
-    for d in &plan.demand {
-        let Some(set) = sets.iter().find(|s| s.catalog_number == d.catalog_number) else {
-            continue;
-        };
-        let states = match export::oem_states(set, plan.start, plan.end, export::oem_step_s(set)) {
-            Ok(s) => s,
-            Err(e) => {
-                eprintln!("warning: no OEM for {}: {e}", set.name);
-                continue;
-            }
-        };
-        let file = oem_dir.join(format!(
-            "{}_{}.oem",
-            set.catalog_number,
-            export::oem::slug_name(&set.name)
-        ));
-        write_file(&file, |w| {
-            export::write_oem(w, set, &states, created, originator)
-        })?;
-        files += 1;
+    let summary = passlane_files::plan_folder::write_plan_folder(
+        dir,
+        plan,
+        sets,
+        scenario,
+        created,
+        pointing_step_s,
+    )
+    .map_err(|e| anyhow::anyhow!(e))?;
+    for w in &summary.warnings {
+        eprintln!("warning: {w}");
     }
     Ok(Written {
-        dir: dir.to_path_buf(),
-        files,
+        dir: summary.dir,
+        files: summary.files,
     })
 }
 

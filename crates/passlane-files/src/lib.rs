@@ -6,6 +6,9 @@
 //! - [`read_limited`]: reads a file with a size cap, so a wrong path to a huge
 //!   file gives a clear error instead of exhausting memory.
 //! - [`remove_stale_temporaries`]: clears temporaries left by an interrupted save.
+//! - [`plan_folder::write_plan_folder`]: the network plan's hand-off folder.
+
+pub mod plan_folder;
 
 use std::fs;
 use std::io::{self, Read, Write};

@@ -13,8 +13,8 @@ use std::sync::mpsc::{Receiver, channel};
 
 use eframe::egui::{self, Align2, FontId, Pos2, Rect, Sense, Stroke, vec2};
 use passlane_orbit::{ElementSet, UtcTime};
-use passlane_plan::export;
-use passlane_plan::passes::{PassOptions, find_passes, pointing_table_between};
+
+use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::schedule::{Method, Plan, plan_scenario};
 use passlane_plan::{Progress, Scenario};
 
@@ -59,30 +59,10 @@ pub fn plan_document(
 }
 
 /// What an export wrote.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ExportSummary {
-    pub dir: PathBuf,
-    pub files: usize,
-    pub warnings: Vec<String>,
-}
+pub type ExportSummary = passlane_files::plan_folder::FolderSummary;
 
-fn write_file(
-    path: &Path,
-    fill: impl FnOnce(&mut dyn std::io::Write) -> std::io::Result<()>,
-) -> Result<(), String> {
-    passlane_files::write_atomic_with(path, fill)
-        .map_err(|e| format!("cannot write {}: {e}", path.display()))
-}
-
-fn create_dir(dir: &Path) -> Result<(), String> {
-    std::fs::create_dir_all(dir).map_err(|e| format!("cannot create {}: {e}", dir.display()))
-}
-
-/// Writes the plan's hand-off files into `dir`, as `passlane plan --out DIR`
-/// does: `plan.csv`, `plan.json`, `plan.ics`, `pointing/*.csv` (one per kept
-/// contact) and `oem/*.oem` (one per spacecraft). Every file is written
-/// atomically; a contact or spacecraft whose table cannot be made is skipped
-/// with a warning.
+/// Writes the plan's hand-off files into `dir`, exactly as
+/// `passlane plan --out DIR` does (the same library function).
 pub fn export_plan(
     dir: &Path,
     plan: &Plan,
@@ -90,79 +70,14 @@ pub fn export_plan(
     scenario: &Scenario,
     created: UtcTime,
 ) -> Result<ExportSummary, String> {
-    create_dir(dir)?;
-    let mut warnings = Vec::new();
-    write_file(&dir.join("plan.csv"), |w| export::write_plan_csv(w, plan))?;
-    write_file(&dir.join("plan.json"), |w| export::write_plan_json(w, plan))?;
-    let name = if scenario.name.is_empty() {
-        "Passlane plan"
-    } else {
-        scenario.name.as_str()
-    };
-    write_file(&dir.join("plan.ics"), |w| {
-        export::write_icalendar(w, plan, created, name)
-    })?;
-    let mut files = 3;
-    let pointing_dir = dir.join("pointing");
-    create_dir(&pointing_dir)?;
-    for c in &plan.contacts {
-        let (Some(set), Some(station)) = (
-            fleet.iter().find(|s| s.catalog_number == c.catalog_number),
-            scenario.stations.iter().find(|s| s.name == c.station),
-        ) else {
-            continue;
-        };
-        match pointing_table_between(
-            set,
-            station,
-            c.aos,
-            c.los,
-            POINTING_STEP_S,
-            &scenario.earth_orientation,
-        ) {
-            Ok(rows) => {
-                write_file(&pointing_dir.join(export::pointing_file_name(c)), |w| {
-                    export::write_pointing_csv(w, station, &rows)
-                })?;
-                files += 1;
-            }
-            Err(e) => warnings.push(format!(
-                "no pointing table for {} at {}: {e}",
-                c.spacecraft, c.aos
-            )),
-        }
-    }
-    let oem_dir = dir.join("oem");
-    create_dir(&oem_dir)?;
-    let originator = if scenario.operator.is_empty() {
-        "PASSLANE"
-    } else {
-        scenario.operator.as_str()
-    };
-    for d in &plan.demand {
-        let Some(set) = fleet.iter().find(|s| s.catalog_number == d.catalog_number) else {
-            continue;
-        };
-        match export::oem_states(set, plan.start, plan.end, export::oem_step_s(set)) {
-            Ok(states) => {
-                let file = oem_dir.join(format!(
-                    "{}_{}.oem",
-                    set.catalog_number,
-                    export::oem::slug_name(&set.name)
-                ));
-                write_file(&file, |w| {
-                    export::write_oem(w, set, &states, created, originator)
-                })?;
-                files += 1;
-            }
-            Err(e) => warnings.push(format!("no OEM for {}: {e}", set.name)),
-        }
-    }
-    Ok(ExportSummary {
-        dir: dir.to_path_buf(),
-        files,
-        warnings,
-    })
+    passlane_files::plan_folder::write_plan_folder(
+        dir,
+        plan,
+        fleet,
+        scenario,
+        created,
+        POINTING_STEP_S,
+    )
 }
 
 /// The plan view's state: the last plan, the running jobs and the export folder.
