@@ -324,10 +324,17 @@ mod tests {
         while t < end {
             let ms = (t.s_since_j2000() * 1e3).round() as i64;
             let n = j2000_noon() + chrono::TimeDelta::milliseconds(ms);
-            assert_eq!(t.to_iso_ms(), n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string());
+            assert_eq!(
+                t.to_iso_ms(),
+                n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string()
+            );
             t = t.add_s(7_777_777.777);
         }
-        for s in ["2000-02-29T23:59:59.999Z", "2100-02-28T00:00:00.000Z", "1999-12-31T23:59:59.999Z"] {
+        for s in [
+            "2000-02-29T23:59:59.999Z",
+            "2100-02-28T00:00:00.000Z",
+            "1999-12-31T23:59:59.999Z",
+        ] {
             assert_eq!(UtcTime::parse_iso(s).unwrap().to_iso_ms(), s);
         }
     }
