@@ -789,7 +789,8 @@ fn read_object(
     for (c, key) in covariance_rtn.iter_mut().zip(COVARIANCE_KEYS) {
         *c = f.num(key)?;
     }
-    let typed: [&str; 36] = [
+    // Keywords with a typed field: the metadata and state, then the covariance.
+    let typed: Vec<&str> = [
         "OBJECT",
         "OBJECT_DESIGNATOR",
         "CATALOG_NAME",
@@ -805,28 +806,10 @@ fn read_object(
         "X_DOT",
         "Y_DOT",
         "Z_DOT",
-        "CR_R",
-        "CT_R",
-        "CT_T",
-        "CN_R",
-        "CN_T",
-        "CN_N",
-        "CRDOT_R",
-        "CRDOT_T",
-        "CRDOT_N",
-        "CRDOT_RDOT",
-        "CTDOT_R",
-        "CTDOT_T",
-        "CTDOT_N",
-        "CTDOT_RDOT",
-        "CTDOT_TDOT",
-        "CNDOT_R",
-        "CNDOT_T",
-        "CNDOT_N",
-        "CNDOT_RDOT",
-        "CNDOT_TDOT",
-        "CNDOT_NDOT",
-    ];
+    ]
+    .into_iter()
+    .chain(COVARIANCE_KEYS)
+    .collect();
     let mut other = Vec::new();
     for kv in raw
         .items
