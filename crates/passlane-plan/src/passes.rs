@@ -386,18 +386,27 @@ struct OrbitBounds {
 }
 
 impl OrbitBounds {
-    fn of(set: &ElementSet) -> Self {
+    fn of(set: &ElementSet, window_days: f64) -> Self {
         let n_rad_s = set.mean_motion_rev_day * std::f64::consts::TAU / 86_400.0;
         let a = (MU_WGS72_KM3_S2 / (n_rad_s * n_rad_s)).cbrt();
         let e = set.eccentricity;
-        // SGP4's osculating radius wanders from the mean by tens of km; pad by 5%.
-        let rp = (a * (1.0 - e) * 0.95).max(EARTH_RADIUS_WGS72_KM);
-        let ra = a * (1.0 + e) * 1.05 + 50.0;
+        // SGP4's osculating radius wanders from the mean elements' perigee and
+        // apogee by ~10 km in LEO (short-period J2 terms); pad by 30 km plus
+        // 0.5 % of a. Drag lowers the orbit over the window: with the element
+        // set's dn/dt, Δa/a = −⅔·Δn/n (Kepler's third law). Padding matters in
+        // both directions: a higher apogee widens the visibility cone, a lower
+        // perigee raises the angular-rate bound.
+        let pad_km = 30.0 + 0.005 * a;
+        // The window may start well after epoch: allow a month more of decay.
+        let days = window_days.abs() + 30.0;
+        let decay_km = a * (2.0 / 3.0) * (2.0 * set.mean_motion_dot_rev_day2.abs() * days)
+            / set.mean_motion_rev_day;
+        let rp = (a * (1.0 - e) - pad_km - decay_km).max(EARTH_RADIUS_WGS72_KM);
+        let ra = a * (1.0 + e) + pad_km;
         let vp = (MU_WGS72_KM3_S2 * (2.0 / rp - 1.0 / a).max(0.0)).sqrt();
         // Sub-satellite point angular speed ≤ |v_earth_fixed| / r ≤ v/r + ω_E, and
-        // v/r is largest at perigee. The perigee radius above is already
-        // lowered by 5 % (which raises v_p/r_p by ~8 %); 5 % more covers SGP4's
-        // short-period wobble.
+        // v/r is largest at perigee (with the padded perigee radius above);
+        // 5 % more for the rest of SGP4's wobble.
         let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.05;
         // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
         // the same ω·Δt product for faster or slower orbits.
@@ -429,7 +438,7 @@ fn passes_of_satellite(
     if stations.is_empty() || options.end <= options.start {
         return (passes, None);
     }
-    let bounds = OrbitBounds::of(set);
+    let bounds = OrbitBounds::of(set, options.end.s_since(options.start) / 86_400.0);
     let cones: Vec<f64> = stations
         .iter()
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
