@@ -46,6 +46,29 @@ impl Illumination {
     }
 }
 
+/// Shadow state only, without the visible fraction: the same decisions as
+/// [`shadow`] made on cosines (no inverse trigonometry), for callers that
+/// sample many times per pass.
+pub fn shadow_state(sat_km: &Vec3, sun_km: &Vec3) -> Illumination {
+    let to_sun = sub(sun_km, sat_km);
+    let d_sun = norm(&to_sun);
+    let d_earth = norm(sat_km);
+    if d_earth <= EARTH_RADIUS_WGS72_KM {
+        return Illumination::Umbra;
+    }
+    let (sin_a, sin_b) = (SUN_RADIUS_KM / d_sun, EARTH_RADIUS_WGS72_KM / d_earth);
+    let (cos_a, cos_b) = ((1.0 - sin_a * sin_a).sqrt(), (1.0 - sin_b * sin_b).sqrt());
+    let cos_c = (-dot(sat_km, &to_sun) / (d_earth * d_sun)).clamp(-1.0, 1.0);
+    // c ≥ a + b ⇔ cos c ≤ cos(a + b); c ≤ b − a ⇔ cos c ≥ cos(b − a) (all angles in [0, π]).
+    if cos_c <= cos_a * cos_b - sin_a * sin_b {
+        Illumination::Sunlit
+    } else if sin_b > sin_a && cos_c >= cos_b * cos_a + sin_b * sin_a {
+        Illumination::Umbra
+    } else {
+        Illumination::Penumbra
+    }
+}
+
 /// Shadow state and the fraction of the solar disk visible (1 sunlit, 0 umbra).
 pub fn shadow(sat_km: &Vec3, sun_km: &Vec3) -> (Illumination, f64) {
     let to_sun = sub(sun_km, sat_km);
@@ -99,6 +122,22 @@ mod tests {
         assert!((ra - 198.380_83).abs() < 0.02, "ra {ra}");
         assert!((dec - -7.785_07).abs() < 0.02, "dec {dec}");
         assert!((norm(&s) / AU_KM - 0.997_66).abs() < 2e-4);
+    }
+
+    #[test]
+    fn cheap_shadow_state_agrees_with_the_full_model() {
+        let sun = sun_position_teme_km(UtcTime::parse_iso("2026-12-01T00:00:00Z").unwrap());
+        let mut seen = std::collections::HashSet::new();
+        for i in 0..20_000 {
+            let ang = i as f64 * 0.000_314_159;
+            for r in [6_700.0, 7_000.0, 12_000.0, 42_164.0] {
+                let p = [r * ang.cos() * -1.0, r * ang.sin(), r * 0.1 * (ang * 3.0).sin()];
+                let full = shadow(&p, &sun).0;
+                assert_eq!(shadow_state(&p, &sun), full, "{p:?}");
+                seen.insert(full.label());
+            }
+        }
+        assert_eq!(seen.len(), 3, "all three states exercised");
     }
 
     #[test]

@@ -24,7 +24,7 @@ use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2, SPEED_OF
 use passlane_orbit::frames::{Vec3, dot, norm, sub};
 use passlane_orbit::{
     EarthFixed, EarthOrientation, ElementSet, Illumination, LookAngles, PropagationError,
-    Propagator, Site, TemeToEarthFixed, UtcTime, shadow, sun_position_teme_km,
+    Propagator, Site, TemeToEarthFixed, UtcTime, shadow_state, sun_position_teme_km,
 };
 use rayon::prelude::*;
 use serde::Serialize;
@@ -769,7 +769,7 @@ fn illumination_spans(
             sun_a[1] + u * (sun_b[1] - sun_a[1]),
             sun_a[2] + u * (sun_b[2] - sun_a[2]),
         ];
-        shadow(&track.at(t_s).position_km, &sun).0
+        shadow_state(&track.at(t_s).position_km, &sun)
     };
     let mut spans = Vec::new();
     let mut current = state_at(aos_s);
