@@ -212,18 +212,22 @@ pub fn find_passes(
         .collect();
     let done = std::sync::atomic::AtomicUsize::new(0);
     let total = sets.len().max(1);
-    let results: Vec<(Vec<Pass>, Option<SatelliteFailure>)> = sets
-        .par_iter()
-        .map(|set| {
-            if progress.cancelled() {
-                return (Vec::new(), None);
-            }
-            let out = passes_of_satellite(set, &prepared, options);
-            let n = done.fetch_add(1, Ordering::Relaxed) + 1;
-            progress.report(n as f64 / total as f64);
-            out
-        })
-        .collect();
+    let one = |set: &ElementSet| {
+        if progress.cancelled() {
+            return (Vec::new(), None);
+        }
+        let out = passes_of_satellite(set, &prepared, options);
+        let n = done.fetch_add(1, Ordering::Relaxed) + 1;
+        progress.report(n as f64 / total as f64);
+        out
+    };
+    // A handful of satellites finish in milliseconds: starting worker threads
+    // (which spin while they wait) would cost more CPU than it saves.
+    let results: Vec<(Vec<Pass>, Option<SatelliteFailure>)> = if sets.len() < 12 {
+        sets.iter().map(one).collect()
+    } else {
+        sets.par_iter().map(one).collect()
+    };
     let mut report = PassReport {
         cancelled: progress.cancelled(),
         ..PassReport::default()
