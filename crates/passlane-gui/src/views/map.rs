@@ -13,8 +13,11 @@ use crate::geo::{self, LonLat};
 use crate::palette;
 use crate::state::{AppState, time_label};
 
-/// Tracks are recomputed when the cursor enters a new bucket of this length.
-const TRACK_BUCKET_S: f64 = 120.0;
+/// Tracks are recomputed when the cursor enters a new bucket: at least this
+/// long, and a quarter of the track span, so that playback at high speed
+/// rebuilds them every few dozen frames instead of every few frames (each
+/// rebuild propagates every track: the slow frames of the frame-time bench).
+const TRACK_BUCKET_MIN_S: f64 = 120.0;
 /// Draw tracks for at most this many spacecraft (the operator's fleet, not a catalog).
 const MAX_TRACKS: usize = 500;
 
@@ -66,18 +69,20 @@ impl MapView {
     fn prepare(&mut self, state: &AppState) {
         let doc = &state.doc;
         let eop = doc.scenario.earth_orientation;
-        let bucket = (state.cursor.s_since_j2000() / TRACK_BUCKET_S).floor() as i64;
+        let span_s = self.track_span_min * 60.0;
+        let bucket_s = TRACK_BUCKET_MIN_S.max(span_s / 4.0);
+        let bucket = (state.cursor.s_since_j2000() / bucket_s).floor() as i64;
         let key = (doc.revision, self.track_span_min.to_bits(), bucket);
         if self.tracks.key != Some(key) {
             // Start a little behind the cursor so the recent path stays visible.
-            let start = UtcTime::from_s_since_j2000(bucket as f64 * TRACK_BUCKET_S)
-                .add_s(-self.track_span_min * 60.0 * 0.15);
+            let start = UtcTime::from_s_since_j2000(bucket as f64 * bucket_s).add_s(-span_s * 0.15);
             self.tracks.tracks = doc
                 .fleet
                 .iter()
                 .take(MAX_TRACKS)
                 .map(|set| {
-                    geo::ground_track(set, start, self.track_span_min * 60.0 * 1.15, 30.0, &eop)
+                    // Cover the whole bucket, so the span ahead of the cursor stays full.
+                    geo::ground_track(set, start, span_s * 1.15 + bucket_s, 30.0, &eop)
                 })
                 .collect();
             self.tracks.key = Some(key);
