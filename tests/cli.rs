@@ -506,3 +506,43 @@ fn window_without_a_display_fails_cleanly_and_help_still_prints() {
         "a misspelt window option is a usage error"
     );
 }
+
+#[test]
+fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
+    let rows = ok_json(&[
+        "track",
+        "--scenario",
+        "scenarios/demo.json",
+        "--station",
+        "coral shoal",
+        "--satellite",
+        "KRSL-5 AUK",
+        "--pass-start",
+        "2026-12-01T02:28:00Z",
+        "--step-s",
+        "10",
+        "--format",
+        "json",
+    ]);
+    let rows = rows.as_array().unwrap();
+    assert!(rows.len() > 10);
+    // The demo's Coral Shoal has two channels: one Doppler-corrected frequency each.
+    assert_eq!(rows[0]["frequencies_hz"].as_array().unwrap().len(), 2);
+    let out = passlane(&[
+        "track",
+        "--scenario",
+        "scenarios/demo.json",
+        "--station",
+        "Nowhere",
+        "--satellite",
+        "90005",
+        "--pass-start",
+        "2026-12-01T02:28:00Z",
+    ]);
+    assert!(!out.status.success());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("Nowhere") && err.contains("Coral Shoal"),
+        "{err}"
+    );
+}

@@ -110,7 +110,33 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
     let sets = load_fleet(&element_paths, args.flag("lenient"))?;
     let mut stations = Vec::new();
     for s in args.values("station") {
-        stations.push(Station::parse_inline(s).map_err(|e| anyhow::anyhow!("--station: {e}"))?);
+        // NAME,LAT,LON,HEIGHT defines a station; a bare name picks one of the
+        // scenario's (with its mask, mount and channels).
+        if s.contains(',') {
+            stations.push(Station::parse_inline(s).map_err(|e| anyhow::anyhow!("--station: {e}"))?);
+            continue;
+        }
+        let known: Vec<&Station> = scenario
+            .as_ref()
+            .map(|(_, sc)| sc.stations.iter().collect())
+            .unwrap_or_default();
+        match known
+            .iter()
+            .find(|st| st.name.eq_ignore_ascii_case(s.trim()))
+        {
+            Some(st) => stations.push((*st).clone()),
+            None if known.is_empty() => bail!(
+                "--station {s:?}: give NAME,LAT_DEG,LON_DEG,HEIGHT_M, or a station name together with --scenario FILE"
+            ),
+            None => bail!(
+                "--station {s:?}: the scenario has no such station (it has: {})",
+                known
+                    .iter()
+                    .map(|st| st.name.as_str())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            ),
+        }
     }
     if stations.is_empty()
         && let Some((_, s)) = &scenario

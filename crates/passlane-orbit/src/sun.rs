@@ -131,7 +131,11 @@ mod tests {
         for i in 0..20_000 {
             let ang = i as f64 * 0.000_314_159;
             for r in [6_700.0, 7_000.0, 12_000.0, 42_164.0] {
-                let p = [r * ang.cos() * -1.0, r * ang.sin(), r * 0.1 * (ang * 3.0).sin()];
+                let p = [
+                    r * ang.cos() * -1.0,
+                    r * ang.sin(),
+                    r * 0.1 * (ang * 3.0).sin(),
+                ];
                 let full = shadow(&p, &sun).0;
                 assert_eq!(shadow_state(&p, &sun), full, "{p:?}");
                 seen.insert(full.label());
