@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::cdm::Cdm;
-use passlane_plan::conjunction::{AssumedCovariance, CdmContext, EventRisk, assess, event_to_cdm};
+use passlane_plan::conjunction::{AssumedCovariance, CdmContext, assess_events, event_to_cdm};
 use passlane_plan::screen::{
     CloseApproach, ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
 };
@@ -182,37 +182,15 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     for d in &result.diagnostics {
         eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
     }
-    let by_number: HashMap<u32, &ElementSet> = primaries
-        .iter()
-        .chain(secondaries.iter().flatten())
-        .map(|s| (s.catalog_number, s))
-        .collect();
-    let covariance = AssumedCovariance {
-        sigma_at_epoch_m: defaults.assumed_sigma_at_epoch_m,
-        growth_m_per_day: defaults.assumed_sigma_growth_m_per_day,
-    };
-    let hbr_of = |n: u32| -> f64 {
-        scenario
-            .and_then(|s| s.satellites.iter().find(|x| x.catalog_number == n))
-            .and_then(|x| x.hard_body_radius_m)
-            .unwrap_or(defaults.default_hard_body_radius_m)
-    };
-    let hbr_override = args.f64_value("hard-body-radius-m")?;
-    let risks: Vec<Result<EventRisk, String>> = result
-        .events
-        .iter()
-        .map(|e| {
-            let (Some(p), Some(s)) = (
-                by_number.get(&e.primary_catalog_number),
-                by_number.get(&e.secondary_catalog_number),
-            ) else {
-                return Err("element set not found".to_string());
-            };
-            let hbr = hbr_override
-                .unwrap_or(hbr_of(e.primary_catalog_number) + hbr_of(e.secondary_catalog_number));
-            assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
-        })
-        .collect();
+    let default_scenario = passlane_plan::Scenario::default();
+    let assumptions = scenario.unwrap_or(&default_scenario);
+    let covariance = AssumedCovariance::from_scenario(assumptions);
+    let risks = assess_events(
+        &result.events,
+        primaries.iter().chain(secondaries.iter().flatten()),
+        assumptions,
+        args.f64_value("hard-body-radius-m")?,
+    );
     let label = covariance.label();
     let rows: Vec<Row> = result
         .events
@@ -247,6 +225,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             .with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::from_chrono(chrono::Utc::now());
         let originator = args.value("originator").unwrap_or("PASSLANE");
+        let by_number: HashMap<u32, &ElementSet> = primaries
+            .iter()
+            .chain(secondaries.iter().flatten())
+            .map(|s| (s.catalog_number, s))
+            .collect();
         for (k, (e, r)) in result.events.iter().zip(&risks).enumerate() {
             let (Some(p), Some(s)) = (
                 by_number.get(&e.primary_catalog_number),

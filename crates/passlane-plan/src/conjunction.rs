@@ -17,6 +17,7 @@ use serde::Serialize;
 use crate::cdm::{Cdm, CdmHeader, CdmObject, CdmRelative};
 use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
 use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
+use crate::scenario::Scenario;
 use crate::screen::{CloseApproach, ScreeningVolume};
 
 /// The operator's assumption about element-set accuracy.
@@ -29,6 +30,14 @@ pub struct AssumedCovariance {
 }
 
 impl AssumedCovariance {
+    /// The operator's assumption as the scenario states it.
+    pub fn from_scenario(scenario: &Scenario) -> Self {
+        AssumedCovariance {
+            sigma_at_epoch_m: scenario.screening.assumed_sigma_at_epoch_m,
+            growth_m_per_day: scenario.screening.assumed_sigma_growth_m_per_day,
+        }
+    }
+
     /// 1-σ (R, I, C) of an element set at `at`, m.
     pub fn sigmas_m(&self, set: &ElementSet, at: UtcTime) -> [f64; 3] {
         let age_days = at.s_since(set.epoch).abs() / 86_400.0;
@@ -121,6 +130,48 @@ pub fn assess(
         primary_element_age_days: event.tca.s_since(primary.epoch) / 86_400.0,
         secondary_element_age_days: event.tca.s_since(secondary.epoch) / 86_400.0,
     })
+}
+
+/// Hard-body radius of one object: its own from the scenario, else the
+/// scenario's default.
+pub fn hard_body_radius_m(scenario: &Scenario, catalog_number: u32) -> f64 {
+    scenario
+        .satellites
+        .iter()
+        .find(|x| x.catalog_number == catalog_number)
+        .and_then(|x| x.hard_body_radius_m)
+        .unwrap_or(scenario.screening.default_hard_body_radius_m)
+}
+
+/// Assesses every event of a screening: the element sets are looked up by
+/// catalog number in `sets`, the combined hard-body radius is the sum of the
+/// two objects' (or `hard_body_radius_override_m`). The command line and the
+/// window both call this, so their figures agree.
+pub fn assess_events<'a>(
+    events: &[CloseApproach],
+    sets: impl IntoIterator<Item = &'a ElementSet>,
+    scenario: &Scenario,
+    hard_body_radius_override_m: Option<f64>,
+) -> Vec<Result<EventRisk, String>> {
+    let by_number: std::collections::HashMap<u32, &ElementSet> =
+        sets.into_iter().map(|s| (s.catalog_number, s)).collect();
+    let covariance = AssumedCovariance::from_scenario(scenario);
+    events
+        .iter()
+        .map(|e| {
+            let (Some(p), Some(s)) = (
+                by_number.get(&e.primary_catalog_number),
+                by_number.get(&e.secondary_catalog_number),
+            ) else {
+                return Err("element set not found".to_string());
+            };
+            let hbr = hard_body_radius_override_m.unwrap_or(
+                hard_body_radius_m(scenario, e.primary_catalog_number)
+                    + hard_body_radius_m(scenario, e.secondary_catalog_number),
+            );
+            assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
+        })
+        .collect()
 }
 
 /// Converts an Earth-fixed (ITRF) state to the instantaneous inertial frame

@@ -14,14 +14,12 @@
 //! probability over the covariance's size and does not depend on that
 //! assumption's scale.
 
-use std::collections::HashMap;
-
 use eframe::egui::{self, Align2, FontId, Pos2, Sense, Shape, Stroke, vec2};
 use egui_plot::{Line, Plot, PlotPoints};
 use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::{ElementSet, Propagator, UtcTime};
 use passlane_plan::Scenario;
-use passlane_plan::conjunction::{AssumedCovariance, EventRisk, assess};
+use passlane_plan::conjunction::{AssumedCovariance, EventRisk, assess_events};
 use passlane_plan::screen::{
     CloseApproach, ScreeningRequest, ScreeningResult, ScreeningSettings, ScreeningVolume,
     screen_with_progress,
@@ -39,24 +37,6 @@ pub struct ScreeningOutcome {
     pub risks: Vec<Result<EventRisk, String>>,
     /// [`AssumedCovariance::label`] of the covariance used.
     pub covariance_label: String,
-}
-
-/// The assumed covariance of a scenario's screening settings.
-pub fn assumed_covariance(scenario: &Scenario) -> AssumedCovariance {
-    AssumedCovariance {
-        sigma_at_epoch_m: scenario.screening.assumed_sigma_at_epoch_m,
-        growth_m_per_day: scenario.screening.assumed_sigma_growth_m_per_day,
-    }
-}
-
-/// Hard-body radius of one object: its own from the scenario, else the default.
-pub fn hard_body_radius_m(scenario: &Scenario, catalog_number: u32) -> f64 {
-    scenario
-        .satellites
-        .iter()
-        .find(|x| x.catalog_number == catalog_number)
-        .and_then(|x| x.hard_body_radius_m)
-        .unwrap_or(scenario.screening.default_hard_body_radius_m)
 }
 
 /// Screens the fleet against the catalog (or against itself when there is no
@@ -102,27 +82,8 @@ pub fn screen_and_assess(
             .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
         result.cancelled |= own.cancelled;
     }
-    let by_number: HashMap<u32, &ElementSet> = fleet
-        .iter()
-        .chain(catalog)
-        .map(|s| (s.catalog_number, s))
-        .collect();
-    let covariance = assumed_covariance(scenario);
-    let risks = result
-        .events
-        .iter()
-        .map(|e| {
-            let (Some(p), Some(s)) = (
-                by_number.get(&e.primary_catalog_number),
-                by_number.get(&e.secondary_catalog_number),
-            ) else {
-                return Err("element set not found".to_string());
-            };
-            let hbr = hard_body_radius_m(scenario, e.primary_catalog_number)
-                + hard_body_radius_m(scenario, e.secondary_catalog_number);
-            assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
-        })
-        .collect();
+    let risks = assess_events(&result.events, fleet.iter().chain(catalog), scenario, None);
+    let covariance = AssumedCovariance::from_scenario(scenario);
     ScreeningOutcome {
         result,
         risks,
@@ -251,7 +212,7 @@ impl ApproachesView {
             state.doc.fleet.len(),
             state.doc.catalog.len(),
             screening.threshold_km,
-            assumed_covariance(&state.doc.scenario).label(),
+            AssumedCovariance::from_scenario(&state.doc.scenario).label(),
             screening.default_hard_body_radius_m,
         ));
         self.poll();
