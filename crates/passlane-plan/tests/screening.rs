@@ -3,54 +3,18 @@
 //! properties of the event geometry.
 #![allow(clippy::unwrap_used)]
 
-use passlane_orbit::{ElementSet, Propagator, SourceRef, UtcTime};
+use passlane_orbit::{ElementSet, Propagator, UtcTime};
 use passlane_plan::screen::{
     ScreeningRequest, ScreeningSettings, ScreeningVolume, hermite_state, interpolation_plan,
     relative_geometry, screen, screen_brute_force, screen_with_progress,
 };
 use proptest::prelude::*;
 
-/// Minimal TLE reader for tests only (the workspace loader lives elsewhere).
+/// Element sets through the workspace loader (which must report nothing).
 fn parse_tles(text: &str) -> Vec<ElementSet> {
-    let lines: Vec<&str> = text.lines().filter(|l| !l.trim().is_empty()).collect();
-    lines
-        .chunks(3)
-        .map(|c| {
-            let (name, l1, l2) = (c[0].trim(), c[1], c[2]);
-            let f = |l: &str, a: usize, b: usize| l[a - 1..b].trim().to_string();
-            let num = |l: &str, a: usize, b: usize| f(l, a, b).parse::<f64>().unwrap();
-            // "  12345-6" style: implied leading decimal point and exponent.
-            let implied = |s: String| -> f64 {
-                let s = s.trim();
-                let (mant, exp) = s.split_at(s.len() - 2);
-                let sign = if mant.starts_with('-') { -1.0 } else { 1.0 };
-                let digits = mant.trim_start_matches(['-', '+']);
-                sign * format!("0.{digits}").parse::<f64>().unwrap()
-                    * 10f64.powi(exp.parse().unwrap())
-            };
-            let year = 2000 + f(l1, 19, 20).parse::<i32>().unwrap();
-            ElementSet {
-                name: name.to_string(),
-                catalog_number: f(l1, 3, 7).parse().unwrap(),
-                international_designator: f(l1, 10, 17),
-                classification: 'U',
-                epoch: UtcTime::from_year_and_day(year, num(l1, 21, 32)).unwrap(),
-                mean_motion_dot_rev_day2: num(l1, 34, 43),
-                mean_motion_ddot_rev_day3: implied(f(l1, 45, 52)),
-                bstar_per_earth_radii: implied(f(l1, 54, 61)),
-                ephemeris_type: 0,
-                element_set_number: f(l1, 65, 68).parse().unwrap(),
-                inclination_deg: num(l2, 9, 16),
-                raan_deg: num(l2, 18, 25),
-                eccentricity: format!("0.{}", f(l2, 27, 33)).parse().unwrap(),
-                arg_perigee_deg: num(l2, 35, 42),
-                mean_anomaly_deg: num(l2, 44, 51),
-                mean_motion_rev_day: num(l2, 53, 63),
-                revolution_number: f(l2, 64, 68).parse().unwrap_or(0),
-                source: SourceRef::default(),
-            }
-        })
-        .collect()
+    let r = passlane_orbit::elements::load(text.as_bytes(), "test", Default::default());
+    assert!(r.diagnostics.is_empty(), "{:?}", r.diagnostics);
+    r.sets
 }
 
 fn demo_objects() -> Vec<ElementSet> {
