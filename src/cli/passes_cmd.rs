@@ -4,8 +4,9 @@ use std::io::Write;
 
 use anyhow::{Result, bail};
 use passlane_orbit::{EarthOrientation, Illumination, UtcTime};
-use passlane_plan::passes::{Pass, PassOptions, Silent, find_passes, pointing_table};
+use passlane_plan::passes::{Pass, PassOptions, find_passes};
 use passlane_plan::station::Station;
+use passlane_plan::{Silent, pointing_table};
 
 use super::args::RawArgs;
 use super::common::{self, Format, Inputs};

@@ -6,9 +6,9 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
-use passlane_plan::export;
-use passlane_plan::passes::{PassOptions, Silent, find_passes};
-use passlane_plan::schedule::{Method, Plan, plan_scenario};
+use passlane_plan::Silent;
+use passlane_plan::export::{self, HandOffContext, hand_off_files};
+use passlane_plan::schedule::{Method, Plan, plan_network};
 
 use super::args::RawArgs;
 use super::common::{self, Format};
@@ -43,27 +43,8 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let Some((scenario_path, scenario)) = &inputs.scenario else {
         bail!("--scenario FILE is required");
     };
-    let eop = scenario.earth_orientation;
-    let options = PassOptions {
-        start,
-        end,
-        earth_orientation: eop,
-        min_elevation_deg: None,
-    };
-    let report = find_passes(&inputs.sets, &scenario.stations, &options, &Silent);
-    for f in &report.failures {
-        eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
-    }
-    let plan = plan_scenario(
-        scenario,
-        &inputs.sets,
-        &report.passes,
-        start,
-        end,
-        &eop,
-        &Silent,
-    )
-    .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
+    let plan = plan_network(scenario, &inputs.sets, start, end, &Silent)
+        .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
     for w in &plan.warnings {
         eprintln!("warning: {w}");
     }
@@ -102,18 +83,29 @@ fn write_outputs(
     created: UtcTime,
     pointing_step_s: f64,
 ) -> Result<Written> {
-    let summary = passlane_files::plan_folder::write_plan_folder(
-        dir,
+    let hand_off = hand_off_files(
         plan,
-        sets,
-        scenario,
-        created,
-        pointing_step_s,
-    )
-    .map_err(|e| anyhow::anyhow!(e))?;
-    for w in &summary.warnings {
+        &HandOffContext {
+            fleet: sets,
+            stations: &scenario.stations,
+            earth_orientation: scenario.earth_orientation,
+            calendar_name: scenario.calendar_name(),
+            originator: scenario.originator(),
+            created,
+            pointing_step_s,
+        },
+    );
+    for w in &hand_off.warnings {
         eprintln!("warning: {w}");
     }
+    let summary = passlane_files::folder::write_folder(
+        dir,
+        hand_off
+            .files
+            .iter()
+            .map(|f| (f.relative_path.as_str(), f.contents.as_slice())),
+    )
+    .map_err(|e| anyhow::anyhow!(e))?;
     Ok(Written {
         dir: summary.dir,
         files: summary.files,

@@ -6,11 +6,11 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
+use passlane_plan::Progress;
 use passlane_plan::cdm::Cdm;
-use passlane_plan::conjunction::{AssumedCovariance, CdmContext, assess_events, event_to_cdm};
-use passlane_plan::screen::{
-    CloseApproach, ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
-};
+use passlane_plan::conjunction::{CdmContext, event_to_cdm};
+use passlane_plan::job::{ScreeningJob, screen_and_assess};
+use passlane_plan::screen::{CloseApproach, ScreeningVolume};
 use serde::Serialize;
 
 use super::args::RawArgs;
@@ -44,6 +44,24 @@ struct Row<'a> {
     hard_body_radius_m: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     risk_note: Option<String>,
+}
+
+/// Percent done on stderr, only when it is a terminal.
+struct TerminalPercent {
+    quiet: bool,
+    last_pct: std::sync::atomic::AtomicI64,
+}
+
+impl Progress for TerminalPercent {
+    fn report(&self, f: f64) {
+        let pct = (f * 100.0).floor() as i64;
+        let before = self
+            .last_pct
+            .swap(pct, std::sync::atomic::Ordering::Relaxed);
+        if !self.quiet && pct != before && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
+            eprint!("\rscreening… {pct:3}%");
+        }
+    }
 }
 
 fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
@@ -129,73 +147,41 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     } else {
         Some(common::load_fleet(&catalog_paths, args.flag("lenient"))?)
     };
-    // All-vs-all: the catalog (or the element files) against itself.
-    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) =
-        if args.flag("all-vs-all") {
-            let mut all = inputs.sets.clone();
-            if let Some(c) = catalog {
-                all.extend(c);
-            }
-            (all, None)
-        } else {
-            (inputs.sets.clone(), catalog)
-        };
-    // The fleet screens against itself too: fleet-vs-catalog adds the catalog.
-    let request = ScreeningRequest {
-        primaries: &primaries,
-        secondaries: secondaries.as_deref(),
-        start,
-        end,
-        settings: ScreeningSettings {
-            volume,
-            ..ScreeningSettings::default()
-        },
-    };
+    let catalog = catalog.unwrap_or_default();
+    let default_scenario = passlane_plan::Scenario::default();
+    let assumptions = scenario.unwrap_or(&default_scenario);
     let quiet = args.flag("quiet");
-    let last_pct = std::sync::atomic::AtomicI64::new(-1);
-    let progress = |f: f64| {
-        let pct = (f * 100.0).floor() as i64;
-        let before = last_pct.swap(pct, std::sync::atomic::Ordering::Relaxed);
-        if !quiet && pct != before && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
-            eprint!("\rscreening… {pct:3}%");
-        }
-        true
+    let progress = TerminalPercent {
+        quiet,
+        last_pct: std::sync::atomic::AtomicI64::new(-1),
     };
-    let mut result = screen_with_progress(&request, &progress);
+    let outcome = screen_and_assess(
+        &ScreeningJob {
+            fleet: &inputs.sets,
+            catalog: &catalog,
+            all_vs_all: args.flag("all-vs-all"),
+            start,
+            end,
+            volume,
+            scenario: assumptions,
+            hard_body_radius_override_m: args.f64_value("hard-body-radius-m")?,
+        },
+        &progress,
+    );
     if !quiet && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
         eprintln!("\rscreening… done ");
     }
-    // Fleet-vs-catalog also wants the fleet's own pairs.
-    if secondaries.is_some() && !args.flag("all-vs-all") && primaries.len() > 1 {
-        let own = screen_with_progress(
-            &ScreeningRequest {
-                secondaries: None,
-                ..request
-            },
-            &|_| true,
-        );
-        result.events.extend(own.events);
-        result
-            .events
-            .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
-    }
+    let result = &outcome.result;
+    let risks = &outcome.risks;
+    let covariance = outcome.covariance;
     for d in &result.diagnostics {
         eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
     }
-    let default_scenario = passlane_plan::Scenario::default();
-    let assumptions = scenario.unwrap_or(&default_scenario);
-    let covariance = AssumedCovariance::from_scenario(assumptions);
-    let risks = assess_events(
-        &result.events,
-        primaries.iter().chain(secondaries.iter().flatten()),
-        assumptions,
-        args.f64_value("hard-body-radius-m")?,
-    );
     let label = covariance.label();
     let rows: Vec<Row> = result
         .events
         .iter()
-        .zip(&risks)
+        .zip(risks)
         .map(|(e, r)| match r {
             Ok(r) => Row {
                 event: e,
@@ -225,12 +211,13 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             .with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::from_chrono(chrono::Utc::now());
         let originator = args.value("originator").unwrap_or("PASSLANE");
-        let by_number: HashMap<u32, &ElementSet> = primaries
+        let by_number: HashMap<u32, &ElementSet> = inputs
+            .sets
             .iter()
-            .chain(secondaries.iter().flatten())
+            .chain(&catalog)
             .map(|s| (s.catalog_number, s))
             .collect();
-        for (k, (e, r)) in result.events.iter().zip(&risks).enumerate() {
+        for (k, (e, r)) in result.events.iter().zip(risks).enumerate() {
             let (Some(p), Some(s)) = (
                 by_number.get(&e.primary_catalog_number),
                 by_number.get(&e.secondary_catalog_number),
@@ -321,10 +308,10 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
                 "Close approaches {} to {}: {} primary object(s){}, volume {}\n",
                 start.to_iso_s(),
                 end.to_iso_s(),
-                primaries.len(),
-                secondaries
-                    .as_ref()
-                    .map(|s| format!(" vs {} catalog object(s)", s.len()))
+                outcome.primaries,
+                outcome
+                    .secondaries
+                    .map(|n| format!(" vs {n} catalog object(s)"))
                     .unwrap_or_default(),
                 describe_volume(&volume)
             )?;

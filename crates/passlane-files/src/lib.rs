@@ -6,9 +6,13 @@
 //! - [`read_limited`]: reads a file with a size cap, so a wrong path to a huge
 //!   file gives a clear error instead of exhausting memory.
 //! - [`remove_stale_temporaries`]: clears temporaries left by an interrupted save.
-//! - [`plan_folder::write_plan_folder`]: the network plan's hand-off folder.
+//! - [`folder::write_folder`]: a folder of hand-off files (the network plan's).
+//!
+//! Architecture invariant: this crate does file I/O only. It depends on the
+//! standard library alone: what goes into a file is decided by the planner
+//! (`passlane-plan`), which never touches the file system.
 
-pub mod plan_folder;
+pub mod folder;
 
 use std::fs;
 use std::io::{self, Read, Write};

@@ -8,12 +8,6 @@ use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::{Harness, SnapshotOptions};
 use passlane_gui::{AppOptions, Document, PasslaneApp, Tab};
-use passlane_plan::conjunction::{AssumedCovariance, assess};
-use passlane_plan::passes::PassOptions;
-use passlane_plan::schedule::plan_scenario;
-use passlane_plan::screen::{
-    ScreeningRequest, ScreeningSettings, ScreeningVolume, screen_with_progress,
-};
 use passlane_plan::{Silent, find_passes};
 
 fn app() -> PasslaneApp {
@@ -127,7 +121,7 @@ fn wait_until(
 }
 
 #[test]
-fn screening_and_pc_match_the_library_calls_of_the_command_line() {
+fn close_approaches_view_shows_the_screening_and_its_covariance_source() {
     let mut h = harness(app());
     wait_for_passes(&mut h);
     h.get_by_label("Close approaches").click();
@@ -137,82 +131,21 @@ fn screening_and_pc_match_the_library_calls_of_the_command_line() {
     wait_until(&mut h, "screening", |a| {
         !a.approaches().running() && a.approaches().outcome().is_some()
     });
+    // The computation is the planner's (`tests/shells.rs` at the workspace
+    // root compares it with the command line); here: what the table shows.
     let app = h.state();
     let Some(outcome) = app.approaches().outcome() else {
         unreachable!("waited for it")
     };
-    let doc = &app.state.doc;
-    let (start, end) = doc.window();
-    let scenario = &doc.scenario;
-
-    // What `passlane screen --scenario` does, spelled out with the library calls.
-    let request = ScreeningRequest {
-        primaries: &doc.fleet,
-        secondaries: Some(&doc.catalog),
-        start,
-        end,
-        settings: ScreeningSettings {
-            volume: ScreeningVolume::Sphere {
-                radius_km: scenario.screening.threshold_km,
-            },
-            ..ScreeningSettings::default()
-        },
-    };
-    let mut direct = screen_with_progress(&request, &|_| true);
-    let own = screen_with_progress(
-        &ScreeningRequest {
-            secondaries: None,
-            ..request
-        },
-        &|_| true,
+    let events = outcome.result.events.clone();
+    assert!(!events.is_empty(), "the demo has close approaches");
+    assert!(outcome.risks.iter().all(|r| r.is_ok()));
+    assert!(
+        h.query_all_by_label("assumed (scenario)").count() == events.len(),
+        "each row says where its covariance came from"
     );
-    direct.events.extend(own.events);
-    direct
-        .events
-        .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
-    assert!(!direct.events.is_empty(), "the demo has close approaches");
-    assert_eq!(outcome.result.events, direct.events);
-
-    let covariance = AssumedCovariance {
-        sigma_at_epoch_m: scenario.screening.assumed_sigma_at_epoch_m,
-        growth_m_per_day: scenario.screening.assumed_sigma_growth_m_per_day,
-    };
-    assert_eq!(outcome.covariance_label, covariance.label());
-    let hbr = |n: u32| {
-        scenario
-            .satellites
-            .iter()
-            .find(|s| s.catalog_number == n)
-            .and_then(|s| s.hard_body_radius_m)
-            .unwrap_or(scenario.screening.default_hard_body_radius_m)
-    };
-    let set = |n: u32| {
-        doc.fleet
-            .iter()
-            .chain(&doc.catalog)
-            .find(|s| s.catalog_number == n)
-    };
-    assert_eq!(outcome.risks.len(), direct.events.len());
-    for (e, got) in direct.events.iter().zip(&outcome.risks) {
-        let (Some(p), Some(s)) = (
-            set(e.primary_catalog_number),
-            set(e.secondary_catalog_number),
-        ) else {
-            panic!("element sets of {} / {} not loaded", e.primary, e.secondary);
-        };
-        let want = assess(
-            e,
-            p,
-            s,
-            &covariance,
-            hbr(e.primary_catalog_number) + hbr(e.secondary_catalog_number),
-        );
-        let want = want.map_err(|err| err.to_string());
-        assert_eq!(got, &want, "{} / {} at {}", e.primary, e.secondary, e.tca);
-    }
-
     // Selecting the first event shows its encounter plane.
-    h.get_by_label(&passlane_gui::state::time_label(direct.events[0].tca))
+    h.get_by_label(&passlane_gui::state::time_label(events[0].tca))
         .click();
     h.run_steps(2);
     assert!(h.query_by_label_contains("Encounter plane: Pc").is_some());
@@ -220,7 +153,7 @@ fn screening_and_pc_match_the_library_calls_of_the_command_line() {
 }
 
 #[test]
-fn plan_matches_the_library_chain_and_exports_the_command_line_files() {
+fn plan_view_shows_the_plan_and_exports_its_hand_off_files() {
     let mut h = harness(app());
     wait_for_passes(&mut h);
     h.get_by_label("Plan").click();
@@ -240,29 +173,10 @@ fn plan_matches_the_library_chain_and_exports_the_command_line_files() {
         panic!("the demo should plan: {got:?}")
     };
 
-    // The command line's chain, spelled out.
-    let doc = &h.state().state.doc;
-    let (start, end) = doc.window();
-    let eop = doc.scenario.earth_orientation;
-    let options = PassOptions {
-        earth_orientation: eop,
-        min_elevation_deg: None,
-        start,
-        end,
-    };
-    let report = find_passes(&doc.fleet, &doc.scenario.stations, &options, &Silent);
-    let direct = plan_scenario(
-        &doc.scenario,
-        &doc.fleet,
-        &report.passes,
-        start,
-        end,
-        &eop,
-        &Silent,
-    );
-    let direct = direct.expect("the demo plans");
+    // The plan is the planner's (`tests/shells.rs` at the workspace root
+    // compares it with the command line); here: what the view shows and writes.
+    let direct = got;
     assert!(!direct.contacts.is_empty());
-    assert_eq!(got, direct);
     assert!(
         h.query_by_label_contains("Transmitting needs a licence")
             .is_some()

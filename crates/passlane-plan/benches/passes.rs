@@ -9,7 +9,8 @@ use std::path::PathBuf;
 use std::time::Instant;
 
 use passlane_orbit::{LoadOptions, UtcTime, elements};
-use passlane_plan::passes::{PassOptions, Silent, find_passes};
+use passlane_plan::Silent;
+use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::station::Station;
 
 /// CPU seconds of this process so far (user + system, from /proc), so that

@@ -15,7 +15,8 @@ use std::path::PathBuf;
 use std::time::Instant;
 
 use passlane_orbit::{LoadOptions, UtcTime, elements};
-use passlane_plan::passes::{PassOptions, Silent, find_passes};
+use passlane_plan::Silent;
+use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::scenario::{SatelliteNeeds, Scenario};
 use passlane_plan::schedule::{Network, Problem, build_candidates, solve};
 use passlane_plan::station::{Antenna, Station};

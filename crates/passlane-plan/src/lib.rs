@@ -1,29 +1,36 @@
-//! Planning on top of `passlane-orbit`: contact windows ([`passes`]), station
-//! definitions ([`station`]), the scenario file ([`scenario`]), close-approach
-//! screening ([`screen`]), encounter geometry and collision probability
-//! ([`encounter`], [`pc`]), CCSDS conjunction messages ([`cdm`]), the
-//! network contact plan ([`schedule`]) and its hand-off files ([`export`]:
-//! CSV, JSON, iCalendar, pointing tables, CCSDS OEM).
+//! Planning on top of `passlane-orbit`, grouped by the operator's three jobs:
 //!
-//! Architecture invariant: this crate has no GUI dependency and does no file
-//! I/O of its own: readers take text, writers take any `std::io::Write`.
+//! - [`contacts`]: contact windows — stations ([`station`]), the pass finder
+//!   ([`passes`]) and pointing tables ([`pointing`]);
+//! - [`approaches`]: close approaches — screening ([`screen`]), encounter
+//!   geometry ([`encounter`]), collision probability ([`pc`]), conjunction
+//!   messages ([`cdm`]) and the assessment of events ([`conjunction`]);
+//! - [`network`]: the network contact plan ([`schedule`]) and its hand-off
+//!   files ([`export`]).
+//!
+//! Shared by all three: the scenario file ([`scenario`]), progress and
+//! cancellation of long work ([`progress`]), and the root finders and
+//! minimisers ([`numeric`]).
+//!
+//! Architecture invariant: this crate has no GUI dependency, does no file I/O
+//! and never prints: readers take text, writers take any `std::io::Write`,
+//! long computations take a [`Progress`].
 
-pub mod passes;
+pub mod approaches;
+pub mod contacts;
+pub mod network;
+pub mod numeric;
+pub mod progress;
 pub mod scenario;
-pub mod station;
 
-// The network plan and the files handed on from it.
-pub mod export;
-pub mod schedule;
+// Each job's modules, also reachable from the crate root.
+pub use approaches::{cdm, conjunction, encounter, job, pc, screen};
+pub use contacts::{passes, pointing, station};
+pub use network::{export, schedule};
 
-// Conjunction assessment: encounter geometry, collision probability, CDM files.
-pub mod cdm;
-pub mod conjunction;
-pub mod encounter;
-pub mod pc;
-pub mod screen;
-
-pub use passes::{Pass, PassOptions, PassReport, Progress, Silent, find_passes, pointing_table};
+pub use passes::{Pass, PassOptions, PassReport, find_passes};
+pub use pointing::pointing_table;
+pub use progress::{Progress, Silent};
 pub use scenario::Scenario;
-pub use schedule::{Plan, PlanError, plan_scenario};
+pub use schedule::{Plan, PlanError, plan_network, plan_scenario};
 pub use station::Station;

@@ -10,7 +10,7 @@
 use passlane_orbit::{EarthOrientation, UtcTime};
 use serde::{Deserialize, Serialize};
 
-use crate::station::{Station, StationError};
+use crate::station::{Station, StationSet, same_station_name};
 
 /// The format version this build writes.
 pub const SCENARIO_FORMAT_VERSION: u32 = 1;
@@ -258,6 +258,25 @@ impl Scenario {
         s
     }
 
+    /// The name of the scenario's calendar (its name, or a default).
+    pub fn calendar_name(&self) -> &str {
+        if self.name.trim().is_empty() {
+            "Passlane plan"
+        } else {
+            self.name.as_str()
+        }
+    }
+
+    /// The originator of messages written for this scenario (its operator,
+    /// or a default).
+    pub fn originator(&self) -> &str {
+        if self.operator.trim().is_empty() {
+            "PASSLANE"
+        } else {
+            self.operator.as_str()
+        }
+    }
+
     /// Checks every field the library relies on; returns (field path, reason).
     pub fn validate(&self) -> Result<(), (String, String)> {
         if let Some(w) = &self.window
@@ -276,17 +295,8 @@ impl Scenario {
                 format!("{} s is outside ±1 s", self.earth_orientation.ut1_utc_s),
             ));
         }
-        let mut names = std::collections::HashSet::new();
-        for (i, s) in self.stations.iter().enumerate() {
-            s.validate()
-                .map_err(|e: StationError| (format!("stations[{i}].{}", e.field), e.message))?;
-            if !names.insert(s.name.as_str()) {
-                return Err((
-                    format!("stations[{i}].name"),
-                    format!("{:?} is used by two stations", s.name),
-                ));
-            }
-        }
+        StationSet::new(self.stations.clone())
+            .map_err(|e| (format!("stations[{}].{}", e.index, e.field), e.message))?;
         for (i, n) in self.satellites.iter().enumerate() {
             let field = |f: &str| format!("satellites[{i}].{f}");
             if !(n.priority.is_finite() && n.priority > 0.0) {
@@ -324,7 +334,11 @@ impl Scenario {
         for (list, refs) in [("pins", &self.pins), ("exclusions", &self.exclusions)] {
             for (i, r) in refs.iter().enumerate() {
                 let field = |f: &str| format!("{list}[{i}].{f}");
-                let Some(station) = self.stations.iter().find(|s| s.name == r.station) else {
+                let Some(station) = self
+                    .stations
+                    .iter()
+                    .find(|s| same_station_name(&s.name, &r.station))
+                else {
                     return Err((
                         field("station"),
                         format!("{:?} is not one of the scenario's stations", r.station),

@@ -12,7 +12,9 @@
 use std::path::PathBuf;
 
 use passlane_orbit::{EarthOrientation, ElementSet, LoadOptions, Propagator, UtcTime, elements};
-use passlane_plan::passes::{PassOptions, Silent, find_passes, look_at};
+use passlane_plan::Silent;
+use passlane_plan::passes::{PassOptions, find_passes};
+use passlane_plan::pointing::look_at;
 use passlane_plan::station::Station;
 use proptest::prelude::*;
 

@@ -7,7 +7,9 @@ use passlane_orbit::{
     EarthOrientation, ElementSet, LoadOptions, Propagator, TemeToEarthFixed, UtcTime, elements,
 };
 use passlane_plan::Scenario;
-use passlane_plan::passes::{Pass, PassOptions, Silent, find_passes, look_at, pointing_table};
+use passlane_plan::Silent;
+use passlane_plan::passes::{Pass, PassOptions, find_passes};
+use passlane_plan::pointing::{look_at, pointing_table};
 use passlane_plan::station::{Channel, LinkDirection, MaskPoint, Station};
 use serde_json::Value;
 

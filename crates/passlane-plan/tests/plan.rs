@@ -9,8 +9,9 @@ use std::path::PathBuf;
 
 use passlane_orbit::{EarthOrientation, ElementSet, LoadOptions, Propagator, UtcTime, elements};
 use passlane_plan::Scenario;
+use passlane_plan::Silent;
 use passlane_plan::export;
-use passlane_plan::passes::{PassOptions, Silent, find_passes};
+use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::scenario::ContactRef;
 use passlane_plan::schedule::{
     Candidate, ConflictKind, Demand, Method, Network, NetworkAntenna, Plan, Problem,
@@ -487,7 +488,7 @@ fn demo_plan_respects_the_network() {
         let site = station.site();
         for when in [c.aos.add_s(0.05), c.los.add_s(-0.05)] {
             let el =
-                passlane_plan::passes::look_at(&prop, &site, when, &EarthOrientation::default())
+                passlane_plan::pointing::look_at(&prop, &site, when, &EarthOrientation::default())
                     .unwrap()
                     .elevation_deg;
             // 10 ms from the crossing the elevation is within ~1 mdeg of the limit.

@@ -4,6 +4,9 @@
 #![allow(clippy::unwrap_used)]
 
 use passlane_orbit::{ElementSet, Propagator, UtcTime};
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+use passlane_plan::Progress;
 use passlane_plan::screen::{
     ScreeningRequest, ScreeningSettings, ScreeningVolume, hermite_state, interpolation_plan,
     relative_geometry, screen, screen_brute_force, screen_with_progress,
@@ -230,12 +233,18 @@ fn cancel_returns_partial_result() {
         end: t("2026-12-08T00:00:00Z"),
         settings: sphere(10.0),
     };
-    let calls = std::cell::Cell::new(0);
-    let r = screen_with_progress(&request, &|f| {
-        calls.set(calls.get() + 1);
-        assert!((0.0..=1.0).contains(&f));
-        calls.get() < 3
-    });
+    // Cancels at the third progress report.
+    struct StopAtThird(AtomicUsize);
+    impl Progress for StopAtThird {
+        fn report(&self, f: f64) {
+            self.0.fetch_add(1, Ordering::Relaxed);
+            assert!((0.0..=1.0).contains(&f));
+        }
+        fn cancelled(&self) -> bool {
+            self.0.load(Ordering::Relaxed) >= 3
+        }
+    }
+    let r = screen_with_progress(&request, &StopAtThird(AtomicUsize::new(0)));
     assert!(r.cancelled);
     assert!(r.screened_until < request.end);
     assert!(r.events.iter().all(|e| e.tca < r.screened_until));

@@ -2,12 +2,12 @@
 //! range over time and the encounter-plane picture (miss vector, combined
 //! covariance ellipses, hard-body circle to scale).
 //!
-//! The screening and the probabilities come from [`screen_and_assess`], which
-//! makes the same library calls in the same order as `passlane screen
-//! --scenario FILE` (fleet against the catalog, plus the fleet's own pairs;
-//! `conjunction::assess` with the scenario's assumed covariance and the summed
-//! hard-body radii), so the window and the command line give the same events
-//! and the same Pc. It runs on a worker thread.
+//! The screening and the probabilities come from the planner's
+//! [`screen_and_assess`], the function `passlane screen --scenario FILE`
+//! calls (fleet against the catalog, plus the fleet's own pairs; the
+//! scenario's assumed covariance and summed hard-body radii), so the window
+//! and the command line give the same events and the same Pc. It runs on a
+//! worker thread.
 //!
 //! Element sets carry no covariance, so the Pc column uses the covariance the
 //! scenario *assumes* (its label says which); "Pc max" is the largest
@@ -17,79 +17,14 @@
 use eframe::egui::{self, Align2, FontId, Pos2, Sense, Shape, Stroke, vec2};
 use egui_plot::{Line, Plot, PlotPoints};
 use passlane_orbit::frames::{norm, sub};
-use passlane_orbit::{ElementSet, Propagator, UtcTime};
-use passlane_plan::Scenario;
-use passlane_plan::conjunction::{AssumedCovariance, EventRisk, assess_events};
-use passlane_plan::screen::{
-    CloseApproach, ScreeningRequest, ScreeningResult, ScreeningSettings, ScreeningVolume,
-    screen_with_progress,
-};
+use passlane_orbit::{Propagator, UtcTime};
+use passlane_plan::conjunction::{AssumedCovariance, EventRisk};
+use passlane_plan::job::{ScreeningJob, ScreeningOutcome, screen_and_assess};
+use passlane_plan::screen::{CloseApproach, ScreeningVolume};
 
 use crate::jobs::{Job, Poll, progress_ui};
 use crate::palette;
 use crate::state::{AppState, time_label};
-
-/// A finished screening with the probability of each event (or why there is none).
-#[derive(Debug, Clone)]
-pub struct ScreeningOutcome {
-    pub result: ScreeningResult,
-    /// One per event, in the same order.
-    pub risks: Vec<Result<EventRisk, String>>,
-    /// [`AssumedCovariance::label`] of the covariance used.
-    pub covariance_label: String,
-}
-
-/// Screens the fleet against the catalog (or against itself when there is no
-/// catalog) over `start..end`, adds the fleet's own pairs when a catalog is
-/// screened, and assesses every event: the chain `passlane screen --scenario`
-/// runs. `keep_going` gets the fraction done and returns false to cancel.
-pub fn screen_and_assess(
-    fleet: &[ElementSet],
-    catalog: &[ElementSet],
-    scenario: &Scenario,
-    start: UtcTime,
-    end: UtcTime,
-    keep_going: &dyn Fn(f64) -> bool,
-) -> ScreeningOutcome {
-    let secondaries = (!catalog.is_empty()).then_some(catalog);
-    let request = ScreeningRequest {
-        primaries: fleet,
-        secondaries,
-        start,
-        end,
-        settings: ScreeningSettings {
-            volume: ScreeningVolume::Sphere {
-                radius_km: scenario.screening.threshold_km,
-            },
-            ..ScreeningSettings::default()
-        },
-    };
-    // The fleet's own pairs are a small second pass: give it the last tenth.
-    let own_pairs = secondaries.is_some() && fleet.len() > 1;
-    let first_share = if own_pairs { 0.9 } else { 1.0 };
-    let mut result = screen_with_progress(&request, &|f| keep_going(f * first_share));
-    if own_pairs && !result.cancelled {
-        let own = screen_with_progress(
-            &ScreeningRequest {
-                secondaries: None,
-                ..request
-            },
-            &|f| keep_going(first_share + f * (1.0 - first_share)),
-        );
-        result.events.extend(own.events);
-        result
-            .events
-            .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
-        result.cancelled |= own.cancelled;
-    }
-    let risks = assess_events(&result.events, fleet.iter().chain(catalog), scenario, None);
-    let covariance = AssumedCovariance::from_scenario(scenario);
-    ScreeningOutcome {
-        result,
-        risks,
-        covariance_label: covariance.label(),
-    }
-}
 
 /// One close-approach row as the table shows it.
 #[derive(Debug, Clone, PartialEq)]
@@ -324,11 +259,21 @@ impl ApproachesView {
             state.doc.revision,
             Some(ctx),
             move |p| {
-                use passlane_plan::Progress;
-                screen_and_assess(&fleet, &catalog, &scenario, start, end, &|f| {
-                    p.report(f);
-                    !p.cancelled()
-                })
+                screen_and_assess(
+                    &ScreeningJob {
+                        fleet: &fleet,
+                        catalog: &catalog,
+                        all_vs_all: false,
+                        start,
+                        end,
+                        volume: ScreeningVolume::Sphere {
+                            radius_km: scenario.screening.threshold_km,
+                        },
+                        scenario: &scenario,
+                        hard_body_radius_override_m: None,
+                    },
+                    p,
+                )
             },
         ));
     }
@@ -452,7 +397,7 @@ impl ApproachesView {
         let label = self
             .outcome
             .as_ref()
-            .map(|o| o.covariance_label.clone())
+            .map(|o| o.covariance.label())
             .unwrap_or_default();
         egui::Grid::new("approach-table")
             .striped(true)

@@ -8,7 +8,7 @@ use std::path::PathBuf;
 use eframe::egui;
 use passlane_orbit::{OrbitSummary, Severity, element_age_days};
 use passlane_plan::Station;
-use passlane_plan::station::{Channel, LinkDirection, MaskPoint, MountLimits};
+use passlane_plan::station::{Channel, LinkDirection, MaskPoint, MountLimits, unused_station_name};
 
 use crate::palette;
 use crate::state::{AppState, time_label};
@@ -154,14 +154,15 @@ impl FleetView {
                 ui.selectable_value(&mut self.selected_station, i, &s.name);
             }
             if ui.button("Add station").clicked() {
-                let n = state.doc.scenario.stations.len() + 1;
-                state.doc.scenario.stations.push(Station::new(
-                    &format!("Station {n}"),
-                    0.0,
-                    0.0,
-                    0.0,
-                ));
-                self.selected_station = n - 1;
+                // A name no station has yet: passes and plans identify
+                // stations by index, but people read names.
+                let name = unused_station_name(&state.doc.scenario.stations, "Station");
+                state
+                    .doc
+                    .scenario
+                    .stations
+                    .push(Station::new(&name, 0.0, 0.0, 0.0));
+                self.selected_station = state.doc.scenario.stations.len() - 1;
                 changed = true;
             }
         });

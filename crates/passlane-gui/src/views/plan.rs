@@ -2,11 +2,12 @@
 //! spacecraft's demand that meets, and which contacts lost out to which (and
 //! why), with an export of the hand-off files.
 //!
-//! The plan comes from [`plan_document`], the chain `passlane plan --scenario`
-//! runs (pass search with the scenario's window and Earth orientation, then
-//! `schedule::plan_scenario`), on a worker thread. The export writes the same
-//! files as `passlane plan --out DIR` through the library writers and the
-//! crash-safe file writer, also on a worker thread.
+//! The plan comes from the planner's [`plan_network`], the function
+//! `passlane plan --scenario` calls (pass search with the scenario's window
+//! and Earth orientation, then the plan), on a worker thread. The export
+//! writes the same files as `passlane plan --out DIR` (the planner's
+//! [`hand_off_files`] through the crash-safe folder writer), also on a
+//! worker thread.
 
 use std::path::{Path, PathBuf};
 use std::sync::mpsc::{Receiver, channel};
@@ -14,9 +15,9 @@ use std::sync::mpsc::{Receiver, channel};
 use eframe::egui::{self, Align2, FontId, Pos2, Rect, Sense, Stroke, vec2};
 use passlane_orbit::{ElementSet, UtcTime};
 
-use passlane_plan::passes::{PassOptions, find_passes};
-use passlane_plan::schedule::{Method, Plan, plan_scenario};
-use passlane_plan::{Progress, Scenario};
+use passlane_plan::Scenario;
+use passlane_plan::export::{HandOffContext, hand_off_files};
+use passlane_plan::schedule::{Method, Plan, plan_network};
 
 use crate::jobs::{Job, JobProgress, Poll, progress_ui};
 use crate::palette;
@@ -29,40 +30,16 @@ pub const POINTING_STEP_S: f64 = 1.0;
 pub const TRANSMIT_CAUTION: &str = "Pointing and Doppler tables are for tracking. Transmitting needs a licence \
 for the station and frequency and follows local rules.";
 
-/// Finds the passes and makes the plan for a scenario: the command line's chain.
-pub fn plan_document(
-    scenario: &Scenario,
-    fleet: &[ElementSet],
-    start: UtcTime,
-    end: UtcTime,
-    progress: &dyn Progress,
-) -> Result<Plan, String> {
-    let eop = scenario.earth_orientation;
-    let options = PassOptions {
-        earth_orientation: eop,
-        ..PassOptions::new(start, end)
-    };
-    let report = find_passes(fleet, &scenario.stations, &options, progress);
-    if report.cancelled {
-        return Err("cancelled during the pass search".into());
-    }
-    let mut plan = plan_scenario(scenario, fleet, &report.passes, start, end, &eop, progress)
-        .map_err(|e| e.to_string())?;
-    // Spacecraft that could not be propagated are worth a warning beside the plan.
-    plan.warnings.extend(
-        report
-            .failures
-            .iter()
-            .map(|f| format!("{} ({}): {}", f.satellite, f.catalog_number, f.message)),
-    );
-    Ok(plan)
+/// What an export wrote: the folder, the file count and what was left out.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ExportSummary {
+    pub dir: PathBuf,
+    pub files: usize,
+    pub warnings: Vec<String>,
 }
 
-/// What an export wrote.
-pub type ExportSummary = passlane_files::plan_folder::FolderSummary;
-
 /// Writes the plan's hand-off files into `dir`, exactly as
-/// `passlane plan --out DIR` does (the same library function).
+/// `passlane plan --out DIR` does (the same planner and writer functions).
 pub fn export_plan(
     dir: &Path,
     plan: &Plan,
@@ -70,14 +47,30 @@ pub fn export_plan(
     scenario: &Scenario,
     created: UtcTime,
 ) -> Result<ExportSummary, String> {
-    passlane_files::plan_folder::write_plan_folder(
-        dir,
+    let hand_off = hand_off_files(
         plan,
-        fleet,
-        scenario,
-        created,
-        POINTING_STEP_S,
-    )
+        &HandOffContext {
+            fleet,
+            stations: &scenario.stations,
+            earth_orientation: scenario.earth_orientation,
+            calendar_name: scenario.calendar_name(),
+            originator: scenario.originator(),
+            created,
+            pointing_step_s: POINTING_STEP_S,
+        },
+    );
+    let written = passlane_files::folder::write_folder(
+        dir,
+        hand_off
+            .files
+            .iter()
+            .map(|f| (f.relative_path.as_str(), f.contents.as_slice())),
+    )?;
+    Ok(ExportSummary {
+        dir: written.dir,
+        files: written.files,
+        warnings: hand_off.warnings,
+    })
 }
 
 /// The plan view's state: the last plan, the running jobs and the export folder.
@@ -193,7 +186,9 @@ impl PlanView {
             "Planning",
             state.doc.revision,
             Some(ctx),
-            move |p: &JobProgress| plan_document(&scenario, &fleet, start, end, p),
+            move |p: &JobProgress| {
+                plan_network(&scenario, &fleet, start, end, p).map_err(|e| e.to_string())
+            },
         ));
     }
 
@@ -253,19 +248,28 @@ impl PlanView {
 
     /// Kept contacts as bars, one row per antenna, coloured by spacecraft.
     fn antenna_timeline(&self, ui: &mut egui::Ui, state: &AppState, plan: &Plan) {
-        let mut antennas: Vec<(String, String)> = plan
+        // Rows: (station index, station name, antenna name).
+        let mut antennas: Vec<(usize, String, String)> = plan
             .contacts
             .iter()
-            .map(|c| (c.station.clone(), c.antenna.clone()))
+            .map(|c| (c.station_index, c.station.clone(), c.antenna.clone()))
             .collect();
-        for a in state.doc.scenario.stations.iter().flat_map(|s| {
-            s.antennas
-                .iter()
-                .map(move |a| (s.name.clone(), a.name.clone()))
-        }) {
+        for a in state
+            .doc
+            .scenario
+            .stations
+            .iter()
+            .enumerate()
+            .flat_map(|(i, s)| {
+                s.antennas
+                    .iter()
+                    .map(move |a| (i, s.name.clone(), a.name.clone()))
+            })
+        {
             antennas.push(a);
         }
-        antennas.sort();
+        // Alphabetical by station, then antenna.
+        antennas.sort_by(|a, b| (&a.1, &a.2, a.0).cmp(&(&b.1, &b.2, b.0)));
         antennas.dedup();
         // Legend: colour and name of each spacecraft, so colour is never the only key.
         ui.horizontal_wrapped(|ui| {
@@ -309,7 +313,7 @@ impl PlanView {
             day += 86_400.0;
         }
         let mut hovered = None;
-        for (row, (station, antenna)) in antennas.iter().enumerate() {
+        for (row, (station_index, station, antenna)) in antennas.iter().enumerate() {
             let y = bars.top() + row_h * row as f32;
             painter.text(
                 Pos2::new(rect.left() + 4.0, y + row_h / 2.0),
@@ -321,7 +325,7 @@ impl PlanView {
             for c in plan
                 .contacts
                 .iter()
-                .filter(|c| &c.station == station && &c.antenna == antenna)
+                .filter(|c| c.station_index == *station_index && &c.antenna == antenna)
             {
                 let x0 = x_of(c.aos);
                 let x1 = x_of(c.los).max(x0 + 2.0);

@@ -7,7 +7,7 @@
 use eframe::egui::{self, Align2, Color32, FontId, Pos2, Sense, Shape, Stroke, vec2};
 use egui_plot::{Legend, Line, Plot, PlotPoints, VLine};
 use passlane_orbit::{Illumination, UtcTime};
-use passlane_plan::passes::PointingRow;
+use passlane_plan::pointing::PointingRow;
 use passlane_plan::{Pass, Station, pointing_table};
 
 use crate::palette;
@@ -54,12 +54,7 @@ impl SkyView {
             .fleet
             .iter()
             .find(|s| s.catalog_number == pass.catalog_number);
-        let station = state
-            .doc
-            .scenario
-            .stations
-            .iter()
-            .find(|s| s.name == pass.station);
+        let station = state.doc.scenario.stations.get(pass.station_index);
         if let (Some(set), Some(station)) = (set, station) {
             match pointing_table(
                 set,
@@ -86,14 +81,7 @@ impl SkyView {
             ui.label("Select a pass in the list or on the contact timeline.");
             return;
         };
-        let Some(station) = state
-            .doc
-            .scenario
-            .stations
-            .iter()
-            .find(|s| s.name == pass.station)
-            .cloned()
-        else {
+        let Some(station) = state.doc.scenario.stations.get(pass.station_index).cloned() else {
             return;
         };
         ui.horizontal_wrapped(|ui| {

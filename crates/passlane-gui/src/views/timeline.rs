@@ -165,9 +165,12 @@ impl TimelineView {
             if p.los < t0 || p.aos > t1 {
                 continue;
             }
-            let Some(row) = stations.iter().position(|s| *s == p.station) else {
+            // One row per station of the scenario, in its order: the pass
+            // names its station by that index.
+            let row = p.station_index;
+            if row >= stations.len() {
                 continue;
-            };
+            }
             let y = bars.top() + row as f32 * ROW_H;
             let x0 = x_of(p.aos).max(bars.left());
             let x1 = x_of(p.los).min(bars.right()).max(x0 + 2.0);

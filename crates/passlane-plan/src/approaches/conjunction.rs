@@ -9,8 +9,6 @@
 //! on that assumption's scale and is what a TLE-only screening can honestly
 //! report.
 
-use passlane_orbit::constants::EARTH_ROTATION_RAD_S;
-use passlane_orbit::frames::cross;
 use passlane_orbit::{EarthOrientation, ElementSet, StateTeme, TemeToEarthFixed, UtcTime};
 use serde::Serialize;
 
@@ -172,23 +170,6 @@ pub fn assess_events<'a>(
             assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
         })
         .collect()
-}
-
-/// Converts an Earth-fixed (ITRF) state to the instantaneous inertial frame
-/// aligned with it, by adding back ω × r to the velocity. RTN frames and
-/// relative velocities must be formed from inertial velocities: with
-/// Earth-fixed ones the in-track axis tilts by up to ~3.5° in LEO.
-pub fn earth_fixed_to_aligned_inertial(s: &StateKm) -> StateKm {
-    let w = [0.0, 0.0, EARTH_ROTATION_RAD_S];
-    let wr = cross(&w, &s.position_km);
-    StateKm {
-        position_km: s.position_km,
-        velocity_km_s: [
-            s.velocity_km_s[0] + wr[0],
-            s.velocity_km_s[1] + wr[1],
-            s.velocity_km_s[2] + wr[2],
-        ],
-    }
 }
 
 /// Settings for writing a CDM from a screening event.

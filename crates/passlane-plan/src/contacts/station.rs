@@ -340,6 +340,104 @@ impl Station {
     }
 }
 
+/// Stations checked together: each one valid, and no two with the same name
+/// (compared without regard to case or surrounding blanks, as the command
+/// line and the scenario's pins match names). Everything downstream — passes,
+/// the plan, the hand-off files, the window — identifies a station by its
+/// index in such a list.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct StationSet {
+    stations: Vec<Station>,
+}
+
+/// Why a list of stations was refused: `index` is the entry at fault.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StationListError {
+    pub index: usize,
+    /// Field inside the entry (`name`, `latitude_deg`, `horizon_mask[2]`...).
+    pub field: String,
+    pub message: String,
+}
+
+impl std::fmt::Display for StationListError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "stations[{}].{}: {}",
+            self.index, self.field, self.message
+        )
+    }
+}
+
+impl std::error::Error for StationListError {}
+
+/// The form of a name that uniqueness is checked on.
+fn name_key(name: &str) -> String {
+    name.trim().to_lowercase()
+}
+
+/// Whether two station names name the same station (ignoring case and
+/// surrounding blanks): the one rule for matching a name typed by a user or
+/// written in a scenario (pins, exclusions, `--station NAME`).
+pub fn same_station_name(a: &str, b: &str) -> bool {
+    name_key(a) == name_key(b)
+}
+
+impl StationSet {
+    /// Validates every station and the uniqueness of their names; the error
+    /// names both entries of a clash.
+    pub fn new(stations: Vec<Station>) -> Result<Self, StationListError> {
+        let mut seen: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+        for (i, s) in stations.iter().enumerate() {
+            s.validate().map_err(|e| StationListError {
+                index: i,
+                field: e.field,
+                message: e.message,
+            })?;
+            if let Some(&first) = seen.get(&name_key(&s.name)) {
+                return Err(StationListError {
+                    index: i,
+                    field: "name".into(),
+                    message: format!(
+                        "{:?} is already the name of stations[{first}] ({:?}); station names must be unique",
+                        s.name, stations[first].name
+                    ),
+                });
+            }
+            seen.insert(name_key(&s.name), i);
+        }
+        Ok(StationSet { stations })
+    }
+
+    /// Index of the station with this name (ignoring case and blanks).
+    pub fn index_of(&self, name: &str) -> Option<usize> {
+        let key = name_key(name);
+        self.stations.iter().position(|s| name_key(&s.name) == key)
+    }
+
+    pub fn into_vec(self) -> Vec<Station> {
+        self.stations
+    }
+}
+
+impl std::ops::Deref for StationSet {
+    type Target = [Station];
+    fn deref(&self) -> &[Station] {
+        &self.stations
+    }
+}
+
+/// A name for a new station that no station of `existing` has yet:
+/// `"{base} N"` with the smallest N ≥ 1 that is free.
+pub fn unused_station_name(existing: &[Station], base: &str) -> String {
+    let taken: std::collections::HashSet<String> =
+        existing.iter().map(|s| name_key(&s.name)).collect();
+    (1..)
+        .map(|n| format!("{base} {n}"))
+        .find(|n| !taken.contains(&name_key(n)))
+        .unwrap_or_else(|| base.to_string())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -381,5 +479,25 @@ mod tests {
         assert_eq!(e.field, "latitude_deg");
         let e = Station::parse_inline("X,1,zero,0").unwrap_err();
         assert_eq!(e.field, "LON_DEG");
+    }
+
+    #[test]
+    fn a_station_list_refuses_two_stations_of_one_name_and_names_both() {
+        let a = Station::new("Ridge", 10.0, 20.0, 0.0);
+        let b = Station::new("  ridge ", 11.0, 21.0, 0.0);
+        let err =
+            StationSet::new(vec![a.clone(), Station::new("Other", 0.0, 0.0, 0.0), b]).unwrap_err();
+        assert_eq!(err.index, 2);
+        assert_eq!(err.field, "name");
+        assert!(err.message.contains("stations[0]"), "{err}");
+        let set = StationSet::new(vec![a.clone()]).unwrap();
+        assert_eq!(set.index_of("RIDGE"), Some(0));
+        assert_eq!(set.len(), 1);
+        assert_eq!(unused_station_name(&[a.clone()], "Ridge"), "Ridge 1");
+        let two = vec![
+            Station::new("Station 1", 0.0, 0.0, 0.0),
+            Station::new("station 2", 0.0, 0.0, 0.0),
+        ];
+        assert_eq!(unused_station_name(&two, "Station"), "Station 3");
     }
 }

@@ -21,6 +21,7 @@
 //! taken to be at TCA; any component of the miss along Δv is dropped by the
 //! projection) and does not propagate covariances.
 
+use passlane_orbit::constants::EARTH_ROTATION_RAD_S;
 use passlane_orbit::frames::{Vec3, cross, dot, norm, scale, sub, unit};
 
 use crate::pc::{Encounter2d, PcInputError, PrincipalAxes, principal_axes};
@@ -151,6 +152,23 @@ pub fn relative_geometry(s1: &StateKm, s2: &StateKm) -> Result<RelativeGeometry,
         relative_speed_km_s: norm(&dv),
         approach_angle_deg: cos_angle.acos().to_degrees(),
     })
+}
+
+/// Converts an Earth-fixed (ITRF) state to the instantaneous inertial frame
+/// aligned with it, by adding back ω × r to the velocity. RTN frames and
+/// relative velocities must be formed from inertial velocities: with
+/// Earth-fixed ones the in-track axis tilts by up to ~3.5° in LEO.
+pub fn earth_fixed_to_aligned_inertial(s: &StateKm) -> StateKm {
+    let w = [0.0, 0.0, EARTH_ROTATION_RAD_S];
+    let wr = cross(&w, &s.position_km);
+    StateKm {
+        position_km: s.position_km,
+        velocity_km_s: [
+            s.velocity_km_s[0] + wr[0],
+            s.velocity_km_s[1] + wr[1],
+            s.velocity_km_s[2] + wr[2],
+        ],
+    }
 }
 
 /// The encounter plane with the projected miss and covariance.

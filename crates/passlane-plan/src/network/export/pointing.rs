@@ -6,7 +6,7 @@
 use std::io::{self, Write};
 
 use super::{csv_field, slug};
-use crate::passes::PointingRow;
+use crate::pointing::PointingRow;
 use crate::schedule::PlannedContact;
 use crate::station::Station;
 

@@ -7,20 +7,8 @@ use passlane_orbit::frames::{Vec3, dot, norm, sub};
 use passlane_orbit::{PropagationError, Propagator, StateTeme, UtcTime};
 
 use super::{CloseApproach, ScreeningVolume};
-use crate::encounter::{self, StateKm};
-
-/// Relative geometry of object 2 with respect to object 1 at one instant.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct RelativeGeometry {
-    pub miss_distance_km: f64,
-    /// Components of r₂ − r₁ along R = r̂₁, I = C × R, C = (r₁ × v₁)̂.
-    pub radial_km: f64,
-    pub in_track_km: f64,
-    pub cross_track_km: f64,
-    pub relative_speed_km_s: f64,
-    /// Angle between the two velocity vectors, degrees.
-    pub approach_angle_deg: f64,
-}
+use crate::encounter::{self, RelativeGeometry, StateKm};
+use crate::numeric::bisect_boundary;
 
 /// RIC components of `r2 − r1` in the frame of object 1, with the other
 /// relative quantities (CCSDS convention: object 1 is the reference). The
@@ -32,14 +20,7 @@ pub fn relative_geometry(s1: &StateTeme, s2: &StateTeme) -> RelativeGeometry {
         velocity_km_s: s.velocity_km_s,
     };
     match encounter::relative_geometry(&k(s1), &k(s2)) {
-        Ok(g) => RelativeGeometry {
-            miss_distance_km: g.miss_distance_km,
-            radial_km: g.radial_km,
-            in_track_km: g.in_track_km,
-            cross_track_km: g.cross_track_km,
-            relative_speed_km_s: g.relative_speed_km_s,
-            approach_angle_deg: g.approach_angle_deg,
-        },
+        Ok(g) => g,
         // r × v = 0 (a radial trajectory) has no RIC frame: keep the distance
         // and speed, and say the components are unknown.
         Err(_) => RelativeGeometry {
@@ -47,6 +28,7 @@ pub fn relative_geometry(s1: &StateTeme, s2: &StateTeme) -> RelativeGeometry {
             radial_km: f64::NAN,
             in_track_km: f64::NAN,
             cross_track_km: f64::NAN,
+            relative_velocity_rtn_km_s: [f64::NAN; 3],
             relative_speed_km_s: norm(&sub(&s2.velocity_km_s, &s1.velocity_km_s)),
             approach_angle_deg: f64::NAN,
         },
@@ -167,21 +149,16 @@ fn bisect(
     p1: &Propagator,
     p2: &Propagator,
     volume: &ScreeningVolume,
-    mut inside: UtcTime,
-    mut outside: UtcTime,
+    inside: UtcTime,
+    outside: UtcTime,
 ) -> Result<UtcTime, PropagationError> {
-    while outside.s_since(inside).abs() > 5e-4 {
-        let mid =
-            UtcTime::from_s_since_j2000(0.5 * (inside.s_since_j2000() + outside.s_since_j2000()));
-        if volume_measure(p1, p2, volume, mid)? <= 1.0 {
-            inside = mid;
-        } else {
-            outside = mid;
-        }
-    }
-    Ok(UtcTime::from_s_since_j2000(
-        0.5 * (inside.s_since_j2000() + outside.s_since_j2000()),
-    ))
+    let s = bisect_boundary(
+        |t_s| Ok(volume_measure(p1, p2, volume, UtcTime::from_s_since_j2000(t_s))? <= 1.0),
+        inside.s_since_j2000(),
+        outside.s_since_j2000(),
+        5e-4,
+    )?;
+    Ok(UtcTime::from_s_since_j2000(s))
 }
 
 /// Identity of one screened object, as the event reports it.

@@ -1,0 +1,235 @@
+//! CCSDS 508.0-B-1 Conjunction Data Message (CDM), KVN form: read, write and
+//! re-assess.
+//!
+//! A CDM has a header, relative metadata (TCA, miss distance and relative
+//! state in object 1's RTN frame, screening volume, reported probability),
+//! then one block per object (OBJECT1, OBJECT2): metadata, optional orbit
+//! determination and physical parameters, the state (km, km/s) and the lower
+//! triangle of the 6×6 RTN covariance (m², m²/s, m²/s²).
+//!
+//! - [`Cdm::parse`] reads KVN text and returns a validated [`Cdm`] or a
+//!   [`CdmError`] naming file, line, keyword and reason: unknown or misplaced
+//!   keyword, missing mandatory keyword, value that is not a number or time,
+//!   a unit that is not the standard's or sits before the value, and a
+//!   position covariance that is not positive definite.
+//! - [`Cdm::write_kvn`] writes the keywords in the standard's order.
+//! - [`Cdm::recompute`] rebuilds the encounter from the two states and
+//!   covariances and computes the probability by every method of
+//!   [`crate::pc`].
+//!
+//! The keyword tables below follow CCSDS 508.0-B-1 (2013), sections 3.2–3.5,
+//! as we recall them: keyword names, order and which are mandatory are from
+//! memory of the standard's tables, as are the units of the optional
+//! drag/SRP/thrust covariance rows (which we therefore pass through without
+//! checking). COMMENT lines are accepted anywhere inside a section (the
+//! standard allows them at the start of each section and logical block) and
+//! are written back at the start of their section.
+//!
+//! This module does no file I/O: text comes in as `&str`, output goes to any
+//! `io::Write`. It does not handle the XML form of the CDM.
+
+mod keywords;
+mod kvn_read;
+mod kvn_write;
+
+use passlane_orbit::UtcTime;
+use serde::Serialize;
+
+use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
+use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
+
+pub use keywords::{COVARIANCE_KEYS, mandatory_keywords};
+
+/// A CDM that could not be read, with where and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CdmError {
+    pub file: String,
+    /// 1-based line; for a missing keyword, the line where its block ended
+    /// (0 if the text is empty).
+    pub line: usize,
+    pub keyword: String,
+    pub reason: String,
+}
+
+impl std::fmt::Display for CdmError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "{}:{}: {}: {}",
+            self.file, self.line, self.keyword, self.reason
+        )
+    }
+}
+
+impl std::error::Error for CdmError {}
+
+/// A keyword kept as read (optional keywords without a typed field).
+#[derive(Debug, Clone, PartialEq)]
+pub struct KvnField {
+    pub keyword: String,
+    pub value: String,
+    pub unit: Option<String>,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct CdmHeader {
+    pub comments: Vec<String>,
+    pub ccsds_cdm_vers: String,
+    pub creation_date: UtcTime,
+    pub originator: String,
+    pub message_for: Option<String>,
+    pub message_id: String,
+}
+
+/// Relative metadata; positions and velocities are object 2 relative to
+/// object 1 in object 1's RTN frame.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CdmRelative {
+    pub comments: Vec<String>,
+    pub tca: UtcTime,
+    pub miss_distance_m: f64,
+    pub relative_speed_m_s: Option<f64>,
+    pub relative_position_rtn_m: [Option<f64>; 3],
+    pub relative_velocity_rtn_m_s: [Option<f64>; 3],
+    pub start_screen_period: Option<UtcTime>,
+    pub stop_screen_period: Option<UtcTime>,
+    pub screen_volume_frame: Option<String>,
+    pub screen_volume_shape: Option<String>,
+    pub screen_volume_xyz_m: [Option<f64>; 3],
+    pub screen_entry_time: Option<UtcTime>,
+    pub screen_exit_time: Option<UtcTime>,
+    pub collision_probability: Option<f64>,
+    pub collision_probability_method: Option<String>,
+}
+
+/// One object's block.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CdmObject {
+    pub comments: Vec<String>,
+    /// `OBJECT1` or `OBJECT2`.
+    pub object: String,
+    pub object_designator: String,
+    pub catalog_name: String,
+    pub object_name: String,
+    pub international_designator: String,
+    pub ephemeris_name: String,
+    pub covariance_method: String,
+    pub maneuverable: String,
+    pub ref_frame: String,
+    /// State in REF_FRAME (km, km/s).
+    pub state: StateKm,
+    /// The 21 covariance terms in the order of [`COVARIANCE_KEYS`]
+    /// (m², m²/s, m²/s²).
+    pub covariance_rtn: [f64; 21],
+    /// Every other keyword present, as read, in the order read.
+    pub other: Vec<KvnField>,
+}
+
+impl CdmObject {
+    /// The 3×3 position block of the RTN covariance (m²).
+    pub fn position_covariance_rtn_m2(&self) -> Mat3 {
+        let c = &self.covariance_rtn;
+        [[c[0], c[1], c[3]], [c[1], c[2], c[4]], [c[3], c[4], c[5]]]
+    }
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct Cdm {
+    pub header: CdmHeader,
+    pub relative: CdmRelative,
+    pub object1: CdmObject,
+    pub object2: CdmObject,
+}
+
+/// The re-assessment of a CDM; field names are part of the command-line and
+/// JSON output.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct CdmAssessment {
+    /// TCA as given in the CDM, ISO 8601 UTC with milliseconds.
+    pub tca: String,
+    /// Recomputed from the two states (m).
+    pub miss_distance_m: f64,
+    /// Recomputed from the two states (m/s).
+    pub relative_speed_m_s: f64,
+    /// Foster-style 2-D numerical integration.
+    pub pc: f64,
+    pub pc_alfano: f64,
+    pub pc_chan: f64,
+    /// Maximum over the scale of the CDM's combined covariance, shape kept.
+    pub pc_max: f64,
+    /// Miss of object 2 relative to object 1 in object 1's RTN frame (m).
+    pub radial_m: f64,
+    pub in_track_m: f64,
+    pub cross_track_m: f64,
+    pub approach_angle_deg: f64,
+    pub hard_body_radius_m: f64,
+    /// Encounter plane, principal axes of the combined covariance (m).
+    pub sigma_x_m: f64,
+    pub sigma_y_m: f64,
+    pub miss_x_m: f64,
+    pub miss_y_m: f64,
+    /// Where the covariance came from; always "CDM" here.
+    pub covariance_source: String,
+    /// As reported in the CDM, for comparison.
+    pub cdm_miss_distance_m: f64,
+    pub cdm_collision_probability: Option<f64>,
+}
+
+// ---------------------------------------------------------------------------
+// Reading
+// ---------------------------------------------------------------------------
+
+impl Cdm {
+    /// Rebuilds the encounter from the two states and covariances and computes
+    /// the probability by every method, for a combined hard-body radius (m).
+    ///
+    /// Inertial states (EME2000, GCRF) are used as given. Earth-fixed (ITRF)
+    /// states get the Earth-rotation term ω × r added back to their velocity
+    /// first, because each object's RTN axes (in which its covariance is
+    /// given) are defined by its inertial velocity; the frames' orientation
+    /// does not matter for the encounter geometry as long as both states share
+    /// it. Both states must be in the same frame.
+    pub fn recompute(&self, hard_body_radius_m: f64) -> Result<CdmAssessment, EncounterError> {
+        // RTN axes need inertial velocities: an Earth-fixed (ITRF) state gets
+        // ω × r added back (see encounter::earth_fixed_to_aligned_inertial).
+        let inertial = |o: &CdmObject| {
+            if o.ref_frame.trim().to_ascii_uppercase().starts_with("ITRF") {
+                crate::encounter::earth_fixed_to_aligned_inertial(&o.state)
+            } else {
+                o.state
+            }
+        };
+        let (s1, s2) = (&inertial(&self.object1), &inertial(&self.object2));
+        let g = relative_geometry(s1, s2)?;
+        let plane = encounter_plane(
+            s1,
+            &self.object1.position_covariance_rtn_m2(),
+            s2,
+            &self.object2.position_covariance_rtn_m2(),
+        )?;
+        let e = plane
+            .encounter_2d(hard_body_radius_m)
+            .map_err(EncounterError::Covariance)?;
+        Ok(CdmAssessment {
+            tca: self.relative.tca.to_iso_ms(),
+            miss_distance_m: g.miss_distance_km * 1000.0,
+            relative_speed_m_s: g.relative_speed_km_s * 1000.0,
+            pc: pc_foster(&e),
+            pc_alfano: pc_alfano(&e),
+            pc_chan: pc_chan(&e),
+            pc_max: pc_max(&e).pc_max,
+            radial_m: g.radial_km * 1000.0,
+            in_track_m: g.in_track_km * 1000.0,
+            cross_track_m: g.cross_track_km * 1000.0,
+            approach_angle_deg: g.approach_angle_deg,
+            hard_body_radius_m,
+            sigma_x_m: e.sigma_x_m(),
+            sigma_y_m: e.sigma_y_m(),
+            miss_x_m: e.miss_x_m(),
+            miss_y_m: e.miss_y_m(),
+            covariance_source: "CDM".to_string(),
+            cdm_miss_distance_m: self.relative.miss_distance_m,
+            cdm_collision_probability: self.relative.collision_probability,
+        })
+    }
+}

@@ -1,0 +1,195 @@
+//! What the pass finder keeps per station and per satellite: stations with
+//! their visibility test precomputed, the Earth-fixed samples of one satellite
+//! with Hermite interpolation between them, and the orbit-derived bounds that
+//! let the finder skip ahead.
+
+use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
+use passlane_orbit::frames::{Vec3, dot, norm, sub};
+use passlane_orbit::{EarthFixed, ElementSet, Site, UtcTime};
+
+use crate::station::Station;
+
+/// A station with what the finder needs precomputed.
+pub(super) struct PreparedStation {
+    /// Index in the station list the search was given.
+    pub(super) index: usize,
+    pub(super) station: Station,
+    pub(super) site: Site,
+    /// Unit vector of the site's geocentric position.
+    pub(super) up_geocentric: Vec3,
+    pub(super) site_radius_km: f64,
+    pub(super) lowest_horizon_deg: f64,
+    pub(super) has_mask: bool,
+    pub(super) sin_min_elevation: f64,
+}
+
+impl PreparedStation {
+    pub(super) fn new(
+        index: usize,
+        station: &Station,
+        min_elevation_override: Option<f64>,
+    ) -> Self {
+        let mut station = station.clone();
+        if let Some(m) = min_elevation_override {
+            station.min_elevation_deg = m;
+        }
+        station.normalise();
+        let site = station.site();
+        let r = norm(&site.position_km);
+        PreparedStation {
+            index,
+            up_geocentric: [
+                site.position_km[0] / r,
+                site.position_km[1] / r,
+                site.position_km[2] / r,
+            ],
+            site_radius_km: r,
+            lowest_horizon_deg: station.lowest_horizon_deg(),
+            has_mask: !station.horizon_mask.is_empty(),
+            sin_min_elevation: station.min_elevation_deg.to_radians().sin(),
+            site,
+            station,
+        }
+    }
+
+    /// Half-angle of the visibility cone (Earth central angle) for a satellite at
+    /// radius `r_km`, with the lowest horizon, padded by 0.5° for the difference
+    /// between geodetic and geocentric verticals.
+    pub(super) fn cone_half_angle_rad(&self, r_km: f64) -> f64 {
+        let e = self.lowest_horizon_deg.to_radians();
+        let x = (self.site_radius_km / r_km * e.cos()).clamp(-1.0, 1.0);
+        x.acos() - e + 0.5_f64.to_radians()
+    }
+
+    /// Signed clearance above the horizon, as sin(el) − sin(horizon(az)): the
+    /// same sign and the same roots as el − horizon, cheaper without a mask.
+    pub(super) fn clearance(&self, r_ecef: &Vec3) -> f64 {
+        let d = sub(r_ecef, &self.site.position_km);
+        let [e, n, u] = self.site.to_enu(&d);
+        let sin_el = u / norm(&d);
+        if !self.has_mask {
+            return sin_el - self.sin_min_elevation;
+        }
+        let az = e.atan2(n).to_degrees().rem_euclid(360.0);
+        sin_el - self.station.horizon_deg(az).to_radians().sin()
+    }
+
+    /// Cosine of the Earth central angle between the station and a position.
+    pub(super) fn cos_central_angle(&self, r_ecef: &Vec3) -> f64 {
+        (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0)
+    }
+}
+
+/// Earth-fixed samples of one satellite with Hermite interpolation between them.
+pub(super) struct Track {
+    pub(super) times_s: Vec<f64>,
+    pub(super) states: Vec<EarthFixed>,
+    t0: UtcTime,
+}
+
+impl Track {
+    pub(super) fn new(t0: UtcTime) -> Self {
+        Track {
+            times_s: Vec::new(),
+            states: Vec::new(),
+            t0,
+        }
+    }
+
+    pub(super) fn clear(&mut self) {
+        self.times_s.clear();
+        self.states.clear();
+    }
+
+    pub(super) fn push(&mut self, t: UtcTime, s: EarthFixed) {
+        self.times_s.push(t.s_since(self.t0));
+        self.states.push(s);
+    }
+
+    pub(super) fn time(&self, i: usize) -> f64 {
+        self.times_s[i]
+    }
+
+    /// Interpolated Earth-fixed state at `t_s` (seconds since `t0`), clamped to the track.
+    pub(super) fn at(&self, t_s: f64) -> EarthFixed {
+        let n = self.times_s.len();
+        let i = match self.times_s.partition_point(|&x| x <= t_s) {
+            0 => 0,
+            k if k >= n => n.saturating_sub(2),
+            k => k - 1,
+        };
+        let j = (i + 1).min(n - 1);
+        if i == j {
+            return self.states[i];
+        }
+        hermite(
+            self.times_s[i],
+            &self.states[i],
+            self.times_s[j],
+            &self.states[j],
+            t_s,
+        )
+    }
+}
+
+/// Cubic Hermite interpolation of an Earth-fixed state between two samples.
+fn hermite(t0: f64, s0: &EarthFixed, t1: f64, s1: &EarthFixed, t: f64) -> EarthFixed {
+    let h = t1 - t0;
+    let (position_km, velocity_km_s) = passlane_orbit::interpolate::hermite(
+        &s0.position_km,
+        &s0.velocity_km_s,
+        &s1.position_km,
+        &s1.velocity_km_s,
+        h,
+        (t - t0) / h,
+    );
+    EarthFixed {
+        position_km,
+        velocity_km_s,
+    }
+}
+
+/// Orbit-derived search parameters.
+pub(super) struct OrbitBounds {
+    /// Sampling step near stations, s.
+    pub(super) step_s: f64,
+    /// Largest radius the satellite can reach, km (padded).
+    pub(super) max_radius_km: f64,
+    /// Upper bound on the rate of change of the central angle to any station, rad/s.
+    pub(super) max_angle_rate_rad_s: f64,
+}
+
+impl OrbitBounds {
+    pub(super) fn of(set: &ElementSet, window_days: f64) -> Self {
+        let n_rad_s = set.mean_motion_rev_day * std::f64::consts::TAU / 86_400.0;
+        let a = (MU_WGS72_KM3_S2 / (n_rad_s * n_rad_s)).cbrt();
+        let e = set.eccentricity;
+        // SGP4's osculating radius wanders from the mean elements' perigee and
+        // apogee by ~10 km in LEO (short-period J2 terms); pad by 30 km plus
+        // 0.5 % of a. Drag lowers the orbit over the window: with the element
+        // set's dn/dt, Δa/a = −⅔·Δn/n (Kepler's third law). Padding matters in
+        // both directions: a higher apogee widens the visibility cone, a lower
+        // perigee raises the angular-rate bound.
+        let pad_km = 30.0 + 0.005 * a;
+        // The window may start well after epoch: allow a month more of decay.
+        let days = window_days.abs() + 30.0;
+        let decay_km = a * (2.0 / 3.0) * (2.0 * set.mean_motion_dot_rev_day2.abs() * days)
+            / set.mean_motion_rev_day;
+        let rp = (a * (1.0 - e) - pad_km - decay_km).max(EARTH_RADIUS_WGS72_KM);
+        let ra = a * (1.0 + e) + pad_km;
+        let vp = (MU_WGS72_KM3_S2 * (2.0 / rp - 1.0 / a).max(0.0)).sqrt();
+        // Sub-satellite point angular speed ≤ |v_earth_fixed| / r ≤ v/r + ω_E, and
+        // v/r is largest at perigee (with the padded perigee radius above);
+        // 5 % more for the rest of SGP4's wobble.
+        let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.05;
+        // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
+        // the same ω·Δt product for faster or slower orbits.
+        let omega_p = vp / rp;
+        let step_s = (60.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
+        OrbitBounds {
+            step_s,
+            max_radius_km: ra,
+            max_angle_rate_rad_s: max_rate,
+        }
+    }
+}
