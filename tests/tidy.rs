@@ -1,15 +1,28 @@
 //! Tidy: invariants of the source tree that the compiler does not enforce.
 //!
-//! Library and command-line code must not panic on bad input, so outside
-//! `#[cfg(test)]` items it may not call `.unwrap()`, `.expect(`, `panic!(`,
-//! `unreachable!(`, `todo!(` or `unimplemented!(` unless the line, or a line of
-//! the comment block right above it, says why failure is impossible with a
-//! comment starting `// invariant:`. Slice indexing is allowed (bounds are
-//! checked by the code around it and reviewed, not by this test).
+//! Each rule below runs over the workspace's sources on every `cargo test`,
+//! and `each_rule_catches_a_planted_violation` proves that each one fails on
+//! a small tree with one violation of it planted.
 //!
-//! The workspace's clippy lints (`unwrap_used`, `expect_used`, `panic`) say the
-//! same, but only as warnings and only when someone runs clippy; this test
-//! runs with every `cargo test`.
+//! - **panics**: library and command-line code (`crates/*/src`, `src/`) must
+//!   not panic on bad input, so outside `#[cfg(test)]` items it may not call
+//!   `.unwrap()`, `.expect(`, `panic!(`, `unreachable!(`, `todo!(` or
+//!   `unimplemented!(` unless the line, or a line of the comment block right
+//!   above it, says why failure is impossible with a comment starting
+//!   `// invariant:`. (Slice indexing is allowed: bounds are checked by the
+//!   code around it and reviewed.) The workspace's clippy lints say the same,
+//!   but only as warnings and only when someone runs clippy.
+//! - **no-io**: the orbit and planner crates do no file, network or process
+//!   I/O (`std::fs`, `std::net`, `std::process`, `File::`).
+//! - **sgp4-boundary**: the `sgp4` crate is used in the propagation module of
+//!   the orbit crate only (`crates/passlane-orbit/src/propagate.rs`).
+//! - **no-printing**: the library crates (orbit, plan, files) never print
+//!   (`println!`, `eprintln!`, `print!`, `eprint!`, `dbg!`); they hand results
+//!   and diagnostics to their callers.
+//! - **one-time-type**: no `chrono` type in a public signature of the orbit
+//!   crate; `UtcTime` is the workspace's one time type.
+//! - **file-size**: no Rust file under `crates/` or `src/` longer than
+//!   [`MAX_LINES`] lines: a file that long holds more than one responsibility.
 
 use std::path::{Path, PathBuf};
 
@@ -22,39 +35,270 @@ const FORBIDDEN: [&str; 6] = [
     "unimplemented!(",
 ];
 
-#[test]
-fn no_unexplained_panics_outside_tests() {
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+/// Longest Rust file allowed under `crates/` and `src/`.
+const MAX_LINES: usize = 800;
+
+/// Crates that do no I/O and never print, and the crates that never print.
+const NO_IO_CRATES: [&str; 2] = ["crates/passlane-orbit/src/", "crates/passlane-plan/src/"];
+const LIBRARY_CRATES: [&str; 3] = [
+    "crates/passlane-orbit/src/",
+    "crates/passlane-plan/src/",
+    "crates/passlane-files/src/",
+];
+const SGP4_HOME: &str = "crates/passlane-orbit/src/propagate.rs";
+const ORBIT_SRC: &str = "crates/passlane-orbit/src/";
+
+/// One broken rule: rule name, file (relative, `/`-separated), line, what.
+#[derive(Debug)]
+struct Violation {
+    rule: &'static str,
+    file: String,
+    line: usize,
+    what: String,
+}
+
+impl std::fmt::Display for Violation {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "[{}] {}:{}: {}",
+            self.rule, self.file, self.line, self.what
+        )
+    }
+}
+
+/// Every Rust file of the tree rooted at `root` that the rules look at:
+/// `src/**` and `crates/*/{src,tests,benches,examples}/**`.
+fn sources(root: &Path) -> Vec<(String, PathBuf)> {
     let mut files = Vec::new();
     rust_files(&root.join("src"), &mut files);
     if let Ok(entries) = std::fs::read_dir(root.join("crates")) {
         for e in entries.flatten() {
-            rust_files(&e.path().join("src"), &mut files);
+            for sub in ["src", "tests", "benches", "examples"] {
+                rust_files(&e.path().join(sub), &mut files);
+            }
         }
     }
     files.sort();
-    assert!(files.len() > 10, "tidy found too few sources: {files:?}");
+    files
+        .into_iter()
+        .map(|p| {
+            let rel = p
+                .strip_prefix(root)
+                .unwrap_or(&p)
+                .to_string_lossy()
+                .replace('\\', "/");
+            (rel, p)
+        })
+        .collect()
+}
 
-    let mut violations = Vec::new();
-    for file in &files {
-        let Ok(text) = std::fs::read_to_string(file) else {
+/// Whether `pattern` occurs in `line` as a whole token (not preceded by an
+/// identifier character, so `eprint!` is not also `print!`).
+fn has_token(line: &str, pattern: &str) -> bool {
+    line.match_indices(pattern).any(|(i, _)| {
+        !line[..i]
+            .chars()
+            .next_back()
+            .is_some_and(|c| c.is_alphanumeric() || c == '_')
+    })
+}
+
+/// Public signatures of a file (outside `#[cfg(test)]`): each `pub` item's
+/// text up to its body, and each public field, with the line it starts on.
+fn public_signatures(code: &str, skip: &[bool]) -> Vec<(usize, String)> {
+    let lines: Vec<&str> = code.lines().collect();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < lines.len() {
+        let t = lines[i].trim_start();
+        if skip.get(i).copied().unwrap_or(false) || !t.starts_with("pub ") {
+            i += 1;
+            continue;
+        }
+        let start = i;
+        let mut sig = String::new();
+        loop {
+            let l = lines[i];
+            let cut = l.find(['{', ';']).unwrap_or(l.len());
+            sig.push_str(&l[..cut]);
+            sig.push(' ');
+            if cut < l.len() || i + 1 >= lines.len() || !t.starts_with("pub fn") {
+                break;
+            }
+            i += 1;
+        }
+        out.push((start + 1, sig));
+        i += 1;
+    }
+    out
+}
+
+/// Checks every rule on the tree rooted at `root`.
+fn check_tree(root: &Path) -> Vec<Violation> {
+    let mut out = Vec::new();
+    for (rel, path) in sources(root) {
+        let Ok(text) = std::fs::read_to_string(&path) else {
             continue;
         };
-        let shown = file
-            .strip_prefix(root)
-            .unwrap_or(file)
-            .display()
-            .to_string();
+        let mut push = |rule: &'static str, line: usize, what: String| {
+            out.push(Violation {
+                rule,
+                file: rel.clone(),
+                line,
+                what,
+            })
+        };
+        let n_lines = text.lines().count();
+        if n_lines > MAX_LINES {
+            push(
+                "file-size",
+                n_lines,
+                format!("{n_lines} lines, more than {MAX_LINES}: split it by responsibility"),
+            );
+        }
+        let is_src =
+            rel.starts_with("src/") || (rel.starts_with("crates/") && rel.contains("/src/"));
+        if !is_src {
+            continue;
+        }
         for (line_no, what) in violations_in(&text) {
-            violations.push(format!("{shown}:{line_no}: {what}"));
+            push(
+                "panics",
+                line_no,
+                format!("{what} without a stated invariant"),
+            );
+        }
+        let code = code_only(&text);
+        let skip = test_lines(&code);
+        let live = || {
+            code.lines()
+                .enumerate()
+                .filter(|(i, _)| !skip.get(*i).copied().unwrap_or(false))
+        };
+        if NO_IO_CRATES.iter().any(|c| rel.starts_with(c)) {
+            for (i, l) in live() {
+                for p in ["std::fs", "std::net", "std::process", "File::"] {
+                    if has_token(l, p) {
+                        push("no-io", i + 1, format!("{p}: this crate does no I/O"));
+                    }
+                }
+            }
+        }
+        if rel != SGP4_HOME {
+            for (i, l) in code.lines().enumerate() {
+                if has_token(l, "sgp4::") {
+                    push(
+                        "sgp4-boundary",
+                        i + 1,
+                        format!("sgp4:: outside {SGP4_HOME}"),
+                    );
+                }
+            }
+        }
+        if LIBRARY_CRATES.iter().any(|c| rel.starts_with(c)) {
+            for (i, l) in live() {
+                for p in ["println!", "eprintln!", "print!", "eprint!", "dbg!"] {
+                    if has_token(l, p) {
+                        push("no-printing", i + 1, format!("{p} in a library crate"));
+                    }
+                }
+            }
+        }
+        if rel.starts_with(ORBIT_SRC) {
+            for (line, sig) in public_signatures(&code, &skip) {
+                if [
+                    "chrono",
+                    "NaiveDateTime",
+                    "NaiveDate",
+                    "DateTime<",
+                    "TimeDelta",
+                ]
+                .iter()
+                .any(|p| has_token(&sig, p))
+                {
+                    push(
+                        "one-time-type",
+                        line,
+                        format!("a chrono type in a public signature: {}", sig.trim()),
+                    );
+                }
+            }
         }
     }
+    out
+}
+
+#[test]
+fn the_tree_keeps_its_architecture() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    assert!(sources(root).len() > 10, "tidy found too few sources");
+    let violations = check_tree(root);
     assert!(
         violations.is_empty(),
-        "library code may not panic without a stated invariant; handle the error, or put \
-         `// invariant: <why this cannot fail>` on the line or just above it:\n{}",
-        violations.join("\n")
+        "the source tree breaks its invariants (see the rules in tests/tidy.rs; for panics, \
+         handle the error or put `// invariant: <why this cannot fail>` on the line or just \
+         above it):\n{}",
+        violations
+            .iter()
+            .map(ToString::to_string)
+            .collect::<Vec<_>>()
+            .join("\n")
     );
+}
+
+#[test]
+fn each_rule_catches_a_planted_violation() {
+    let root = std::env::temp_dir().join(format!("passlane-tidy-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&root);
+    let write = |rel: &str, text: &str| {
+        let p = root.join(rel);
+        std::fs::create_dir_all(p.parent().unwrap_or(&root)).unwrap_or_else(|e| panic!("{e}"));
+        std::fs::write(&p, text).unwrap_or_else(|e| panic!("{e}"));
+    };
+    write(
+        "crates/passlane-orbit/src/lib.rs",
+        "pub fn at(t: chrono::NaiveDateTime) -> u8 { 0 }\n\
+         pub fn fine(t: UtcTime) -> u8 { let x = sgp4::Elements::default(); 0 }\n\
+         pub(crate) fn hidden(t: chrono::NaiveDateTime) {}\n",
+    );
+    write(
+        "crates/passlane-orbit/src/propagate.rs",
+        "use sgp4::Constants;\n",
+    );
+    write(
+        "crates/passlane-plan/src/lib.rs",
+        "fn read() { let _ = std::fs::read(\"x\"); println!(\"hi\"); }\n\
+         #[cfg(test)]\nmod tests { fn t() { std::fs::read(\"x\").unwrap(); println!(); } }\n",
+    );
+    write(
+        "crates/passlane-files/src/lib.rs",
+        "fn f() { eprint!(\"x\"); let v: Option<u8> = None; v.unwrap(); }\n",
+    );
+    write(
+        "crates/passlane-gui/src/app.rs",
+        &"// a line\n".repeat(MAX_LINES + 1),
+    );
+    let got: Vec<String> = check_tree(&root).iter().map(ToString::to_string).collect();
+    let _ = std::fs::remove_dir_all(&root);
+    let expected = [
+        "[one-time-type] crates/passlane-orbit/src/lib.rs:1:",
+        "[sgp4-boundary] crates/passlane-orbit/src/lib.rs:2:",
+        "[no-io] crates/passlane-plan/src/lib.rs:1: std::fs",
+        "[no-printing] crates/passlane-plan/src/lib.rs:1: println!",
+        "[no-printing] crates/passlane-files/src/lib.rs:1: eprint!",
+        "[panics] crates/passlane-files/src/lib.rs:1: .unwrap()",
+        "[file-size] crates/passlane-gui/src/app.rs:801:",
+    ];
+    for e in expected {
+        assert!(
+            got.iter().any(|g| g.starts_with(e)),
+            "missing {e:?} in {got:#?}"
+        );
+    }
+    // Nothing else: not the test module, not the pub(crate) item, not the
+    // propagation module, not `print!` inside `eprint!`.
+    assert_eq!(got.len(), expected.len(), "{got:#?}");
 }
 
 fn rust_files(dir: &Path, out: &mut Vec<PathBuf>) {

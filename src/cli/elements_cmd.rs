@@ -44,8 +44,7 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         bail!("give at least one element file\nusage: {USAGE}");
     }
     let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let at = common::parse_time(&args, "at")?
-        .unwrap_or_else(|| UtcTime::from_chrono(chrono::Utc::now()));
+    let at = common::parse_time(&args, "at")?.unwrap_or_else(|| UtcTime::now());
     let paths: Vec<PathBuf> = args.positionals.iter().map(PathBuf::from).collect();
     let report = common::load_elements(&paths, args.flag("lenient"))?;
     let rows: Vec<Row> = report

@@ -48,7 +48,7 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     for w in &plan.warnings {
         eprintln!("warning: {w}");
     }
-    let created = UtcTime::from_chrono(chrono::Utc::now());
+    let created = UtcTime::now();
     let written = match args.value("out") {
         Some(dir) => Some(write_outputs(
             Path::new(dir),

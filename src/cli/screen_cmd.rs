@@ -209,7 +209,7 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         let dir = PathBuf::from(dir);
         std::fs::create_dir_all(&dir)
             .with_context(|| format!("cannot create {}", dir.display()))?;
-        let now = UtcTime::from_chrono(chrono::Utc::now());
+        let now = UtcTime::now();
         let originator = args.value("originator").unwrap_or("PASSLANE");
         let by_number: HashMap<u32, &ElementSet> = inputs
             .sets

@@ -59,7 +59,7 @@ pub struct Document {
 impl Document {
     /// An empty scenario with a one-day window from the start of the current UTC day.
     pub fn new_empty() -> Self {
-        let now = UtcTime::from_chrono(chrono_now());
+        let now = UtcTime::now();
         let day_start = UtcTime::from_s_since_j2000(
             ((now.s_since_j2000() + 43_200.0) / 86_400.0).floor() * 86_400.0 - 43_200.0,
         );
@@ -136,7 +136,7 @@ impl Document {
             .iter()
             .map(|s| s.epoch)
             .reduce(UtcTime::min)
-            .unwrap_or_else(|| UtcTime::from_chrono(chrono_now()));
+            .unwrap_or_else(|| UtcTime::now());
         (start, start.add_s(86_400.0))
     }
 
@@ -255,10 +255,6 @@ impl Document {
             file
         )
     }
-}
-
-fn chrono_now() -> chrono::DateTime<chrono::Utc> {
-    chrono::Utc::now()
 }
 
 #[cfg(test)]

@@ -15,14 +15,8 @@ use std::time::Instant;
 
 use passlane_orbit::{LoadOptions, Propagator, TimeGrid, UtcTime, elements, propagate_grid_with};
 
-fn cpu_seconds() -> f64 {
-    // utime + stime of this process, in clock ticks (fields 14 and 15).
-    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
-    let after = stat.rsplit(')').next().unwrap_or("");
-    let f: Vec<&str> = after.split_whitespace().collect();
-    let ticks = |i: usize| f.get(i).and_then(|v| v.parse::<f64>().ok()).unwrap_or(0.0);
-    (ticks(11) + ticks(12)) / 100.0
-}
+#[path = "support/mod.rs"]
+mod support;
 
 fn main() {
     let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..");
@@ -47,7 +41,7 @@ fn main() {
             .build()
             .expect("pool");
         let checksum = AtomicU64::new(0);
-        let cpu0 = cpu_seconds();
+        let cpu0 = support::cpu_seconds();
         let t0 = Instant::now();
         pool.install(|| {
             propagate_grid_with(&props, grid, |_, samples| {
@@ -56,7 +50,7 @@ fn main() {
             })
         });
         let wall = t0.elapsed().as_secs_f64();
-        let cpu = cpu_seconds() - cpu0;
+        let cpu = support::cpu_seconds() - cpu0;
         assert_eq!(checksum.load(Ordering::Relaxed) as f64, total);
         println!(
             "passlane, {threads} thread(s): {:.3} s wall, {:.2} s CPU -> {:.3e} propagations/s wall, {:.3e} per CPU-second",

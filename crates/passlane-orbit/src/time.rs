@@ -14,7 +14,7 @@
 
 use std::fmt;
 
-use chrono::{DateTime, Datelike, NaiveDate, NaiveDateTime, TimeZone, Timelike, Utc};
+use chrono::{DateTime, Datelike, NaiveDate, NaiveDateTime, Timelike, Utc};
 
 /// Seconds in a UTC day (no leap seconds).
 pub const SECONDS_PER_DAY: f64 = 86_400.0;
@@ -125,7 +125,7 @@ impl UtcTime {
             return Err(err("empty"));
         }
         if let Ok(dt) = DateTime::parse_from_rfc3339(t) {
-            return Ok(Self::from_chrono(dt.with_timezone(&Utc)));
+            return Ok(Self::from_naive(dt.with_timezone(&Utc).naive_utc()));
         }
         let naive = t.strip_suffix('Z').unwrap_or(t);
         for fmt in [
@@ -149,7 +149,12 @@ impl UtcTime {
         Err(err("expected YYYY-MM-DDTHH:MM:SS[.fff]Z"))
     }
 
-    pub fn from_naive(n: NaiveDateTime) -> Self {
+    /// The current time from the system clock.
+    pub fn now() -> Self {
+        Self::from_naive(Utc::now().naive_utc())
+    }
+
+    pub(crate) fn from_naive(n: NaiveDateTime) -> Self {
         let days = (n.date() - j2000_date()).num_days() as f64;
         let tod = f64::from(n.num_seconds_from_midnight()) + f64::from(n.nanosecond()) * 1e-9;
         UtcTime {
@@ -157,19 +162,11 @@ impl UtcTime {
         }
     }
 
-    pub fn from_chrono(dt: DateTime<Utc>) -> Self {
-        Self::from_naive(dt.naive_utc())
-    }
-
     /// The nearest microsecond as a chrono UTC time.
-    pub fn to_naive(self) -> NaiveDateTime {
+    pub(crate) fn to_naive(self) -> NaiveDateTime {
         let us_total = (self.s_since_j2000 * 1e6).round() as i64;
         let base = j2000_noon();
         base + chrono::TimeDelta::microseconds(us_total)
-    }
-
-    pub fn to_chrono(self) -> DateTime<Utc> {
-        Utc.from_utc_datetime(&self.to_naive())
     }
 
     /// ISO 8601 UTC with milliseconds and `Z`, rounded to the nearest millisecond.

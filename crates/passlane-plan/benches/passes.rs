@@ -13,15 +13,8 @@ use passlane_plan::Silent;
 use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::station::Station;
 
-/// CPU seconds of this process so far (user + system, from /proc), so that
-/// a busy machine shows up as wall time, not as a slower finder.
-fn cpu_seconds() -> f64 {
-    let stat = std::fs::read_to_string("/proc/self/stat").unwrap_or_default();
-    let after = stat.rsplit(')').next().unwrap_or("");
-    let f: Vec<&str> = after.split_whitespace().collect();
-    let ticks = |i: usize| f.get(i).and_then(|v| v.parse::<f64>().ok()).unwrap_or(0.0);
-    (ticks(11) + ticks(12)) / 100.0
-}
+#[path = "../../passlane-orbit/benches/support/mod.rs"]
+mod support;
 
 fn main() {
     let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..");
@@ -63,7 +56,7 @@ fn main() {
         .expect("pool");
     let runs = 20;
     let t0 = Instant::now();
-    let c0 = cpu_seconds();
+    let c0 = support::cpu_seconds();
     let mut n = 0;
     for _ in 0..runs {
         n = one_thread
@@ -72,7 +65,7 @@ fn main() {
             .len();
     }
     let per_run = t0.elapsed().as_secs_f64() / runs as f64;
-    let cpu_per_run = (cpu_seconds() - c0) / runs as f64;
+    let cpu_per_run = (support::cpu_seconds() - c0) / runs as f64;
     println!(
         "demo fleet, 6 x 3 stations x 7 d, 1 thread: {:.2} ms wall, {:.2} ms CPU per run, {n} passes",
         per_run * 1e3,
@@ -80,10 +73,10 @@ fn main() {
     );
 
     let t0 = Instant::now();
-    let c0 = cpu_seconds();
+    let c0 = support::cpu_seconds();
     let report = find_passes(&big, &ten, &options, &Silent);
     let wall = t0.elapsed().as_secs_f64();
-    let cpu = cpu_seconds() - c0;
+    let cpu = support::cpu_seconds() - c0;
     println!(
         "1,000 spacecraft x 10 stations x 7 d, all cores: {:.2} s wall, {:.2} s CPU, {} passes (target < 2 s on 2 cores)",
         wall,

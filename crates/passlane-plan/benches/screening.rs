@@ -41,6 +41,9 @@ impl Rng {
     }
 }
 
+#[path = "../../passlane-orbit/benches/support/mod.rs"]
+mod support;
+
 fn mean_motion_rev_day(a_km: f64) -> f64 {
     (MU_KM3_S2 / a_km.powi(3)).sqrt() * 86_400.0 / std::f64::consts::TAU
 }
@@ -168,33 +171,6 @@ fn fleet(epoch: UtcTime) -> Vec<ElementSet> {
         .collect()
 }
 
-fn max_rss_mb() -> f64 {
-    std::fs::read_to_string("/proc/self/status")
-        .ok()
-        .and_then(|s| {
-            s.lines()
-                .find(|l| l.starts_with("VmHWM:"))
-                .and_then(|l| l.split_whitespace().nth(1))
-                .and_then(|kb| kb.parse::<f64>().ok())
-        })
-        .map_or(f64::NAN, |kb| kb / 1024.0)
-}
-
-/// CPU seconds (user + system, all threads) this process has used so far,
-/// from /proc/self/stat: on a shared machine wall time says little.
-fn cpu_s() -> f64 {
-    std::fs::read_to_string("/proc/self/stat")
-        .ok()
-        .and_then(|s| {
-            // Fields after the parenthesised command name; utime and stime are 14 and 15.
-            let rest = s.rsplit_once(')')?.1;
-            let f: Vec<&str> = rest.split_whitespace().collect();
-            let ticks = f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?;
-            Some(ticks / 100.0)
-        })
-        .unwrap_or(f64::NAN)
-}
-
 fn report(label: &str, r: &ScreeningResult, seconds: f64, cpu_seconds: f64) {
     println!(
         "{label}: {:.2} s wall, {:.2} s CPU, {} events, {} objects ({} removed by the perigee/apogee filter), {} SGP4 samples, {} candidate pairs, {} refinements, {} diagnostics; phases: propagation {:.1} s, hash {:.1} s, evaluation {:.1} s; peak RSS so far {:.0} MB",
@@ -210,7 +186,7 @@ fn report(label: &str, r: &ScreeningResult, seconds: f64, cpu_seconds: f64) {
         r.stats.propagation_s,
         r.stats.hash_s,
         r.stats.evaluation_s,
-        max_rss_mb()
+        support::max_rss_mb()
     );
 }
 
@@ -241,13 +217,13 @@ fn main() {
             end: epoch.add_s(86_400.0),
             settings,
         };
-        let (t0, c0) = (Instant::now(), cpu_s());
+        let (t0, c0) = (Instant::now(), support::cpu_seconds());
         let r = screen(&req);
         report(
             "all-vs-all 30,000 x 24 h",
             &r,
             t0.elapsed().as_secs_f64(),
-            cpu_s() - c0,
+            support::cpu_seconds() - c0,
         );
     }
     if which == "every" || which == "fleet" {
@@ -259,13 +235,13 @@ fn main() {
             end: epoch.add_s(7.0 * 86_400.0),
             settings,
         };
-        let (t0, c0) = (Instant::now(), cpu_s());
+        let (t0, c0) = (Instant::now(), support::cpu_seconds());
         let r = screen(&req);
         report(
             "fleet 100 vs 30,000 x 7 d",
             &r,
             t0.elapsed().as_secs_f64(),
-            cpu_s() - c0,
+            support::cpu_seconds() - c0,
         );
     }
     if which == "every" || which == "reference" {
@@ -278,15 +254,15 @@ fn main() {
             end: epoch.add_s(6.0 * 3600.0),
             settings,
         };
-        let (t0, c0) = (Instant::now(), cpu_s());
+        let (t0, c0) = (Instant::now(), support::cpu_seconds());
         let fast = screen(&req);
         let t_fast = t0.elapsed().as_secs_f64();
-        let c_fast = cpu_s() - c0;
+        let c_fast = support::cpu_seconds() - c0;
         report("subset 2,000 x 6 h, screening", &fast, t_fast, c_fast);
-        let (t0, c0) = (Instant::now(), cpu_s());
+        let (t0, c0) = (Instant::now(), support::cpu_seconds());
         let brute = screen_brute_force(&req, 10.0);
         let t_brute = t0.elapsed().as_secs_f64();
-        let c_brute = cpu_s() - c0;
+        let c_brute = support::cpu_seconds() - c0;
         report(
             "subset 2,000 x 6 h, brute force 10 s",
             &brute,
@@ -320,5 +296,5 @@ fn main() {
             }
         }
     }
-    println!("peak RSS (VmHWM): {:.0} MB", max_rss_mb());
+    println!("peak RSS (VmHWM): {:.0} MB", support::max_rss_mb());
 }

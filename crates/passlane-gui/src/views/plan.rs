@@ -438,7 +438,7 @@ impl PlanView {
         let plan = plan.clone();
         let fleet = state.doc.fleet.clone();
         let scenario = state.doc.scenario.clone();
-        let created = UtcTime::from_chrono(chrono::Utc::now());
+        let created = UtcTime::now();
         self.export_status.clear();
         self.export_job = Some(Job::spawn(
             "Writing files",

@@ -1,0 +1,36 @@
+//! What every benchmark of the workspace measures besides wall time: the CPU
+//! time and the peak memory of the process, read from `/proc` (Linux). On a
+//! shared machine wall time says little; CPU seconds over all threads do.
+//!
+//! Included by path from each crate's benches (`#[path = ...] mod support;`).
+
+#![allow(dead_code)]
+
+/// CPU seconds (user + system, all threads) this process has used so far;
+/// NaN where `/proc/self/stat` cannot be read.
+pub fn cpu_seconds() -> f64 {
+    std::fs::read_to_string("/proc/self/stat")
+        .ok()
+        .and_then(|s| {
+            // Fields after the parenthesised command name; utime and stime
+            // are fields 14 and 15, in clock ticks of 1/100 s.
+            let rest = s.rsplit_once(')')?.1;
+            let f: Vec<&str> = rest.split_whitespace().collect();
+            let ticks = f.get(11)?.parse::<f64>().ok()? + f.get(12)?.parse::<f64>().ok()?;
+            Some(ticks / 100.0)
+        })
+        .unwrap_or(f64::NAN)
+}
+
+/// Peak resident memory of this process so far, MB; NaN where unknown.
+pub fn max_rss_mb() -> f64 {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines()
+                .find(|l| l.starts_with("VmHWM:"))
+                .and_then(|l| l.split_whitespace().nth(1))
+                .and_then(|kb| kb.parse::<f64>().ok())
+        })
+        .map_or(f64::NAN, |kb| kb / 1024.0)
+}
