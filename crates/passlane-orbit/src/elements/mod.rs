@@ -199,6 +199,27 @@ fn dedup_newest(report: &mut LoadReport) {
 }
 
 impl ElementSet {
+    /// The international designator in the CCSDS form `YYYY-NNNP{PP}` (four-
+    /// digit launch year, three-digit launch number, one to three capital
+    /// letters for the piece; CCSDS 508.0-B-1 Table 3-3, 502.0-B-3 Table 5-3),
+    /// from the TLE form `YYNNNP{PP}` (two-digit years 57-99 are 1900s, as in
+    /// TLEs). `None` when the set has none or it does not have that shape.
+    pub fn international_designator_ccsds(&self) -> Option<String> {
+        let d = self.international_designator.trim();
+        let b = d.as_bytes();
+        if b.len() < 6 || b.len() > 8 || !d.is_ascii() {
+            return None;
+        }
+        let digits = |r: std::ops::Range<usize>| b[r].iter().all(u8::is_ascii_digit);
+        let piece = &d[5..];
+        if !digits(0..5) || !piece.bytes().all(|c| c.is_ascii_uppercase()) {
+            return None;
+        }
+        let yy: u32 = d[..2].parse().ok()?;
+        let year = if yy >= 57 { 1900 + yy } else { 2000 + yy };
+        Some(format!("{year}-{}{piece}", &d[2..5]))
+    }
+
     /// Range checks shared by every format. Returns the field and reason of the
     /// first violation.
     pub fn validate(&self) -> Result<(), (&'static str, String)> {

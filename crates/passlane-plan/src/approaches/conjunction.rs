@@ -12,7 +12,10 @@
 use passlane_orbit::{EarthOrientation, ElementSet, StateTeme, TemeToEarthFixed, UtcTime};
 use serde::Serialize;
 
-use crate::cdm::{Cdm, CdmHeader, CdmObject, CdmRelative};
+use crate::cdm::{
+    COVARIANCE_COMMENT, Cdm, CdmHeader, CdmObject, CdmRelative, ccsds_identifier, ccsds_text,
+    hard_body_radius_comment,
+};
 use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
 use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
 use crate::scenario::Scenario;
@@ -76,6 +79,9 @@ pub struct EventRisk {
     /// Largest probability over the covariance's size (shape kept).
     pub pc_max: f64,
     pub hard_body_radius_m: f64,
+    /// Where the radius came from (the user's override, or the scenario's
+    /// radii of the two objects).
+    pub hard_body_radius_source: String,
     pub covariance_source: String,
     /// Combined covariance in the encounter plane, principal axes, m.
     pub sigma_x_m: f64,
@@ -103,6 +109,24 @@ pub fn assess(
     covariance: &AssumedCovariance,
     hard_body_radius_m: f64,
 ) -> Result<EventRisk, EncounterError> {
+    assess_with_source(
+        event,
+        primary,
+        secondary,
+        covariance,
+        hard_body_radius_m,
+        "given".to_string(),
+    )
+}
+
+fn assess_with_source(
+    event: &CloseApproach,
+    primary: &ElementSet,
+    secondary: &ElementSet,
+    covariance: &AssumedCovariance,
+    hard_body_radius_m: f64,
+    hard_body_radius_source: String,
+) -> Result<EventRisk, EncounterError> {
     let s1 = km_state(&event.primary_state);
     let s2 = km_state(&event.secondary_state);
     let plane = encounter_plane(
@@ -120,6 +144,7 @@ pub fn assess(
         pc_chan: pc_chan(&e),
         pc_max: pc_max(&e).pc_max,
         hard_body_radius_m,
+        hard_body_radius_source,
         covariance_source: covariance.label(),
         sigma_x_m: e.sigma_x_m(),
         sigma_y_m: e.sigma_y_m(),
@@ -163,11 +188,26 @@ pub fn assess_events<'a>(
             ) else {
                 return Err("element set not found".to_string());
             };
-            let hbr = hard_body_radius_override_m.unwrap_or(
-                hard_body_radius_m(scenario, e.primary_catalog_number)
-                    + hard_body_radius_m(scenario, e.secondary_catalog_number),
-            );
-            assess(e, p, s, &covariance, hbr).map_err(|err| err.to_string())
+            let (hbr, source) = match hard_body_radius_override_m {
+                Some(r) => (r, "given by the user for every event".to_string()),
+                None => {
+                    let (a, b) = (
+                        hard_body_radius_m(scenario, e.primary_catalog_number),
+                        hard_body_radius_m(scenario, e.secondary_catalog_number),
+                    );
+                    (
+                        a + b,
+                        format!(
+                            "scenario: {} m for {} + {} m for {}",
+                            crate::cdm::ccsds_number(a),
+                            e.primary_catalog_number,
+                            crate::cdm::ccsds_number(b),
+                            e.secondary_catalog_number
+                        ),
+                    )
+                }
+            };
+            assess_with_source(e, p, s, &covariance, hbr, source).map_err(|err| err.to_string())
         })
         .collect()
 }
@@ -198,8 +238,11 @@ pub fn event_to_cdm(
         &km_state(&event.secondary_state),
     )?;
     let rot = TemeToEarthFixed::at(event.tca, &ctx.earth_orientation);
+    // 508.0-B-1 Table 3-2 knows ELLIPSOID and BOX; a sphere is an ellipsoid
+    // with three equal semi-axes. The sizes are semi-axes (half-widths for a
+    // box); the standard does not say, so a COMMENT does.
     let (shape, xyz_m) = match ctx.volume {
-        ScreeningVolume::Sphere { radius_km } => ("SPHERE", [radius_km * 1000.0; 3]),
+        ScreeningVolume::Sphere { radius_km } => ("ELLIPSOID", [radius_km * 1000.0; 3]),
         ScreeningVolume::Box {
             radial_km,
             in_track_km,
@@ -247,8 +290,10 @@ pub fn event_to_cdm(
             object: which.to_string(),
             object_designator: format!("{:05}", set.catalog_number),
             catalog_name: "SATCAT".to_string(),
-            object_name: set.name.clone(),
-            international_designator: set.international_designator.clone(),
+            object_name: ccsds_text(&set.name, "UNKNOWN"),
+            international_designator: set
+                .international_designator_ccsds()
+                .unwrap_or_else(|| "UNKNOWN".to_string()),
             ephemeris_name: "NONE".to_string(),
             covariance_method: "DEFAULT".to_string(),
             maneuverable: "N/A".to_string(),
@@ -263,19 +308,44 @@ pub fn event_to_cdm(
     };
     Ok(Cdm {
         header: CdmHeader {
-            comments: vec![
-                "Screening on published mean elements (SGP4): advisory only.".to_string(),
-                "Defer to official conjunction messages and coordinate with the other operator."
-                    .to_string(),
-            ],
+            comments: {
+                let mut c = vec![
+                    "Screening on published mean elements (SGP4): advisory only.".to_string(),
+                    "Defer to official conjunction messages and coordinate with the other operator."
+                        .to_string(),
+                ];
+                if let Some(r) = risk {
+                    c.push(hard_body_radius_comment(
+                        r.hard_body_radius_m,
+                        &r.hard_body_radius_source,
+                    ));
+                }
+                c.push(format!(
+                    "{COVARIANCE_COMMENT}: {} (both objects, COVARIANCE_METHOD = DEFAULT)",
+                    covariance.label()
+                ));
+                c
+            },
             ccsds_cdm_vers: "1.0".to_string(),
             creation_date: ctx.creation_date,
-            originator: ctx.originator.to_string(),
-            message_for: Some(primary.name.clone()),
-            message_id: ctx.message_id.clone(),
+            originator: ccsds_identifier(ctx.originator, "PASSLANE"),
+            message_for: Some(ccsds_text(&primary.name, "UNKNOWN")),
+            message_id: ccsds_identifier(&ctx.message_id, "PASSLANE"),
         },
         relative: CdmRelative {
-            comments: Vec::new(),
+            comments: vec![format!(
+                "Screening volume {} in the primary's RTN frame; SCREEN_VOLUME_X/Y/Z are semi-axes{}",
+                match ctx.volume {
+                    ScreeningVolume::Sphere { .. } => "a sphere (an ellipsoid with equal axes)",
+                    ScreeningVolume::Box { .. } => "a box",
+                    ScreeningVolume::Ellipsoid { .. } => "an ellipsoid",
+                },
+                if matches!(ctx.volume, ScreeningVolume::Box { .. }) {
+                    " (half-widths)"
+                } else {
+                    ""
+                }
+            )],
             tca: event.tca,
             miss_distance_m: g.miss_distance_km * 1000.0,
             relative_speed_m_s: Some(g.relative_speed_km_s * 1000.0),

@@ -1,11 +1,20 @@
 //! The CDM keyword tables: every keyword with its kind, unit and whether it
 //! is mandatory, in the standard's order.
+//!
+//! Source: CCSDS 508.0-B-1 (June 2013, with Technical Corrigenda 1 and 2),
+//! Tables 3-1 (header), 3-2 (relative metadata/data), 3-3 (metadata) and 3-4
+//! (data); mandatory status as in Annex A (ICS items 1-68). Checked against
+//! the document's text (keyword names, order, units, obligatory column) and
+//! against the NDM/XML schema's element order as carried by the PyPI package
+//! `ccsds-ndm` 3.1.1 (see `scripts/fixtures/check_ccsds.py`).
 
 #[derive(Clone, Copy, PartialEq, Debug)]
 pub(super) enum Kind {
     Text,
     Time,
     Number,
+    /// A number that must be a whole number (508.0-B-1 6.3.2.1).
+    Integer,
 }
 
 #[derive(Clone, Copy, PartialEq, Debug)]
@@ -14,8 +23,6 @@ pub(super) enum Unit {
     None,
     /// The standard's unit; any other is an error.
     Exact(&'static str),
-    /// A unit we are not sure of: accepted as given and written back as read.
-    PassThrough,
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -35,11 +42,10 @@ pub(super) const fn spec(key: &'static str, kind: Kind, unit: Unit, mandatory: b
     }
 }
 
-use Kind::{Number as N, Text as T, Time as TM};
+use Kind::{Integer as I, Number as N, Text as T, Time as TM};
 const M: bool = true;
 const O: bool = false;
 const NO: Unit = Unit::None;
-const PT: Unit = Unit::PassThrough;
 const UM: Unit = Unit::Exact("m");
 const UMS: Unit = Unit::Exact("m/s");
 const UKM: Unit = Unit::Exact("km");
@@ -47,8 +53,14 @@ const UKMS: Unit = Unit::Exact("km/s");
 const UM2: Unit = Unit::Exact("m**2");
 const UM2S: Unit = Unit::Exact("m**2/s");
 const UM2S2: Unit = Unit::Exact("m**2/s**2");
+const UM3KG: Unit = Unit::Exact("m**3/kg");
+const UM3KGS: Unit = Unit::Exact("m**3/(kg*s)");
+const UM4KG2: Unit = Unit::Exact("m**4/kg**2");
+const UM2S3: Unit = Unit::Exact("m**2/s**3");
+const UM3KGS2: Unit = Unit::Exact("m**3/(kg*s**2)");
+const UM2S4: Unit = Unit::Exact("m**2/s**4");
 
-/// Header (CCSDS 508.0-B-1 Table 3-1, from memory).
+/// Header, CCSDS 508.0-B-1 Table 3-1 (`COMMENT` may follow the version line).
 pub(super) const HEADER_KEYS: &[Spec] = &[
     spec("CCSDS_CDM_VERS", T, NO, M),
     spec("CREATION_DATE", TM, NO, M),
@@ -57,7 +69,7 @@ pub(super) const HEADER_KEYS: &[Spec] = &[
     spec("MESSAGE_ID", T, NO, M),
 ];
 
-/// Relative metadata/data (Table 3-2, from memory).
+/// Relative metadata/data, CCSDS 508.0-B-1 Table 3-2.
 pub(super) const RELATIVE_KEYS: &[Spec] = &[
     spec("TCA", TM, NO, M),
     spec("MISS_DISTANCE", N, UM, M),
@@ -81,8 +93,9 @@ pub(super) const RELATIVE_KEYS: &[Spec] = &[
     spec("COLLISION_PROBABILITY_METHOD", T, NO, O),
 ];
 
-/// Per-object metadata (Table 3-3) then data (Table 3-4: OD parameters,
-/// additional parameters, state vector, covariance), from memory.
+/// Per-object metadata (CCSDS 508.0-B-1 Table 3-3) then data (Table 3-4: OD
+/// parameters, additional parameters, state vector, covariance; rows 7-9 of
+/// the covariance are optional, 5.2.8).
 pub(super) const OBJECT_KEYS: &[Spec] = &[
     spec("OBJECT", T, NO, M),
     spec("OBJECT_DESIGNATOR", T, NO, M),
@@ -109,10 +122,10 @@ pub(super) const OBJECT_KEYS: &[Spec] = &[
     spec("TIME_LASTOB_END", TM, NO, O),
     spec("RECOMMENDED_OD_SPAN", N, Unit::Exact("d"), O),
     spec("ACTUAL_OD_SPAN", N, Unit::Exact("d"), O),
-    spec("OBS_AVAILABLE", N, NO, O),
-    spec("OBS_USED", N, NO, O),
-    spec("TRACKS_AVAILABLE", N, NO, O),
-    spec("TRACKS_USED", N, NO, O),
+    spec("OBS_AVAILABLE", I, NO, O),
+    spec("OBS_USED", I, NO, O),
+    spec("TRACKS_AVAILABLE", I, NO, O),
+    spec("TRACKS_USED", I, NO, O),
     spec("RESIDUALS_ACCEPTED", N, Unit::Exact("%"), O),
     spec("WEIGHTED_RMS", N, NO, O),
     spec("AREA_PC", N, UM2, O),
@@ -150,30 +163,30 @@ pub(super) const OBJECT_KEYS: &[Spec] = &[
     spec("CNDOT_RDOT", N, UM2S2, M),
     spec("CNDOT_TDOT", N, UM2S2, M),
     spec("CNDOT_NDOT", N, UM2S2, M),
-    spec("CDRG_R", N, PT, O),
-    spec("CDRG_T", N, PT, O),
-    spec("CDRG_N", N, PT, O),
-    spec("CDRG_RDOT", N, PT, O),
-    spec("CDRG_TDOT", N, PT, O),
-    spec("CDRG_NDOT", N, PT, O),
-    spec("CDRG_DRG", N, PT, O),
-    spec("CSRP_R", N, PT, O),
-    spec("CSRP_T", N, PT, O),
-    spec("CSRP_N", N, PT, O),
-    spec("CSRP_RDOT", N, PT, O),
-    spec("CSRP_TDOT", N, PT, O),
-    spec("CSRP_NDOT", N, PT, O),
-    spec("CSRP_DRG", N, PT, O),
-    spec("CSRP_SRP", N, PT, O),
-    spec("CTHR_R", N, PT, O),
-    spec("CTHR_T", N, PT, O),
-    spec("CTHR_N", N, PT, O),
-    spec("CTHR_RDOT", N, PT, O),
-    spec("CTHR_TDOT", N, PT, O),
-    spec("CTHR_NDOT", N, PT, O),
-    spec("CTHR_DRG", N, PT, O),
-    spec("CTHR_SRP", N, PT, O),
-    spec("CTHR_THR", N, PT, O),
+    spec("CDRG_R", N, UM3KG, O),
+    spec("CDRG_T", N, UM3KG, O),
+    spec("CDRG_N", N, UM3KG, O),
+    spec("CDRG_RDOT", N, UM3KGS, O),
+    spec("CDRG_TDOT", N, UM3KGS, O),
+    spec("CDRG_NDOT", N, UM3KGS, O),
+    spec("CDRG_DRG", N, UM4KG2, O),
+    spec("CSRP_R", N, UM3KG, O),
+    spec("CSRP_T", N, UM3KG, O),
+    spec("CSRP_N", N, UM3KG, O),
+    spec("CSRP_RDOT", N, UM3KGS, O),
+    spec("CSRP_TDOT", N, UM3KGS, O),
+    spec("CSRP_NDOT", N, UM3KGS, O),
+    spec("CSRP_DRG", N, UM4KG2, O),
+    spec("CSRP_SRP", N, UM4KG2, O),
+    spec("CTHR_R", N, UM2S2, O),
+    spec("CTHR_T", N, UM2S2, O),
+    spec("CTHR_N", N, UM2S2, O),
+    spec("CTHR_RDOT", N, UM2S3, O),
+    spec("CTHR_TDOT", N, UM2S3, O),
+    spec("CTHR_NDOT", N, UM2S3, O),
+    spec("CTHR_DRG", N, UM3KGS2, O),
+    spec("CTHR_SRP", N, UM3KGS2, O),
+    spec("CTHR_THR", N, UM2S4, O),
 ];
 
 /// The 21 mandatory covariance keywords, lower triangle of the 6×6 RTN
@@ -214,4 +227,76 @@ pub fn mandatory_keywords() -> Vec<&'static str> {
     v.extend(obj.iter().copied());
     v.extend(obj);
     v
+}
+
+/// Keywords whose values CCSDS 508.0-B-1 enumerates (the "N" = normative
+/// values of Tables 3-2 and 3-3). Compared ignoring case, with `_` read as a
+/// blank (6.3.2.5), since the NDM/XML schema also lists lowercase variants.
+pub(super) const ENUMERATED: &[(&str, &[&str])] = &[
+    ("SCREEN_VOLUME_FRAME", &["RTN", "TVN"]),
+    ("SCREEN_VOLUME_SHAPE", &["ELLIPSOID", "BOX"]),
+    ("OBJECT", &["OBJECT1", "OBJECT2"]),
+    (
+        "OBJECT_TYPE",
+        &["PAYLOAD", "ROCKET BODY", "DEBRIS", "UNKNOWN", "OTHER"],
+    ),
+    ("COVARIANCE_METHOD", &["CALCULATED", "DEFAULT"]),
+    ("MANEUVERABLE", &["YES", "NO", "N/A"]),
+    ("REF_FRAME", &["EME2000", "GCRF", "ITRF"]),
+    ("SOLAR_RAD_PRESSURE", &["YES", "NO"]),
+    ("EARTH_TIDES", &["YES", "NO"]),
+    ("INTRACK_THRUST", &["YES", "NO"]),
+];
+
+/// Rows 7, 8 and 9 of the covariance (drag, solar radiation pressure,
+/// thrust), each complete or absent, and a row only with all rows before it
+/// (CCSDS 508.0-B-1 5.2.8).
+pub(super) const OPTIONAL_COVARIANCE_ROWS: [&[&str]; 3] = [
+    &[
+        "CDRG_R",
+        "CDRG_T",
+        "CDRG_N",
+        "CDRG_RDOT",
+        "CDRG_TDOT",
+        "CDRG_NDOT",
+        "CDRG_DRG",
+    ],
+    &[
+        "CSRP_R",
+        "CSRP_T",
+        "CSRP_N",
+        "CSRP_RDOT",
+        "CSRP_TDOT",
+        "CSRP_NDOT",
+        "CSRP_DRG",
+        "CSRP_SRP",
+    ],
+    &[
+        "CTHR_R",
+        "CTHR_T",
+        "CTHR_N",
+        "CTHR_RDOT",
+        "CTHR_TDOT",
+        "CTHR_NDOT",
+        "CTHR_DRG",
+        "CTHR_SRP",
+        "CTHR_THR",
+    ],
+];
+
+/// The logical blocks of an object's data section (Table 3-4) and the
+/// first keyword of each, as the XML form groups them (508.0-B-1 Table 4-1).
+pub(super) const OBJECT_BLOCKS: [(&str, &str, &str); 4] = [
+    ("odParameters", "TIME_LASTOB_START", "WEIGHTED_RMS"),
+    ("additionalParameters", "AREA_PC", "SEDR"),
+    ("stateVector", "X", "Z_DOT"),
+    ("covarianceMatrix", "CR_R", "CTHR_THR"),
+];
+
+/// Every keyword of a CDM in the standard's order: header (Table 3-1),
+/// relative metadata/data (Table 3-2), then the object table (Tables 3-3 and
+/// 3-4) once, with whether each is mandatory (Annex A).
+pub fn keyword_tables() -> [Vec<(&'static str, bool)>; 3] {
+    let f = |t: &[Spec]| t.iter().map(|s| (s.key, s.mandatory)).collect();
+    [f(HEADER_KEYS), f(RELATIVE_KEYS), f(OBJECT_KEYS)]
 }
