@@ -14,6 +14,7 @@
 pub mod constants;
 pub mod elements;
 pub mod frames;
+pub mod inertial;
 pub mod interpolate;
 pub mod propagate;
 pub mod summary;
