@@ -14,3 +14,8 @@ if command -v apt-get >/dev/null 2>&1 && [ "$(id -u)" = 0 ]; then
   fi
 fi
 cargo fetch --locked 2>/dev/null || cargo fetch
+# Reference Python packages (scripts/fixtures/requirements.txt) in .venv: some
+# tests run scripts/fixtures/check_ccsds.py with it (ccsds-ndm reads back the
+# CCSDS messages the tool writes).
+[ -x .venv/bin/python ] || python3 -m venv .venv
+.venv/bin/python -m pip install -q -r scripts/fixtures/requirements.txt

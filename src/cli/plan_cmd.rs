@@ -93,6 +93,8 @@ fn write_outputs(
             originator: scenario.originator(),
             created,
             pointing_step_s,
+            oem_format: passlane_orbit::ephemeris::OemFormat::Kvn,
+            oem_frame: passlane_plan::export::OemFrame::Eme2000,
         },
     );
     for w in &hand_off.warnings {

@@ -134,6 +134,36 @@ impl TemeToEarthFixed {
         ]
     }
 
+    /// Inverse rotation of a state, Earth-fixed → TEME: polar motion undone,
+    /// then the Earth-rotation term ω × r added back to the velocity, then
+    /// the GMST rotation undone (the exact inverse of [`Self::state`]).
+    pub fn state_to_teme(&self, r: &Vec3, v: &Vec3) -> (Vec3, Vec3) {
+        let (r_pef, v_pef) = match self.polar {
+            None => (*r, *v),
+            Some((xp, yp)) => {
+                let m = polar_matrix(xp, yp);
+                let t = |a: &Vec3| -> Vec3 {
+                    [
+                        m[0][0] * a[0] + m[1][0] * a[1] + m[2][0] * a[2],
+                        m[0][1] * a[0] + m[1][1] * a[1] + m[2][1] * a[2],
+                        m[0][2] * a[0] + m[1][2] * a[1] + m[2][2] * a[2],
+                    ]
+                };
+                (t(r), t(v))
+            }
+        };
+        let w = EARTH_ROTATION_RAD_S;
+        let u = [v_pef[0] - w * r_pef[1], v_pef[1] + w * r_pef[0], v_pef[2]];
+        let back = |a: &Vec3| -> Vec3 {
+            [
+                self.cos_g * a[0] - self.sin_g * a[1],
+                self.sin_g * a[0] + self.cos_g * a[1],
+                a[2],
+            ]
+        };
+        (back(&r_pef), back(&u))
+    }
+
     fn polar_motion(&self, v: Vec3) -> Vec3 {
         match self.polar {
             None => v,

@@ -13,6 +13,7 @@
 
 pub mod constants;
 pub mod elements;
+pub mod ephemeris;
 pub mod frames;
 pub mod inertial;
 pub mod interpolate;

@@ -1,4 +1,12 @@
-//! SGP4 propagation, on the `sgp4` crate.
+//! Propagation: SGP4 on the `sgp4` crate, or the operator's ephemeris.
+//!
+//! A [`Propagator`] is built from a fleet entry ([`ElementSet`]); when the
+//! entry carries an ephemeris ([`ElementSet::ephemeris`]) the propagator
+//! interpolates it (see [`crate::ephemeris`]) and, outside its usable spans,
+//! falls back to SGP4 on the element set the entry replaced, if any, or
+//! returns [`PropagationError::OutsideEphemeris`]. `state_at` and the
+//! [`Cursor`] behave the same for both sources, so the planners do not know
+//! which one they evaluate.
 //!
 //! Default model: WGS-72 constants with the AFSPC epoch and sidereal-time
 //! conventions (the crate's compatibility-mode constants) and the corrected
@@ -9,10 +17,13 @@
 //! below the Earth's surface (or a user-set altitude) as [`PropagationError::Decayed`].
 //! Errors are values, per satellite and time; nothing here panics.
 
+use std::sync::Arc;
+
 use rayon::prelude::*;
 
 use crate::constants::{EARTH_RADIUS_WGS72_KM, WGS84_A_KM, WGS84_F};
 use crate::elements::ElementSet;
+use crate::ephemeris::EphemerisSource;
 use crate::time::UtcTime;
 
 /// Gravity model and conventions for SGP4.
@@ -52,6 +63,10 @@ pub enum PropagationError {
         time: UtcTime,
         altitude_km: f64,
     },
+    /// The time lies outside every usable span of the spacecraft's
+    /// ephemeris, and there is no element set to fall back to: no
+    /// extrapolation.
+    OutsideEphemeris { catalog_number: u32, time: UtcTime },
 }
 
 impl std::fmt::Display for PropagationError {
@@ -76,6 +91,13 @@ impl std::fmt::Display for PropagationError {
                 f,
                 "catalog {catalog_number}: decayed by {time} (altitude {altitude_km:.1} km)"
             ),
+            PropagationError::OutsideEphemeris {
+                catalog_number,
+                time,
+            } => write!(
+                f,
+                "catalog {catalog_number}: {time} is outside every usable span of its ephemeris, and it has no element set to fall back to (no extrapolation)"
+            ),
         }
     }
 }
@@ -87,37 +109,32 @@ impl PropagationError {
         match *self {
             PropagationError::BadElements { catalog_number }
             | PropagationError::Diverged { catalog_number, .. }
-            | PropagationError::Decayed { catalog_number, .. } => catalog_number,
+            | PropagationError::Decayed { catalog_number, .. }
+            | PropagationError::OutsideEphemeris { catalog_number, .. } => catalog_number,
+        }
+    }
+
+    /// The time the error concerns, if it concerns one.
+    pub fn time(&self) -> Option<UtcTime> {
+        match *self {
+            PropagationError::BadElements { .. } => None,
+            PropagationError::Diverged { time, .. }
+            | PropagationError::Decayed { time, .. }
+            | PropagationError::OutsideEphemeris { time, .. } => Some(time),
         }
     }
 }
 
-/// A ready-to-use SGP4 propagator for one element set.
+/// SGP4 on one element set.
 #[derive(Clone)]
-pub struct Propagator {
+struct Sgp4Model {
     constants: sgp4::Constants,
     epoch: UtcTime,
-    catalog_number: u32,
     afspc: bool,
-    decay_altitude_km: f64,
 }
 
-impl std::fmt::Debug for Propagator {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("Propagator")
-            .field("catalog_number", &self.catalog_number)
-            .field("epoch", &self.epoch)
-            .finish_non_exhaustive()
-    }
-}
-
-impl Propagator {
-    /// Propagator in the default model ([`GravityModel::Wgs72Compatibility`]).
-    pub fn new(set: &ElementSet) -> Result<Self, PropagationError> {
-        Self::with_model(set, GravityModel::default())
-    }
-
-    pub fn with_model(set: &ElementSet, model: GravityModel) -> Result<Self, PropagationError> {
+impl Sgp4Model {
+    fn new(set: &ElementSet, model: GravityModel) -> Result<Self, PropagationError> {
         let bad = PropagationError::BadElements {
             catalog_number: set.catalog_number,
         };
@@ -129,11 +146,81 @@ impl Propagator {
             GravityModel::Wgs84 => sgp4::Constants::from_elements(&elements),
         }
         .map_err(|_| bad)?;
-        Ok(Propagator {
+        Ok(Sgp4Model {
             constants,
             epoch: set.epoch,
-            catalog_number: set.catalog_number,
             afspc: model == GravityModel::Wgs72Afspc,
+        })
+    }
+}
+
+#[derive(Clone)]
+enum Motion {
+    Sgp4(Sgp4Model),
+    Ephemeris {
+        source: Arc<EphemerisSource>,
+        fallback: Option<Sgp4Model>,
+    },
+}
+
+impl Motion {
+    fn sgp4(&self) -> Option<&Sgp4Model> {
+        match self {
+            Motion::Sgp4(m) => Some(m),
+            Motion::Ephemeris { fallback, .. } => fallback.as_ref(),
+        }
+    }
+}
+
+/// A ready-to-use propagator for one fleet entry: SGP4 on its elements, or
+/// its ephemeris (see the module docs).
+#[derive(Clone)]
+pub struct Propagator {
+    motion: Motion,
+    epoch: UtcTime,
+    catalog_number: u32,
+    decay_altitude_km: f64,
+}
+
+impl std::fmt::Debug for Propagator {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Propagator")
+            .field("catalog_number", &self.catalog_number)
+            .field("epoch", &self.epoch)
+            .field(
+                "source",
+                &match &self.motion {
+                    Motion::Sgp4(_) => "SGP4".to_string(),
+                    Motion::Ephemeris { source, .. } => source.ephemeris.describe(),
+                },
+            )
+            .finish_non_exhaustive()
+    }
+}
+
+impl Propagator {
+    /// Propagator in the default model ([`GravityModel::Wgs72`]).
+    pub fn new(set: &ElementSet) -> Result<Self, PropagationError> {
+        Self::with_model(set, GravityModel::default())
+    }
+
+    pub fn with_model(set: &ElementSet, model: GravityModel) -> Result<Self, PropagationError> {
+        let motion = match &set.ephemeris {
+            None => Motion::Sgp4(Sgp4Model::new(set, model)?),
+            Some(source) => Motion::Ephemeris {
+                source: Arc::clone(source),
+                // Elements that cannot start SGP4 leave the ephemeris alone,
+                // without a fallback.
+                fallback: source
+                    .fallback
+                    .as_ref()
+                    .and_then(|f| Sgp4Model::new(f, model).ok()),
+            },
+        };
+        Ok(Propagator {
+            motion,
+            epoch: set.epoch,
+            catalog_number: set.catalog_number,
             decay_altitude_km: 0.0,
         })
     }
@@ -153,10 +240,18 @@ impl Propagator {
         self.catalog_number
     }
 
+    /// The ephemeris this propagator evaluates, if it is not plain SGP4.
+    pub fn ephemeris(&self) -> Option<&EphemerisSource> {
+        match &self.motion {
+            Motion::Sgp4(_) => None,
+            Motion::Ephemeris { source, .. } => Some(source),
+        }
+    }
+
     /// State at one time. For deep-space resonant orbits this re-integrates from
     /// epoch on every call; use a [`Cursor`] for ordered times.
     pub fn state_at(&self, time: UtcTime) -> Result<StateTeme, PropagationError> {
-        let mut state = self.constants.initial_state();
+        let mut state = self.motion.sgp4().and_then(|m| m.constants.initial_state());
         self.step(time, state.as_mut())
     }
 
@@ -169,7 +264,7 @@ impl Propagator {
     pub fn cursor(&self) -> Cursor<'_> {
         Cursor {
             prop: self,
-            resonance: self.constants.initial_state(),
+            resonance: self.motion.sgp4().and_then(|m| m.constants.initial_state()),
         }
     }
 
@@ -178,16 +273,23 @@ impl Propagator {
         time: UtcTime,
         resonance: Option<&mut sgp4::ResonanceState>,
     ) -> Result<StateTeme, PropagationError> {
-        let minutes = time.s_since(self.epoch) / 60.0;
-        let p = self
-            .constants
-            .propagate_from_state(sgp4::MinutesSinceEpoch(minutes), resonance, self.afspc)
-            .map_err(|_| PropagationError::Diverged {
-                catalog_number: self.catalog_number,
-                time,
-            })?;
-        let altitude_km = approximate_altitude_km(&p.position);
-        let r_km = (p.position[0].powi(2) + p.position[1].powi(2) + p.position[2].powi(2)).sqrt();
+        let (position, velocity) = match &self.motion {
+            Motion::Sgp4(m) => self.sgp4_state(m, time, resonance)?,
+            Motion::Ephemeris { source, fallback } => match source.ephemeris.state_at(time) {
+                Some(rv) => rv,
+                None => match fallback {
+                    Some(m) => self.sgp4_state(m, time, resonance)?,
+                    None => {
+                        return Err(PropagationError::OutsideEphemeris {
+                            catalog_number: self.catalog_number,
+                            time,
+                        });
+                    }
+                },
+            },
+        };
+        let altitude_km = approximate_altitude_km(&position);
+        let r_km = (position[0].powi(2) + position[1].powi(2) + position[2].powi(2)).sqrt();
         // Two tests: the user's altitude (default the ellipsoid surface), and the
         // reference implementation's own decay test, radius below one Earth
         // radius (Vallado et al. 2006, error code 6).
@@ -205,9 +307,28 @@ impl Propagator {
         }
         Ok(StateTeme {
             time,
-            position_km: p.position,
-            velocity_km_s: p.velocity,
+            position_km: position,
+            velocity_km_s: velocity,
         })
+    }
+}
+
+impl Propagator {
+    fn sgp4_state(
+        &self,
+        model: &Sgp4Model,
+        time: UtcTime,
+        resonance: Option<&mut sgp4::ResonanceState>,
+    ) -> Result<([f64; 3], [f64; 3]), PropagationError> {
+        let minutes = time.s_since(model.epoch) / 60.0;
+        let p = model
+            .constants
+            .propagate_from_state(sgp4::MinutesSinceEpoch(minutes), resonance, model.afspc)
+            .map_err(|_| PropagationError::Diverged {
+                catalog_number: self.catalog_number,
+                time,
+            })?;
+        Ok((p.position, p.velocity))
     }
 }
 
@@ -221,14 +342,14 @@ pub struct Cursor<'a> {
 
 impl Cursor<'_> {
     pub fn state_at(&mut self, time: UtcTime) -> Result<StateTeme, PropagationError> {
-        if let Some(state) = &self.resonance {
-            let t_min = time.s_since(self.prop.epoch) / 60.0;
+        if let (Some(state), Some(model)) = (&self.resonance, self.prop.motion.sgp4()) {
+            let t_min = time.s_since(model.epoch) / 60.0;
             let t_int = state.t();
             // The crate panics when asked to integrate backwards; restart instead.
             if (t_int != 0.0 && t_int.is_sign_positive() != t_min.is_sign_positive())
                 || t_min.abs() < t_int.abs()
             {
-                self.resonance = self.prop.constants.initial_state();
+                self.resonance = model.constants.initial_state();
             }
         }
         self.prop.step(time, self.resonance.as_mut())

@@ -28,6 +28,7 @@ fn circular(alt_km: f64) -> ElementSet {
         mean_anomaly_deg: 0.0,
         mean_motion_rev_day: n_rev_day,
         revolution_number: 1,
+        ephemeris: None,
         source: Default::default(),
     }
 }

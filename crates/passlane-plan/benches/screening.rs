@@ -75,6 +75,7 @@ fn element_set(
         mean_anomaly_deg: rng.uniform(0.0, 360.0),
         mean_motion_rev_day: mean_motion_rev_day(a_km),
         revolution_number: 0,
+        ephemeris: None,
         source: SourceRef::default(),
     }
 }

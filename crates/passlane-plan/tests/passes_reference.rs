@@ -276,6 +276,7 @@ fn equatorial_overhead_pass_matches_geometry() {
         mean_anomaly_deg: 0.0,
         mean_motion_rev_day: n_rev_day,
         revolution_number: 1,
+        ephemeris: None,
         source: Default::default(),
     };
     let mut st = Station::new("Equator", 0.0, 0.0, 0.0);

@@ -681,18 +681,26 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
         &mut buf,
         set,
         &states,
-        t("2026-11-30T12:00:00Z"),
-        "Kestrel Ridge Space Lab",
+        &export::OemOptions {
+            created: t("2026-11-30T12:00:00Z"),
+            originator: "Kestrel Ridge Space Lab (fictional)",
+            frame: export::OemFrame::Teme,
+            ..Default::default()
+        },
     )
     .unwrap();
     let text = String::from_utf8(buf).unwrap();
     let lines: Vec<&str> = text.lines().collect();
-    // CCSDS 502.0-B-2: version first, then the header keywords.
-    assert_eq!(lines[0], "CCSDS_OEM_VERS = 2.0");
+    // CCSDS 502.0-B-3 Table 5-2: version first (3.0, 7.9.1), comments, then
+    // the header keywords; ORIGINATOR in one case (7.5.3).
+    assert_eq!(lines[0], "CCSDS_OEM_VERS = 3.0");
+    assert!(lines[1].starts_with("COMMENT "));
     assert!(lines.contains(&"CREATION_DATE = 2026-11-30T12:00:00.000"));
-    assert!(lines.contains(&"ORIGINATOR = Kestrel Ridge Space Lab"));
+    assert!(lines.contains(&"ORIGINATOR = KESTREL_RIDGE_SPACE_LAB_FICTIONAL"));
+    assert!(lines.contains(&"MESSAGE_ID = 90001_20261201000000"));
     let meta_start = lines.iter().position(|l| *l == "META_START").unwrap();
     let meta_stop = lines.iter().position(|l| *l == "META_STOP").unwrap();
+    // Table 5-3 order; INTERPOLATION and its degree given (5.2.4.7).
     assert_eq!(
         &lines[meta_start + 1..meta_stop],
         &[
@@ -703,6 +711,8 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
             "TIME_SYSTEM = UTC",
             "START_TIME = 2026-12-01T00:00:00.000",
             "STOP_TIME = 2026-12-01T03:00:00.000",
+            "INTERPOLATION = LAGRANGE",
+            "INTERPOLATION_DEGREE = 9",
         ]
     );
     let data: Vec<&str> = lines[meta_stop + 1..]
@@ -722,8 +732,8 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
         for k in 0..3 {
             let p: f64 = f[1 + k].parse().unwrap();
             let v: f64 = f[4 + k].parse().unwrap();
-            assert!((p - s.position_km[k]).abs() <= 5e-7, "{line}");
-            assert!((v - s.velocity_km_s[k]).abs() <= 5e-10, "{line}");
+            assert!((p - s.position_km[k]).abs() <= 5e-10, "{line}");
+            assert!((v - s.velocity_km_s[k]).abs() <= 5e-13, "{line}");
         }
     }
     assert!(data.last().unwrap().starts_with("2026-12-01T03:00:00.000 "));

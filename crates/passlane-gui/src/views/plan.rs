@@ -57,6 +57,8 @@ pub fn export_plan(
             originator: scenario.originator(),
             created,
             pointing_step_s: POINTING_STEP_S,
+            oem_format: passlane_orbit::ephemeris::OemFormat::Kvn,
+            oem_frame: passlane_plan::export::OemFrame::Eme2000,
         },
     );
     let written = passlane_files::folder::write_folder(

@@ -46,6 +46,11 @@ pub struct ElementSet {
     pub mean_motion_rev_day: f64,
     pub revolution_number: u32,
     pub source: SourceRef,
+    /// When set, this spacecraft moves by the operator's ephemeris (OEM)
+    /// instead of SGP4 on these elements, and the elements above are the
+    /// *bounding* elements of that ephemeris (see [`crate::ephemeris`]).
+    #[serde(skip)]
+    pub ephemeris: Option<std::sync::Arc<crate::ephemeris::EphemerisSource>>,
 }
 
 /// Severity of a loader finding.

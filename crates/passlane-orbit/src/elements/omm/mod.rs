@@ -293,6 +293,7 @@ impl<'f> Record<'f> {
             mean_anomaly_deg: r("MEAN_ANOMALY"),
             mean_motion_rev_day: r("MEAN_MOTION"),
             revolution_number: w("REV_AT_EPOCH"),
+            ephemeris: None,
             source: SourceRef {
                 file: file.to_string(),
                 line: record_line,

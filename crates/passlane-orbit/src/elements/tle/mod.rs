@@ -599,6 +599,7 @@ fn read_record(
         mean_anomaly_deg: mean_anomaly,
         mean_motion_rev_day: mean_motion,
         revolution_number,
+        ephemeris: None,
         source: SourceRef {
             file: r.file.to_string(),
             line: record_line,

@@ -141,12 +141,7 @@ pub(super) fn drop_unreachable_secondaries(objects: &mut Vec<Object>) {
 }
 
 pub(crate) fn diagnostic(o: &Object, e: &PropagationError) -> ObjectDiagnostic {
-    let time = match *e {
-        PropagationError::BadElements { .. } => None,
-        PropagationError::Diverged { time, .. } | PropagationError::Decayed { time, .. } => {
-            Some(time)
-        }
-    };
+    let time = e.time();
     ObjectDiagnostic {
         name: o.id.name.clone(),
         catalog_number: o.id.catalog_number,

@@ -3,8 +3,8 @@
 //! give it to `passlane-files`, which writes the folder).
 //!
 //! Layout: `plan.csv`, `plan.json`, `plan.ics`, `pointing/*.csv` (one per
-//! kept contact, direct SGP4 every `pointing_step_s`) and `oem/*.oem` (one
-//! per planned spacecraft). A contact or spacecraft whose table cannot be
+//! kept contact, direct SGP4 every `pointing_step_s`) and `oem/*.oem` or
+//! `oem/*.xml` (CCSDS 502.0-B-3 OEM, KVN or XML, one per planned spacecraft). A contact or spacecraft whose table cannot be
 //! computed (propagation failure) is left out with a warning rather than
 //! failing the whole hand-off.
 //!
@@ -15,11 +15,13 @@ use std::io;
 
 use passlane_orbit::{EarthOrientation, ElementSet, UtcTime};
 
+use super::oem::{OemFrame, OemOptions, oem_extension};
 use super::{oem_states, oem_step_s, pointing_file_name, write_icalendar, write_oem};
 use super::{write_plan_csv, write_plan_json, write_pointing_csv};
 use crate::pointing::pointing_table_between;
 use crate::schedule::Plan;
 use crate::station::Station;
+use passlane_orbit::ephemeris::OemFormat;
 
 /// One file of a hand-off folder.
 #[derive(Debug, Clone, PartialEq)]
@@ -53,6 +55,9 @@ pub struct HandOffContext<'a> {
     pub created: UtcTime,
     /// Sampling step of the pointing tables, s.
     pub pointing_step_s: f64,
+    /// Form and frame of the OEM files.
+    pub oem_format: OemFormat,
+    pub oem_frame: OemFrame,
 }
 
 fn render(fill: impl FnOnce(&mut Vec<u8>) -> io::Result<()>) -> Vec<u8> {
@@ -118,11 +123,25 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> HandOff {
         match oem_states(set, plan.start, plan.end, oem_step_s(set)) {
             Ok(states) => files.push((
                 format!(
-                    "oem/{}_{}.oem",
+                    "oem/{}_{}.{}",
                     set.catalog_number,
-                    super::oem::slug_name(&set.name)
+                    super::oem::slug_name(&set.name),
+                    oem_extension(ctx.oem_format)
                 ),
-                render(|w| write_oem(w, set, &states, ctx.created, ctx.originator)),
+                render(|w| {
+                    write_oem(
+                        w,
+                        set,
+                        &states,
+                        &OemOptions {
+                            created: ctx.created,
+                            originator: ctx.originator,
+                            message_id: String::new(),
+                            frame: ctx.oem_frame,
+                            format: ctx.oem_format,
+                        },
+                    )
+                }),
             )),
             Err(e) => warnings.push(format!("no OEM for {}: {e}", set.name)),
         }

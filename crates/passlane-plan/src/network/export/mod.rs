@@ -5,7 +5,7 @@
 //! - [`ical`]: iCalendar (RFC 5545), one event per contact with a UID derived
 //!   from what identifies the contact, so a re-imported plan updates events;
 //! - [`pointing`]: per-contact pointing tables as CSV;
-//! - [`oem`]: CCSDS Orbit Ephemeris Messages (502.0-B-2, KVN) per spacecraft;
+//! - [`oem`]: CCSDS Orbit Ephemeris Messages (502.0-B-3, KVN or XML) per spacecraft;
 //! - [`hand_off`]: all of them for one plan, as the set of files of a
 //!   hand-off folder (paths and contents) for the file writer.
 //!
@@ -19,7 +19,7 @@ pub mod table;
 
 pub use hand_off::{HandOff, HandOffContext, HandOffFile, hand_off_files};
 pub use ical::write_icalendar;
-pub use oem::{oem_states, oem_step_s, write_oem};
+pub use oem::{OemFrame, OemOptions, oem_states, oem_step_s, write_oem};
 pub use pointing::{pointing_file_name, write_pointing_csv};
 pub use table::{write_plan_csv, write_plan_json};
 
