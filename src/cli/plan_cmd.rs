@@ -7,36 +7,26 @@ use std::path::{Path, PathBuf};
 use anyhow::{Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::export;
-use passlane_plan::passes::{PassOptions, Silent, find_passes};
+use passlane_plan::passes::{PassOptions, find_passes};
 use passlane_plan::schedule::{Method, Plan, plan_scenario};
 
-use super::args::RawArgs;
-use super::common::{self, Format};
+use super::args::PlanArgs;
+use super::common::{self, Format, Sources};
+use super::progress::Bar;
 
-pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO] [--out DIR] [--format table|json] \
-[--pointing-step-s S]";
-
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "scenario",
-            "elements",
-            "start",
-            "end",
-            "out",
-            "format",
-            "pointing-step-s",
-        ],
-        &["lenient"],
-    )?;
-    if args.value("scenario").is_none() {
-        bail!("--scenario FILE is required: the network (stations, antennas, demands) lives there");
-    }
-    let inputs = common::gather(&args, true)?;
+pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
+    let sources = Sources {
+        scenario: Some(&args.scenario),
+        elements: &args.elements,
+        stations: &[],
+        start: args.window.start,
+        end: args.window.end,
+        lenient: args.lenient,
+    };
+    let inputs = common::gather(&sources, true)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let pointing_step_s = args.f64_value("pointing-step-s")?.unwrap_or(1.0);
+    let format = Format::from(args.format);
+    let pointing_step_s = args.pointing_step_s;
     if pointing_step_s <= 0.0 {
         bail!("--pointing-step-s must be positive");
     }
@@ -50,7 +40,9 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         earth_orientation: eop,
         min_elevation_deg: None,
     };
-    let report = find_passes(&inputs.sets, &scenario.stations, &options, &Silent);
+    let bar = Bar::new("contact windows", args.quiet.quiet);
+    let report = find_passes(&inputs.sets, &scenario.stations, &options, &bar);
+    bar.finish();
     for f in &report.failures {
         eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
     }
@@ -61,16 +53,16 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         start,
         end,
         &eop,
-        &Silent,
+        &Bar::new("plan", args.quiet.quiet),
     )
     .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
     for w in &plan.warnings {
         eprintln!("warning: {w}");
     }
     let created = UtcTime::from_chrono(chrono::Utc::now());
-    let written = match args.value("out") {
+    let written = match &args.out {
         Some(dir) => Some(write_outputs(
-            Path::new(dir),
+            dir,
             &plan,
             &inputs.sets,
             scenario,

@@ -13,14 +13,10 @@ use passlane_plan::screen::{
 };
 use serde::Serialize;
 
-use super::args::RawArgs;
-use super::common::{self, Format};
+use super::args::{CdmArgs, ScreenArgs};
+use super::common::{self, Format, Sources};
 use super::passes_cmd::csv_field;
-
-pub const USAGE: &str = "passlane screen --elements FLEET_FILE [--catalog FILE] [--all-vs-all] --start ISO --end ISO \
---threshold-km D [--box-km R,I,C | --ellipsoid-km R,I,C] [--hard-body-radius-m R] [--format table|csv|json] \
-[--cdm-dir DIR] [--scenario FILE] [--quiet]";
-pub const CDM_USAGE: &str = "passlane cdm FILE [--hard-body-radius-m R] [--format table|json]";
+use super::progress::Bar;
 
 const CAUTION: &str = "Caution: screening on published mean elements is advisory. Defer to official conjunction \
 messages and coordinate with the other operator before acting.";
@@ -46,8 +42,9 @@ struct Row<'a> {
     risk_note: Option<String>,
 }
 
-fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
-    let Some(v) = args.value(name) else {
+/// `--box-km` or `--ellipsoid-km`: three positive sizes in km.
+fn three(value: Option<&str>, name: &str) -> Result<Option<[f64; 3]>> {
+    let Some(v) = value else {
         return Ok(None);
     };
     let parts: Vec<f64> = v
@@ -61,41 +58,25 @@ fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
     }
 }
 
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "elements",
-            "catalog",
-            "scenario",
-            "start",
-            "end",
-            "threshold-km",
-            "box-km",
-            "ellipsoid-km",
-            "hard-body-radius-m",
-            "format",
-            "cdm-dir",
-            "originator",
-        ],
-        &["all-vs-all", "lenient", "quiet"],
-    )?;
-    let inputs = common::gather(&args, false)?;
+pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
+    let inputs = common::gather(&Sources::new(&args.fleet, Some(&args.window)), false)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(
-        &args,
-        Format::Table,
-        &[Format::Table, Format::Csv, Format::Json],
-    )?;
+    let format = Format::from(args.format);
     let scenario = inputs.scenario.as_ref().map(|(_, s)| s);
     let defaults = scenario.map(|s| s.screening.clone()).unwrap_or_default();
-    let threshold_km = args
-        .f64_value("threshold-km")?
-        .unwrap_or(defaults.threshold_km);
+    let threshold_km = args.threshold_km.unwrap_or(defaults.threshold_km);
     if threshold_km <= 0.0 {
         bail!("--threshold-km must be positive");
     }
-    let volume = match (three(&args, "box-km")?, three(&args, "ellipsoid-km")?) {
+    if let Some(r) = args.hard_body_radius_m
+        && r <= 0.0
+    {
+        bail!("--hard-body-radius-m must be positive");
+    }
+    let volume = match (
+        three(args.box_km.as_deref(), "box-km")?,
+        three(args.ellipsoid_km.as_deref(), "ellipsoid-km")?,
+    ) {
         (Some(_), Some(_)) => bail!("give --box-km or --ellipsoid-km, not both"),
         (Some([r, i, c]), None) => ScreeningVolume::Box {
             radial_km: r,
@@ -111,12 +92,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             radius_km: threshold_km,
         },
     };
-    let mut catalog_paths: Vec<PathBuf> =
-        args.values("catalog").iter().map(PathBuf::from).collect();
+    let mut catalog_paths: Vec<PathBuf> = args.catalog.clone();
     if catalog_paths.is_empty()
-        && !args.flag("all-vs-all")
+        && !args.all_vs_all
         && let Some((p, s)) = &inputs.scenario
-        && args.values("elements").is_empty()
+        && args.fleet.elements.is_empty()
     {
         catalog_paths = s
             .catalog_files
@@ -127,19 +107,18 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let catalog: Option<Vec<ElementSet>> = if catalog_paths.is_empty() {
         None
     } else {
-        Some(common::load_fleet(&catalog_paths, args.flag("lenient"))?)
+        Some(common::load_fleet(&catalog_paths, args.fleet.lenient)?)
     };
     // All-vs-all: the catalog (or the element files) against itself.
-    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) =
-        if args.flag("all-vs-all") {
-            let mut all = inputs.sets.clone();
-            if let Some(c) = catalog {
-                all.extend(c);
-            }
-            (all, None)
-        } else {
-            (inputs.sets.clone(), catalog)
-        };
+    let (primaries, secondaries): (Vec<ElementSet>, Option<Vec<ElementSet>>) = if args.all_vs_all {
+        let mut all = inputs.sets.clone();
+        if let Some(c) = catalog {
+            all.extend(c);
+        }
+        (all, None)
+    } else {
+        (inputs.sets.clone(), catalog)
+    };
     // The fleet screens against itself too: fleet-vs-catalog adds the catalog.
     let request = ScreeningRequest {
         primaries: &primaries,
@@ -151,29 +130,20 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             ..ScreeningSettings::default()
         },
     };
-    let quiet = args.flag("quiet");
-    let last_pct = std::sync::atomic::AtomicI64::new(-1);
-    let progress = |f: f64| {
-        let pct = (f * 100.0).floor() as i64;
-        let before = last_pct.swap(pct, std::sync::atomic::Ordering::Relaxed);
-        if !quiet && pct != before && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
-            eprint!("\rscreening… {pct:3}%");
-        }
-        true
-    };
-    let mut result = screen_with_progress(&request, &progress);
-    if !quiet && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
-        eprintln!("\rscreening… done ");
-    }
+    let bar = Bar::new("screening", args.quiet.quiet);
+    let mut result = screen_with_progress(&request, &bar.callback());
+    bar.finish();
     // Fleet-vs-catalog also wants the fleet's own pairs.
-    if secondaries.is_some() && !args.flag("all-vs-all") && primaries.len() > 1 {
+    if secondaries.is_some() && !args.all_vs_all && primaries.len() > 1 {
+        let bar = Bar::new("fleet pairs", args.quiet.quiet);
         let own = screen_with_progress(
             &ScreeningRequest {
                 secondaries: None,
                 ..request
             },
-            &|_| true,
+            &bar.callback(),
         );
+        bar.finish();
         result.events.extend(own.events);
         result
             .events
@@ -189,7 +159,7 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         &result.events,
         primaries.iter().chain(secondaries.iter().flatten()),
         assumptions,
-        args.f64_value("hard-body-radius-m")?,
+        args.hard_body_radius_m,
     );
     let label = covariance.label();
     let rows: Vec<Row> = result
@@ -219,12 +189,10 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             },
         })
         .collect();
-    if let Some(dir) = args.value("cdm-dir") {
-        let dir = PathBuf::from(dir);
-        std::fs::create_dir_all(&dir)
-            .with_context(|| format!("cannot create {}", dir.display()))?;
+    if let Some(dir) = &args.cdm_dir {
+        std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::from_chrono(chrono::Utc::now());
-        let originator = args.value("originator").unwrap_or("PASSLANE");
+        let originator = args.originator.as_str();
         let by_number: HashMap<u32, &ElementSet> = primaries
             .iter()
             .chain(secondaries.iter().flatten())
@@ -401,13 +369,10 @@ fn describe_volume(v: &ScreeningVolume) -> String {
     }
 }
 
-pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(argv, &["hard-body-radius-m", "format"], &[])?;
-    let [file] = args.positionals.as_slice() else {
-        bail!("give one CDM file\nusage: {CDM_USAGE}");
-    };
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let bytes = passlane_files::read_limited(std::path::Path::new(file), 16 * 1024 * 1024)
+pub fn run_cdm(args: &CdmArgs, out: &mut dyn Write) -> Result<()> {
+    let file = &args.file.display().to_string();
+    let format = Format::from(args.format);
+    let bytes = passlane_files::read_limited(&args.file, 16 * 1024 * 1024)
         .with_context(|| format!("cannot read {file}"))?;
     let text = String::from_utf8(bytes).map_err(|e| {
         anyhow::anyhow!(
@@ -416,7 +381,7 @@ pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
         )
     })?;
     let cdm = Cdm::parse(&text, file)?;
-    let hbr = args.f64_value("hard-body-radius-m")?.unwrap_or(10.0);
+    let hbr = args.hard_body_radius_m;
     if hbr <= 0.0 {
         bail!("--hard-body-radius-m must be positive");
     }
