@@ -15,6 +15,7 @@ pub mod constants;
 pub mod elements;
 pub mod frames;
 pub mod interpolate;
+pub mod numerical;
 pub mod propagate;
 pub mod summary;
 pub mod sun;
