@@ -39,6 +39,7 @@ fn main() -> ExitCode {
         Command::Screen(args) => cli::screen_cmd::run(args, out),
         Command::Cdm(args) => cli::screen_cmd::run_cdm(args, out),
         Command::Plan(args) => cli::plan_cmd::run(args, out),
+        Command::Avoid(args) => cli::avoid_cmd::run(args, out),
         Command::Completions(args) => completions(args.shell, out),
         // Handled above: the window writes nothing to standard output.
         Command::Open(_) => Ok(()),

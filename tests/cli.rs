@@ -851,3 +851,107 @@ fn two_stations_of_one_name_are_refused_naming_both() {
         "{err}"
     );
 }
+
+#[test]
+fn avoid_json_contract_and_refusals() {
+    // The demo's designed encounter of KRSL-3 with DEBRIS 99871.
+    let base = [
+        "avoid",
+        "--scenario",
+        "scenarios/demo.json",
+        "--primary",
+        "90003",
+        "--secondary",
+        "99871",
+        "--tca",
+        "2026-12-03T06:00:00Z",
+    ];
+    let mut one: Vec<&str> = base.to_vec();
+    one.extend([
+        "--burn-time",
+        "2026-12-03T03:00:00Z",
+        "--dv-ric-m-s",
+        "0,0.05,0",
+        "--format",
+        "json",
+    ]);
+    let v = ok_json(&one);
+    has_fields(
+        &v,
+        &[
+            "primary_catalog_number",
+            "secondary_catalog_number",
+            "burn_time",
+            "dv_ric_m_s",
+            "before",
+            "after",
+        ],
+    );
+    for side in ["before", "after"] {
+        has_fields(
+            &v[side],
+            &[
+                "tca",
+                "miss_distance_km",
+                "radial_km",
+                "in_track_km",
+                "cross_track_km",
+                "relative_speed_km_s",
+                "pc",
+                "pc_max",
+            ],
+        );
+    }
+    assert_eq!(v["dv_ric_m_s"][1].as_f64(), Some(0.05));
+    assert!(v["after"]["miss_distance_km"].as_f64() > v["before"]["miss_distance_km"].as_f64());
+
+    let mut tr: Vec<&str> = base.to_vec();
+    tr.extend([
+        "--trade",
+        "--orbits-before",
+        "1,2",
+        "--dv-m-s=-0.1,0.1",
+        "--format",
+        "json",
+    ]);
+    let v = ok_json(&tr);
+    let rows = v["trade"].as_array().unwrap();
+    assert_eq!(rows.len(), 4);
+    has_fields(
+        &rows[0],
+        &[
+            "orbits_before",
+            "burn_time",
+            "dv_in_track_m_s",
+            "miss_distance_km",
+            "pc",
+        ],
+    );
+    assert_eq!(v["smallest"].as_array().unwrap().len(), 2);
+
+    // A burn after the TCA names the option.
+    let mut late: Vec<&str> = base.to_vec();
+    late.extend([
+        "--burn-time",
+        "2026-12-03T07:00:00Z",
+        "--dv-ric-m-s",
+        "0,0.05,0",
+    ]);
+    let out = passlane(&late);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--burn-time"));
+    // An unknown catalog number names the option too.
+    let out = passlane(&[
+        "avoid",
+        "--scenario",
+        "scenarios/demo.json",
+        "--primary",
+        "12345",
+        "--secondary",
+        "99871",
+        "--tca",
+        "2026-12-03T06:00:00Z",
+        "--trade",
+    ]);
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--primary 12345"));
+}

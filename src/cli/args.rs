@@ -30,6 +30,12 @@ Cautions: element-set screening is advisory; defer to official conjunction
 messages and coordinate with the other operator. Transmitting needs a licence
 and follows local rules.";
 
+/// Under the help of the avoidance command.
+const AVOID_CAUTION: &str = "\
+Caution: results are advisory and come from published elements (or the CDM's
+states). Coordinate any manoeuvre with the other operator and the responsible
+screening service first; this tool plans, it does not command a spacecraft.";
+
 /// Under the help of the commands that assess close approaches.
 const CAUTION: &str = "\
 Caution: screening on published mean elements is advisory. Defer to official
@@ -78,6 +84,9 @@ pub enum Command {
     Cdm(CdmArgs),
     /// Network contact plan; calendar, pointing and OEM files
     Plan(PlanArgs),
+    /// What a burn does to a close approach, and which burn, when, moves the spacecraft clear
+    #[command(after_help = AVOID_CAUTION)]
+    Avoid(AvoidArgs),
     /// Shell completion script on standard output
     #[command(
         after_help = "bash: passlane completions bash > ~/.local/share/bash-completion/completions/passlane\n\
@@ -99,6 +108,7 @@ impl Command {
             Command::Screen(_) => "screen",
             Command::Cdm(_) => "cdm",
             Command::Plan(_) => "plan",
+            Command::Avoid(_) => "avoid",
             Command::Completions(_) => "completions",
         }
     }
@@ -403,6 +413,79 @@ pub struct CdmArgs {
     /// Combined hard-body radius of the two objects, metres (a CDM carries none)
     #[arg(long, value_name = "M", value_parser = finite_f64, default_value_t = 10.0, help_heading = "Probability", allow_hyphen_values = true)]
     pub hard_body_radius_m: f64,
+    /// Output format on standard output
+    #[arg(long, value_enum, default_value_t = TableJson::Table, help_heading = "Output", allow_hyphen_values = true)]
+    pub format: TableJson,
+}
+
+#[derive(Debug, Args)]
+pub struct AvoidArgs {
+    #[command(flatten)]
+    pub fleet: FleetArgs,
+    /// Element file of other objects (the secondary may be there); repeatable [default: the scenario's catalog_files]
+    #[arg(
+        long,
+        value_name = "FILE",
+        help_heading = "Inputs",
+        allow_hyphen_values = true
+    )]
+    pub catalog: Vec<PathBuf>,
+    /// A CCSDS CDM (KVN) in place of --primary/--secondary/--tca: states and covariances from the message
+    #[arg(
+        long,
+        value_name = "FILE",
+        help_heading = "Inputs",
+        allow_hyphen_values = true
+    )]
+    pub cdm: Option<PathBuf>,
+    /// Catalog number of the spacecraft that would burn
+    #[arg(long, value_name = "CATNUM", help_heading = "Encounter")]
+    pub primary: Option<u32>,
+    /// Catalog number of the other object
+    #[arg(long, value_name = "CATNUM", help_heading = "Encounter")]
+    pub secondary: Option<u32>,
+    /// Time of closest approach, ISO 8601 UTC (the nearest distance minimum to it is used)
+    #[arg(long, value_name = "ISO", value_parser = utc_time, help_heading = "Encounter", allow_hyphen_values = true)]
+    pub tca: Option<UtcTime>,
+    /// Time of the burn, ISO 8601 UTC, before the TCA
+    #[arg(long, value_name = "ISO", value_parser = utc_time, help_heading = "Burn", allow_hyphen_values = true)]
+    pub burn_time: Option<UtcTime>,
+    /// Velocity change radial, in-track, cross-track in the primary's frame at the burn, m/s
+    #[arg(
+        long,
+        value_name = "R,I,C",
+        help_heading = "Burn",
+        allow_hyphen_values = true
+    )]
+    pub dv_ric_m_s: Option<String>,
+    /// Instead of one burn: the trade of burn time against in-track dv
+    #[arg(long, help_heading = "Trade", conflicts_with_all = ["burn_time", "dv_ric_m_s"])]
+    pub trade: bool,
+    /// Burn times of the trade, in orbits before TCA, comma-separated [default: 0.5,1,1.5,2,2.5,3]
+    #[arg(
+        long,
+        value_name = "LIST",
+        help_heading = "Trade",
+        allow_hyphen_values = true
+    )]
+    pub orbits_before: Option<String>,
+    /// In-track dv values of the trade, m/s, comma-separated, signed [default: +-0.001 to +-1 in 1-2-5 steps]
+    #[arg(
+        long,
+        value_name = "LIST",
+        help_heading = "Trade",
+        allow_hyphen_values = true
+    )]
+    pub dv_m_s: Option<String>,
+    /// Pc the burn must bring the encounter below (common practice: 1e-4)
+    #[arg(long, value_name = "P", value_parser = finite_f64, default_value_t = 1e-4, help_heading = "Trade", allow_hyphen_values = true)]
+    pub target_pc: f64,
+    /// Miss distance the burn must reach, km
+    #[arg(long, value_name = "KM", value_parser = finite_f64, default_value_t = 1.0, help_heading = "Trade", allow_hyphen_values = true)]
+    pub target_miss_km: f64,
+    /// Combined hard-body radius, metres [default: the scenario's radii of the two objects, else 5 m each]
+    #[arg(long, value_name = "M", value_parser = finite_f64, help_heading = "Probability", allow_hyphen_values = true)]
+    pub hard_body_radius_m: Option<f64>,
     /// Output format on standard output
     #[arg(long, value_enum, default_value_t = TableJson::Table, help_heading = "Output", allow_hyphen_values = true)]
     pub format: TableJson,

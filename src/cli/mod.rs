@@ -3,6 +3,7 @@
 //! and calls the library, as the desktop app does.
 
 pub mod args;
+pub mod avoid_cmd;
 pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;
