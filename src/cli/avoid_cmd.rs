@@ -2,7 +2,7 @@
 //! burn time against in-track Δv, from element sets or from a CDM.
 
 use std::io::Write;
-use std::path::PathBuf;
+use std::path::Path;
 
 use anyhow::{Context, Result, bail};
 use passlane_orbit::numerical::Drag;
@@ -13,7 +13,7 @@ use passlane_plan::avoid::{
 };
 use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{AssumedCovariance, hard_body_radius_m};
-use passlane_plan::encounter::earth_fixed_to_aligned_inertial;
+use passlane_plan::encounter::{Mat3, earth_fixed_to_aligned_inertial};
 use serde::Serialize;
 
 use super::args::AvoidArgs;
@@ -78,13 +78,13 @@ struct Setup {
     /// From element sets: both sets (for the assumed covariance and drag).
     sets: Option<(ElementSet, ElementSet)>,
     /// From a CDM: both RTN position covariances, m².
-    given: Option<([[f64; 3]; 3], [[f64; 3]; 3])>,
+    given: Option<(Mat3, Mat3)>,
     assumed: AssumedCovariance,
     hbr_m: f64,
     hbr_source: String,
 }
 
-fn from_cdm(args: &AvoidArgs, path: &PathBuf) -> Result<Setup> {
+fn from_cdm(args: &AvoidArgs, path: &Path) -> Result<Setup> {
     if args.primary.is_some() || args.secondary.is_some() || args.tca.is_some() {
         bail!("--cdm gives the objects and the TCA: leave out --primary, --secondary and --tca");
     }
