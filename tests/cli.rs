@@ -219,7 +219,7 @@ fn passes_from_the_demo_scenario_alone() {
         String::from_utf8_lossy(&out.stderr)
     );
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("Northfell") && text.contains("KRSL-5 AUK"));
+    assert!(text.contains("Northfell") && text.contains("KRSL-5 FIRTHEN"));
     assert!(text.contains("pass(es)"));
 }
 
@@ -516,7 +516,7 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         "--station",
         "coral shoal",
         "--satellite",
-        "KRSL-5 AUK",
+        "KRSL-5 FIRTHEN",
         "--pass-start",
         "2026-12-01T02:28:00Z",
         "--step-s",

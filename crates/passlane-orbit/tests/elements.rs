@@ -14,18 +14,18 @@ const STRICT: LoadOptions = LoadOptions { lenient: false };
 const LENIENT: LoadOptions = LoadOptions { lenient: true };
 
 // Three invented records (the first three of the demo fleet).
-const HERON: [&str; 3] = [
-    "KRSL-1 HERON",
+const ORMIVEL: [&str; 3] = [
+    "KRSL-1 ORMIVEL",
     "1 90001U 26901A   26335.21354167  .00000876  00000-0  21000-3 0  9993",
     "2 90001  97.4021  45.1200 0010170  88.1000 272.0000 15.20279803 12341",
 ];
-const WREN: [&str; 3] = [
-    "KRSL-2 WREN",
+const BREVANDT: [&str; 3] = [
+    "KRSL-2 BREVANDT",
     "1 90002U 26901B   26335.22100000  .00000876  00000-0  24000-3 0  9993",
     "2 90002  97.4033  45.3100 0010171  91.4000 250.0000 15.20611168 12333",
 ];
-const PLOVER: [&str; 3] = [
-    "KRSL-3 PLOVER",
+const LUNNOCK: [&str; 3] = [
+    "KRSL-3 LUNNOCK",
     "1 90003U 26902A   26335.40312500  .00000876  00000-0  16000-3 0  9996",
     "2 90003  97.5712 312.4400 0010828 120.7000 239.5000 15.05981034  8719",
 ];
@@ -43,16 +43,16 @@ fn fix_checksum(line: &str) -> String {
     s
 }
 
-/// HERON (lines 1-3), then `middle` (from line 4), then PLOVER.
+/// ORMIVEL (lines 1-3), then `middle` (from line 4), then LUNNOCK.
 fn around(middle: &[String]) -> Vec<u8> {
-    let mut lines: Vec<String> = HERON.iter().map(|s| s.to_string()).collect();
+    let mut lines: Vec<String> = ORMIVEL.iter().map(|s| s.to_string()).collect();
     lines.extend(middle.iter().cloned());
-    lines.extend(PLOVER.iter().map(|s| s.to_string()));
+    lines.extend(LUNNOCK.iter().map(|s| s.to_string()));
     (lines.join("\n") + "\n").into_bytes()
 }
 
-fn wren() -> Vec<String> {
-    WREN.iter().map(|s| s.to_string()).collect()
+fn brevandt() -> Vec<String> {
+    BREVANDT.iter().map(|s| s.to_string()).collect()
 }
 
 fn catalogs(r: &LoadReport) -> Vec<u32> {
@@ -82,7 +82,7 @@ fn check(name: &str, r: &LoadReport, expected: &[Expect], loaded: &[u32]) {
 #[test]
 fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
     use Severity::{Error, Warning};
-    let w = wren();
+    let w = brevandt();
     let bad_checksum = vec![w[0].clone(), format!("{}4", &w[1][..68]), w[2].clone()];
     // Inclination moved one column to the right: the blank column 17 is taken.
     let shifted = vec![
@@ -115,7 +115,7 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
         Vec<u32>,
     );
     let cases: Vec<Case> = vec![
-        ("good", wren(), STRICT, vec![], vec![90001, 90002, 90003]),
+        ("good", brevandt(), STRICT, vec![], vec![90001, 90002, 90003]),
         (
             "checksum wrong, strict",
             bad_checksum.clone(),
@@ -238,13 +238,13 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
             vec![90001, 90002, 90003],
         ),
         (
-            // Same catalog number as HERON with a newer epoch: the newer one
+            // Same catalog number as ORMIVEL with a newer epoch: the newer one
             // (line 4) is kept, the older (line 1) dropped with a warning.
             "duplicate catalog number",
             vec![
-                "KRSL-1 HERON (NEWER)".to_string(),
-                edit(HERON[1], 19, "26336.21354167"),
-                HERON[2].to_string(),
+                "KRSL-1 ORMIVEL (NEWER)".to_string(),
+                edit(ORMIVEL[1], 19, "26336.21354167"),
+                ORMIVEL[2].to_string(),
             ],
             STRICT,
             vec![(
@@ -265,12 +265,12 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
 #[test]
 fn duplicate_keeps_the_newest_epoch() {
     let newer = vec![
-        "KRSL-1 HERON (NEWER)".to_string(),
-        edit(HERON[1], 19, "26336.21354167"),
-        HERON[2].to_string(),
+        "KRSL-1 ORMIVEL (NEWER)".to_string(),
+        edit(ORMIVEL[1], 19, "26336.21354167"),
+        ORMIVEL[2].to_string(),
     ];
     let r = load(&around(&newer), "case.tle", STRICT);
-    assert_eq!(r.sets[0].name, "KRSL-1 HERON (NEWER)");
+    assert_eq!(r.sets[0].name, "KRSL-1 ORMIVEL (NEWER)");
     assert_eq!(r.sets[0].source.line, 4);
     // Without de-duplication both stay.
     let r = load_records(&around(&newer), "case.tle", STRICT);
@@ -279,9 +279,9 @@ fn duplicate_keeps_the_newest_epoch() {
 
 #[test]
 fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
-    let mut text = [HERON.join("\n"), PLOVER.join("\n"), WREN[0].to_string()].join("\n");
+    let mut text = [ORMIVEL.join("\n"), LUNNOCK.join("\n"), BREVANDT[0].to_string()].join("\n");
     text.push('\n');
-    text.push_str(&WREN[1][..30]);
+    text.push_str(&BREVANDT[1][..30]);
     let r = load(text.as_bytes(), "case.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001, 90003]);
     assert_eq!(r.diagnostics.len(), 1, "{:#?}", r.diagnostics);
@@ -290,7 +290,7 @@ fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
     assert!(d.message.contains("the file ends here"), "{d}");
 
     // Cut right after a name line.
-    let text = [HERON.join("\n"), WREN[0].to_string()].join("\n");
+    let text = [ORMIVEL.join("\n"), BREVANDT[0].to_string()].join("\n");
     let r = load(text.as_bytes(), "case.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001]);
     assert_eq!(r.diagnostics[0].line, 4);
@@ -304,7 +304,7 @@ fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
 #[test]
 fn resynchronises_on_the_next_line_1_in_two_line_files() {
     // Two-line form: a line 1 without its line 2, then good records.
-    let text = [HERON[1], HERON[2], WREN[1], PLOVER[1], PLOVER[2]].join("\n");
+    let text = [ORMIVEL[1], ORMIVEL[2], BREVANDT[1], LUNNOCK[1], LUNNOCK[2]].join("\n");
     let r = load(text.as_bytes(), "two.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001, 90003]);
     assert_eq!(r.sets[0].name, "CATALOG 90001");
@@ -325,21 +325,21 @@ fn empty_and_blank_files() {
 fn three_line_form_with_zero_names_crlf_trailing_blanks_and_gaps() {
     let text = format!(
         "0 {}   \r\n{}  \r\n{}\t\r\n\r\n\r\n0 {}\r\n{}\r\n{}   ",
-        HERON[0], HERON[1], HERON[2], WREN[0], WREN[1], WREN[2]
+        ORMIVEL[0], ORMIVEL[1], ORMIVEL[2], BREVANDT[0], BREVANDT[1], BREVANDT[2]
     );
     let r = load(text.as_bytes(), "crlf.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
-    assert_eq!(r.sets[0].name, "KRSL-1 HERON");
-    assert_eq!(r.sets[1].name, "KRSL-2 WREN");
+    assert_eq!(r.sets[0].name, "KRSL-1 ORMIVEL");
+    assert_eq!(r.sets[1].name, "KRSL-2 BREVANDT");
     assert_eq!(r.sets[1].source.line, 6);
 }
 
 #[test]
 fn reads_every_tle_field() {
-    let r = load(HERON.join("\n").as_bytes(), "heron.tle", STRICT);
+    let r = load(ORMIVEL.join("\n").as_bytes(), "ormivel.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     let s = &r.sets[0];
-    assert_eq!(s.name, "KRSL-1 HERON");
+    assert_eq!(s.name, "KRSL-1 ORMIVEL");
     assert_eq!(s.catalog_number, 90001);
     assert_eq!(s.classification, 'U');
     assert_eq!(s.international_designator, "26901A");
@@ -357,13 +357,13 @@ fn reads_every_tle_field() {
     assert_eq!(s.mean_anomaly_deg, 272.0);
     assert_eq!(s.mean_motion_rev_day, 15.20279803);
     assert_eq!(s.revolution_number, 1234);
-    assert_eq!((s.source.file.as_str(), s.source.line), ("heron.tle", 1));
+    assert_eq!((s.source.file.as_str(), s.source.line), ("ormivel.tle", 1));
 }
 
 #[test]
 fn alpha5_catalog_numbers_load() {
-    let l1 = edit(HERON[1], 3, "A0001");
-    let l2 = edit(HERON[2], 3, "A0001");
+    let l1 = edit(ORMIVEL[1], 3, "A0001");
+    let l2 = edit(ORMIVEL[2], 3, "A0001");
     let r = load([l1, l2].join("\n").as_bytes(), "a5.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     // Alpha-5 (common practice): A = 10, so A0001 = 100001.
@@ -384,7 +384,7 @@ fn the_demo_fleet_loads_cleanly() {
     let r = load(&demo_fleet(), "demo-fleet.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     assert_eq!(catalogs(&r), vec![90001, 90002, 90003, 90004, 90005, 90006]);
-    assert_eq!(r.sets[5].name, "KRSL-6 SKUA");
+    assert_eq!(r.sets[5].name, "KRSL-6 TASSOREL");
     assert_eq!(r.sets[5].eccentricity, 0.1322046);
 }
 
@@ -450,10 +450,10 @@ fn random_bytes_never_panic() {
 /// A keyword to set (`Some`) or remove (`None`).
 type Change = (&'static str, Option<&'static str>);
 
-/// HERON as OMM keyword/value pairs (CCSDS 502.0 keywords).
-fn heron_omm() -> Vec<(&'static str, &'static str)> {
+/// ORMIVEL as OMM keyword/value pairs (CCSDS 502.0 keywords).
+fn ormivel_omm() -> Vec<(&'static str, &'static str)> {
     vec![
-        ("OBJECT_NAME", "KRSL-1 HERON"),
+        ("OBJECT_NAME", "KRSL-1 ORMIVEL"),
         ("OBJECT_ID", "2026-901A"),
         ("CENTER_NAME", "EARTH"),
         ("REF_FRAME", "TEME"),
@@ -605,8 +605,8 @@ fn json_array(objs: &[String]) -> String {
 
 #[test]
 fn the_same_satellite_in_every_format_gives_the_same_elements() {
-    let tle = load(HERON.join("\n").as_bytes(), "x", STRICT);
-    let p = heron_omm();
+    let tle = load(ORMIVEL.join("\n").as_bytes(), "x", STRICT);
+    let p = ormivel_omm();
     let texts = [
         kvn(&p),
         xml(&p),
@@ -632,12 +632,12 @@ fn the_same_satellite_in_every_format_gives_the_same_elements() {
 
 #[test]
 fn several_omms_in_one_kvn_file() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let second = with(
         &p,
         &[
             ("NORAD_CAT_ID", Some("90002")),
-            ("OBJECT_NAME", Some("KRSL-2 WREN")),
+            ("OBJECT_NAME", Some("KRSL-2 BREVANDT")),
         ],
     );
     let text = kvn(&p) + "\n" + &kvn(&second);
@@ -651,13 +651,13 @@ fn several_omms_in_one_kvn_file() {
 #[test]
 fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
     use Severity::Error;
-    let p = heron_omm();
+    let p = ormivel_omm();
     let a = with(&p, &[("NORAD_CAT_ID", Some("90001"))]);
     let c = with(
         &p,
         &[
             ("NORAD_CAT_ID", Some("90003")),
-            ("OBJECT_NAME", Some("KRSL-3 PLOVER")),
+            ("OBJECT_NAME", Some("KRSL-3 LUNNOCK")),
         ],
     );
     let mid = |changes: &[(&'static str, Option<&'static str>)]| {
@@ -666,7 +666,7 @@ fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
             &[
                 &[
                     ("NORAD_CAT_ID", Some("90002")),
-                    ("OBJECT_NAME", Some("KRSL-2 WREN")),
+                    ("OBJECT_NAME", Some("KRSL-2 BREVANDT")),
                 ],
                 changes,
             ]
@@ -785,7 +785,7 @@ fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
 
 #[test]
 fn missing_bstar_in_kvn_and_xml_names_bstar() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let no_bstar = with(&p, &[("BSTAR", None), ("NORAD_CAT_ID", Some("90002"))]);
     let c = with(&p, &[("NORAD_CAT_ID", Some("90003"))]);
     let text = kvn(&p) + &kvn(&no_bstar) + &kvn(&c);
@@ -806,7 +806,7 @@ fn missing_bstar_in_kvn_and_xml_names_bstar() {
 #[test]
 fn mean_motion_derivatives_default_to_zero() {
     let p = with(
-        &heron_omm(),
+        &ormivel_omm(),
         &[("MEAN_MOTION_DOT", None), ("MEAN_MOTION_DDOT", None)],
     );
     let r = load(kvn(&p).as_bytes(), "x.kvn", STRICT);
@@ -816,7 +816,7 @@ fn mean_motion_derivatives_default_to_zero() {
 
 #[test]
 fn xml_errors_carry_the_line_of_the_element() {
-    let p = with(&heron_omm(), &[("ECCENTRICITY", Some("1.5"))]);
+    let p = with(&ormivel_omm(), &[("ECCENTRICITY", Some("1.5"))]);
     let text = xml(&p);
     let r = load(text.as_bytes(), "x.xml", STRICT);
     let d = &r.diagnostics[0];
@@ -834,7 +834,7 @@ fn xml_errors_carry_the_line_of_the_element() {
 
 #[test]
 fn json_with_numbers_as_strings_loads() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let text = json_array(&[json_obj(&p, true)]);
     assert!(text.contains("\"MEAN_MOTION\": \"15.20279803\""));
     let r = load(text.as_bytes(), "s.json", STRICT);
@@ -844,7 +844,7 @@ fn json_with_numbers_as_strings_loads() {
 
 #[test]
 fn deeply_nested_json_gives_a_clear_error() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let deep = format!("{}{}", "[".repeat(100_000), "]".repeat(100_000));
     let bad = format!("  {{\"NORAD_CAT_ID\": 90002, \"BSTAR\": {deep}}}");
     let c = with(&p, &[("NORAD_CAT_ID", Some("90003"))]);
@@ -863,7 +863,7 @@ fn deeply_nested_json_gives_a_clear_error() {
 
 #[test]
 fn broken_json_keeps_the_records_before_the_break() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let text = format!("[\n{},\n  {{\"NORAD_CAT_ID\": 9000", json_obj(&p, false));
     let r = load(text.as_bytes(), "cut.json", STRICT);
     assert_eq!(catalogs(&r), vec![90001]);
@@ -885,7 +885,7 @@ fn deeply_nested_xml_does_not_crash() {
 
 #[test]
 fn diagnostics_display_file_line_field_and_reason() {
-    let w = wren();
+    let w = brevandt();
     let r = load(
         &around(&[w[0].clone(), format!("{}4", &w[1][..68]), w[2].clone()]),
         "fleet.tle",
