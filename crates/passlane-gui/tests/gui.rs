@@ -346,7 +346,10 @@ fn fleet_view_shows_orbit_summaries_and_stations() {
         .find(|s| s.name == "KRSL-1 ORMIVEL")
         .cloned();
     let ormivel = ormivel.expect("the demo fleet has KRSL-1 ORMIVEL");
-    let period = format!("{:.2}", passlane_orbit::OrbitSummary::of(&ormivel).period_min);
+    let period = format!(
+        "{:.2}",
+        passlane_orbit::OrbitSummary::of(&ormivel).period_min
+    );
     assert!(
         h.query_by_label(&period).is_some(),
         "orbit summary shows the period {period} min"

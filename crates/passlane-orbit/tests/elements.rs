@@ -115,7 +115,13 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
         Vec<u32>,
     );
     let cases: Vec<Case> = vec![
-        ("good", brevandt(), STRICT, vec![], vec![90001, 90002, 90003]),
+        (
+            "good",
+            brevandt(),
+            STRICT,
+            vec![],
+            vec![90001, 90002, 90003],
+        ),
         (
             "checksum wrong, strict",
             bad_checksum.clone(),
@@ -279,7 +285,12 @@ fn duplicate_keeps_the_newest_epoch() {
 
 #[test]
 fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
-    let mut text = [ORMIVEL.join("\n"), LUNNOCK.join("\n"), BREVANDT[0].to_string()].join("\n");
+    let mut text = [
+        ORMIVEL.join("\n"),
+        LUNNOCK.join("\n"),
+        BREVANDT[0].to_string(),
+    ]
+    .join("\n");
     text.push('\n');
     text.push_str(&BREVANDT[1][..30]);
     let r = load(text.as_bytes(), "case.tle", STRICT);
