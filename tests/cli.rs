@@ -171,9 +171,9 @@ fn passes_json_contract_sorted_by_aos() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Bramble Hill,51.45,-1.3,120",
+        "Bramble Hill,51.42,-126.45,1580",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--start",
         "2026-12-01T00:00:00Z",
         "--end",
@@ -222,7 +222,7 @@ fn passes_from_the_demo_scenario_alone() {
         String::from_utf8_lossy(&out.stderr)
     );
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("Northfell") && text.contains("KRSL-5 AUK"));
+    assert!(text.contains("Northfell") && text.contains("KRSL-5 FIRTHEN"));
     assert!(text.contains("pass(es)"));
 }
 
@@ -233,7 +233,7 @@ fn track_gives_a_pointing_table_from_aos_to_los() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--start",
         "2026-12-01T00:00:00Z",
         "--end",
@@ -248,7 +248,7 @@ fn track_gives_a_pointing_table_from_aos_to_los() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--satellite",
         &p["catalog_number"].to_string(),
         "--pass-start",
@@ -520,9 +520,9 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         "--station",
         "coral shoal",
         "--satellite",
-        "KRSL-5 AUK",
+        "KRSL-5 FIRTHEN",
         "--pass-start",
-        "2026-12-01T02:28:00Z",
+        "2026-12-01T07:55:00Z",
         "--step-s",
         "10",
         "--format",
@@ -541,7 +541,7 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         "--satellite",
         "90005",
         "--pass-start",
-        "2026-12-01T02:28:00Z",
+        "2026-12-01T07:55:00Z",
     ]);
     assert!(!out.status.success());
     let err = String::from_utf8_lossy(&out.stderr);
