@@ -8,167 +8,80 @@ use std::io::Write;
 use std::path::PathBuf;
 use std::process::ExitCode;
 
-const HELP: &str = "\
-Passlane: plan contacts and check close approaches for a small-satellite fleet.
+use clap::{CommandFactory, Parser};
 
-usage:
-  passlane                       open the desktop window on the demo scenario
-  passlane open FILE             open the desktop window on a scenario file
-  passlane --scenario FILE       the same
-  passlane [...] --frame-stats   log the window's frame times to standard error
-  passlane elements FILE...      what loaded from element files (TLE, OMM KVN/XML/JSON)
-  passlane ephemeris ...         states on a time grid (TEME, Earth-fixed or geodetic)
-  passlane passes ...            contact windows of each spacecraft over each station
-  passlane track ...             pointing table (az/el/range/Doppler) of one pass
-  passlane screen ...            close approaches in a fleet or against a catalog, with Pc
-  passlane cdm FILE              re-assess a CCSDS conjunction data message
-  passlane plan ...              network contact plan; calendar, pointing and OEM files
-
-Run `passlane COMMAND --help` for a command's options.
-Times are ISO 8601 UTC, e.g. 2026-12-01T12:00:00Z.
-
-Cautions: element-set screening is advisory; defer to official conjunction
-messages and coordinate with the other operator. Transmitting needs a licence
-and follows local rules.
-";
+use cli::args::{Cli, Command, Shell, WRITE_STRESS, WriteStressArgs};
 
 fn main() -> ExitCode {
-    let argv: Vec<String> = std::env::args().skip(1).collect();
-    if let Some(window) = window_request(&argv) {
-        return match window {
-            Ok(options) => open_window(options),
-            Err(message) => {
-                eprintln!("passlane: {message}\n\n{HELP}");
-                ExitCode::from(2)
-            }
+    if std::env::args_os()
+        .nth(1)
+        .is_some_and(|a| a == WRITE_STRESS)
+    {
+        return match WriteStressArgs::try_parse_from(std::env::args_os().skip(1)) {
+            Ok(args) => run(WRITE_STRESS, |out| cli::write_stress::run(&args, out)),
+            Err(e) => clap_outcome(&e),
         };
     }
-    let Some(command) = argv.first() else {
-        println!("{HELP}");
-        return ExitCode::SUCCESS;
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => return clap_outcome(&e),
     };
-    let rest = &argv[1..];
+    let command = match cli.command {
+        None => return open_window(cli.scenario, cli.frame_stats),
+        Some(Command::Open(open)) => return open_window(Some(open.file), open.frame_stats),
+        Some(command) => command,
+    };
+    run(command.name(), |out| match &command {
+        Command::Elements(args) => cli::elements_cmd::run(args, out),
+        Command::Ephemeris(args) => cli::ephemeris_cmd::run(args, out),
+        Command::Passes(args) => cli::passes_cmd::run(args, out),
+        Command::Track(args) => cli::passes_cmd::run_track(args, out),
+        Command::Screen(args) => cli::screen_cmd::run(args, out),
+        Command::Cdm(args) => cli::screen_cmd::run_cdm(args, out),
+        Command::Plan(args) => cli::plan_cmd::run(args, out),
+        Command::Avoid(args) => cli::avoid_cmd::run(args, out),
+        Command::Completions(args) => completions(args.shell, out),
+        // Handled above: the window writes nothing to standard output.
+        Command::Open(_) => Ok(()),
+    })
+}
+
+/// clap's own outcome: the help (on stdout, exit 0) or a usage error with a
+/// hint (on stderr, exit 2). A reader that closed the pipe before the help
+/// was printed is not worth a message.
+fn clap_outcome(e: &clap::Error) -> ExitCode {
+    let _ = e.print();
+    ExitCode::from(u8::try_from(e.exit_code()).unwrap_or(2))
+}
+
+/// Runs one command with buffered standard output and reports how it ended.
+fn run(name: &str, command: impl FnOnce(&mut dyn Write) -> anyhow::Result<()>) -> ExitCode {
     let stdout = std::io::stdout();
     let mut out = std::io::BufWriter::new(stdout.lock());
-    let (usage, result) = match command.as_str() {
-        "-h" | "--help" | "help" => {
-            println!("{HELP}");
-            return ExitCode::SUCCESS;
-        }
-        "elements" => (
-            cli::elements_cmd::USAGE,
-            run_or_help(
-                rest,
-                cli::elements_cmd::USAGE,
-                &mut out,
-                cli::elements_cmd::run,
-            ),
-        ),
-        "ephemeris" => (
-            cli::ephemeris_cmd::USAGE,
-            run_or_help(
-                rest,
-                cli::ephemeris_cmd::USAGE,
-                &mut out,
-                cli::ephemeris_cmd::run,
-            ),
-        ),
-        "passes" => (
-            cli::passes_cmd::USAGE,
-            run_or_help(rest, cli::passes_cmd::USAGE, &mut out, cli::passes_cmd::run),
-        ),
-        "track" => (
-            cli::passes_cmd::TRACK_USAGE,
-            run_or_help(
-                rest,
-                cli::passes_cmd::TRACK_USAGE,
-                &mut out,
-                cli::passes_cmd::run_track,
-            ),
-        ),
-        "screen" => (
-            cli::screen_cmd::USAGE,
-            run_or_help(rest, cli::screen_cmd::USAGE, &mut out, cli::screen_cmd::run),
-        ),
-        "cdm" => (
-            cli::screen_cmd::CDM_USAGE,
-            run_or_help(
-                rest,
-                cli::screen_cmd::CDM_USAGE,
-                &mut out,
-                cli::screen_cmd::run_cdm,
-            ),
-        ),
-        "plan" => (
-            cli::plan_cmd::USAGE,
-            run_or_help(rest, cli::plan_cmd::USAGE, &mut out, cli::plan_cmd::run),
-        ),
-        // Hidden: a test kills this process in the middle of saves (see
-        // tests/hardening.rs); not a user command, so not in the help.
-        "__write-stress" => (
-            "passlane __write-stress PATH [BYTES [FIRST_ROUND]]",
-            cli::write_stress::run(rest, &mut out),
-        ),
-        other => {
-            eprintln!("passlane: unknown command {other:?}\n\n{HELP}");
-            return ExitCode::from(2);
-        }
-    };
+    let result = command(&mut out);
     let flushed = out.flush();
     match result.and(flushed.map_err(anyhow::Error::from)) {
         Ok(()) => ExitCode::SUCCESS,
         // A reader that stops early (`| head`) is not an error.
         Err(e) if is_broken_pipe(&e) => ExitCode::SUCCESS,
+        // A runtime error (a file, a value that makes no sense): the message
+        // alone; the usage is for usage errors, which clap reports.
         Err(e) => {
-            eprintln!("passlane {command}: error: {e:#}");
-            eprintln!("usage: {usage}");
+            eprintln!("passlane {name}: error: {e:#}");
             ExitCode::FAILURE
         }
     }
 }
 
-/// Whether the arguments ask for the window (no subcommand, `open FILE`,
-/// `--scenario FILE`, `--frame-stats`), and with which options. `None` means
-/// command-line mode.
-fn window_request(argv: &[String]) -> Option<Result<passlane_gui::RunOptions, String>> {
-    let mut rest = argv;
-    let mut options = passlane_gui::RunOptions::default();
-    if rest.first().map(String::as_str) == Some("open") {
-        let Some(file) = rest.get(1) else {
-            return Some(Err("open: give a scenario file".into()));
-        };
-        options.scenario = Some(PathBuf::from(file));
-        rest = &rest[2..];
-    } else if rest
-        .first()
-        .is_some_and(|a| !a.starts_with("--") || a == "--help")
-    {
-        // A subcommand (or help): command-line mode.
-        return None;
-    }
-    let mut i = 0;
-    while i < rest.len() {
-        match rest[i].as_str() {
-            "--frame-stats" => options.frame_stats = true,
-            "--scenario" if options.scenario.is_none() => match rest.get(i + 1) {
-                Some(file) => {
-                    options.scenario = Some(PathBuf::from(file));
-                    i += 1;
-                }
-                None => return Some(Err("--scenario: give a scenario file".into())),
-            },
-            other => return Some(Err(format!("unexpected argument {other:?} for the window"))),
-        }
-        i += 1;
-    }
-    Some(Ok(options))
-}
-
 /// Opens the desktop window; without a display, says so and points at the
 /// command-line mode instead of failing somewhere inside the windowing stack.
-fn open_window(options: passlane_gui::RunOptions) -> ExitCode {
+fn open_window(scenario: Option<PathBuf>, frame_stats: bool) -> ExitCode {
     const NO_WINDOW: &str =
         "Run `passlane --help` for the command-line mode, which needs no display.";
+    let options = passlane_gui::RunOptions {
+        scenario,
+        frame_stats,
+    };
     // The window is built for X11 only (see the GUI crate's manifest); without
     // a display server address there is nothing to connect to.
     if cfg!(all(unix, not(target_os = "macos")))
@@ -188,22 +101,38 @@ fn open_window(options: passlane_gui::RunOptions) -> ExitCode {
     }
 }
 
-fn run_or_help(
-    rest: &[String],
-    usage: &str,
-    out: &mut dyn Write,
-    f: fn(&[String], &mut dyn Write) -> anyhow::Result<()>,
-) -> anyhow::Result<()> {
-    if rest.iter().any(|a| a == "--help" || a == "-h") {
-        writeln!(out, "usage: {usage}")?;
-        return Ok(());
-    }
-    f(rest, out)
+/// `passlane completions SHELL`: the completion script on standard output.
+fn completions(shell: Shell, out: &mut dyn Write) -> anyhow::Result<()> {
+    let shell = match shell {
+        Shell::Bash => clap_complete::Shell::Bash,
+        Shell::Zsh => clap_complete::Shell::Zsh,
+        Shell::Fish => clap_complete::Shell::Fish,
+    };
+    // The generator panics when its writer fails; a buffer never does, and
+    // the write below reports a closed pipe like every other command's.
+    let mut script = Vec::new();
+    clap_complete::generate(shell, &mut Cli::command(), "passlane", &mut script);
+    out.write_all(&script)?;
+    Ok(())
 }
 
+/// Whether the error is a write to a pipe whose reader has gone. serde_json
+/// keeps the I/O error inside its own, and some writers wrap that again in an
+/// `io::Error`, so each layer is looked at.
 fn is_broken_pipe(e: &anyhow::Error) -> bool {
+    fn json_broken(e: &serde_json::Error) -> bool {
+        e.io_error_kind() == Some(std::io::ErrorKind::BrokenPipe)
+    }
     e.chain().any(|c| {
-        c.downcast_ref::<std::io::Error>()
-            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+        if let Some(io) = c.downcast_ref::<std::io::Error>() {
+            io.kind() == std::io::ErrorKind::BrokenPipe
+                || io
+                    .get_ref()
+                    .and_then(|inner| inner.downcast_ref::<serde_json::Error>())
+                    .is_some_and(json_broken)
+        } else {
+            c.downcast_ref::<serde_json::Error>()
+                .is_some_and(json_broken)
+        }
     })
 }

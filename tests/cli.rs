@@ -2,8 +2,11 @@
 //! contract, errors name the file, line and field, and bad records never
 //! spoil the good ones.
 
+#![allow(clippy::unwrap_used, clippy::expect_used)]
+
+use std::io::BufRead;
 use std::path::PathBuf;
-use std::process::{Command, Output};
+use std::process::{Command, Output, Stdio};
 
 use serde_json::Value;
 
@@ -168,9 +171,9 @@ fn passes_json_contract_sorted_by_aos() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Bramble Hill,51.45,-1.3,120",
+        "Bramble Hill,51.42,-126.45,1580",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--start",
         "2026-12-01T00:00:00Z",
         "--end",
@@ -219,7 +222,7 @@ fn passes_from_the_demo_scenario_alone() {
         String::from_utf8_lossy(&out.stderr)
     );
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("Northfell") && text.contains("KRSL-5 AUK"));
+    assert!(text.contains("Northfell") && text.contains("KRSL-5 FIRTHEN"));
     assert!(text.contains("pass(es)"));
 }
 
@@ -230,7 +233,7 @@ fn track_gives_a_pointing_table_from_aos_to_los() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--start",
         "2026-12-01T00:00:00Z",
         "--end",
@@ -245,7 +248,7 @@ fn track_gives_a_pointing_table_from_aos_to_los() {
         "--elements",
         "scenarios/demo-fleet.tle",
         "--station",
-        "Coral Shoal,1.35,103.82,15",
+        "Coral Shoal,-5.64,-155.9,6",
         "--satellite",
         &p["catalog_number"].to_string(),
         "--pass-start",
@@ -408,9 +411,10 @@ fn errors_are_clear_and_exit_nonzero() {
     assert!(!out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains("no/such/file.tle"));
 
+    // An unknown option is a usage error (clap's wording, exit code 2).
     let out = passlane(&["passes", "--bogus"]);
-    assert!(!out.status.success());
-    assert!(String::from_utf8_lossy(&out.stderr).contains("unknown option --bogus"));
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("unexpected argument '--bogus'"));
 }
 
 #[test]
@@ -516,9 +520,9 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         "--station",
         "coral shoal",
         "--satellite",
-        "KRSL-5 AUK",
+        "KRSL-5 FIRTHEN",
         "--pass-start",
-        "2026-12-01T02:28:00Z",
+        "2026-12-01T07:55:00Z",
         "--step-s",
         "10",
         "--format",
@@ -537,7 +541,7 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         "--satellite",
         "90005",
         "--pass-start",
-        "2026-12-01T02:28:00Z",
+        "2026-12-01T07:55:00Z",
     ]);
     assert!(!out.status.success());
     let err = String::from_utf8_lossy(&out.stderr);
@@ -545,4 +549,409 @@ fn a_bare_station_name_picks_the_scenario_station_with_its_channels() {
         err.contains("Nowhere") && err.contains("Coral Shoal"),
         "{err}"
     );
+}
+
+/// `(long option, description)` for every option line of a command's help,
+/// in either of clap's layouts (description on the same line, or on the
+/// lines below it).
+fn options_in_help(help: &str) -> Vec<(String, String)> {
+    let lines: Vec<&str> = help.lines().collect();
+    let mut out = Vec::new();
+    for (i, line) in lines.iter().enumerate() {
+        let spec = line.trim_start();
+        if !line.starts_with(' ') || !spec.starts_with('-') {
+            continue;
+        }
+        let Some(at) = spec.find("--") else {
+            continue;
+        };
+        let name: String = spec[at + 2..]
+            .chars()
+            .take_while(|c| c.is_ascii_alphanumeric() || *c == '-')
+            .collect();
+        // The description starts after the first run of two blanks.
+        let same_line = spec
+            .split_once("  ")
+            .map(|(_, d)| d.trim().to_string())
+            .unwrap_or_default();
+        let description = if same_line.is_empty() {
+            lines[i + 1..]
+                .iter()
+                .take_while(|l| !l.trim().is_empty())
+                .map(|l| l.trim())
+                .collect::<Vec<_>>()
+                .join(" ")
+        } else {
+            same_line
+        };
+        out.push((name, description));
+    }
+    out
+}
+
+#[test]
+fn passes_help_lists_every_option_with_a_description_unit_and_default() {
+    let out = passlane(&["passes", "--help"]);
+    assert!(out.status.success());
+    assert!(out.stderr.is_empty());
+    let help = String::from_utf8_lossy(&out.stdout);
+    let options = options_in_help(&help);
+    let mut names: Vec<&str> = options.iter().map(|(n, _)| n.as_str()).collect();
+    names.sort();
+    // Every option of the command, including the ones scripts have used
+    // since before the parser was clap (and --quiet, new with the progress bar).
+    let mut expected = vec![
+        "elements",
+        "scenario",
+        "lenient",
+        "station",
+        "start",
+        "end",
+        "min-elevation",
+        "format",
+        "quiet",
+        "ut1-utc-s",
+        "help",
+    ];
+    expected.sort();
+    assert_eq!(names, expected, "{help}");
+    for (name, description) in &options {
+        assert!(
+            description.split_whitespace().count() >= 2,
+            "--{name} has no description: {help}"
+        );
+    }
+    // An option that takes a value says what it defaults to.
+    for line in help
+        .lines()
+        .filter(|l| l.contains("--") && l.contains(" <"))
+    {
+        assert!(line.contains("[default"), "no default in {line:?}");
+    }
+    let described = |name: &str| {
+        options
+            .iter()
+            .find(|(n, _)| n == name)
+            .map(|(_, d)| d.clone())
+            .unwrap_or_default()
+    };
+    assert!(described("min-elevation").contains("degrees"));
+    assert!(described("ut1-utc-s").contains("seconds"));
+    assert!(described("format").contains("table, csv, json"));
+    for heading in ["Inputs:", "Window:", "Output:"] {
+        assert!(help.contains(heading), "no {heading} group: {help}");
+    }
+    // The top-level help keeps the window's forms, the commands and the cautions.
+    let top = String::from_utf8_lossy(&passlane(&["--help"]).stdout).into_owned();
+    for needle in [
+        "passlane open FILE",
+        "passlane --scenario FILE",
+        "--frame-stats",
+        "passes",
+        "screen",
+        "completions",
+        "Cautions:",
+    ] {
+        assert!(top.contains(needle), "{needle:?} missing: {top}");
+    }
+    assert!(
+        !top.contains("write-stress"),
+        "the hidden command shows: {top}"
+    );
+}
+
+#[test]
+fn completions_print_a_script_for_each_shell() {
+    for (shell, marker) in [
+        ("bash", "complete -F"),
+        ("zsh", "#compdef passlane"),
+        ("fish", "complete -c passlane"),
+    ] {
+        let out = passlane(&["completions", shell]);
+        assert!(out.status.success(), "{shell}");
+        let script = String::from_utf8_lossy(&out.stdout);
+        assert!(script.contains(marker), "{shell}: {script}");
+        assert!(script.contains("threshold-km"), "{shell}");
+        assert!(!script.contains("write-stress"), "{shell}: hidden command");
+    }
+    assert_eq!(passlane(&["completions", "tcsh"]).status.code(), Some(2));
+}
+
+#[test]
+fn usage_errors_exit_2_with_a_hint_and_runtime_errors_without_usage() {
+    // A typo: clap suggests the option meant.
+    let out = passlane(&["screen", "--treshold-km", "5"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("--treshold-km") && err.contains("'--threshold-km'"),
+        "{err}"
+    );
+    // A stray positional is refused, not ignored.
+    let out = passlane(&[
+        "passes",
+        "--scenario",
+        "scenarios/demo.json",
+        "scenarios/demo-fleet.tle",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("unexpected argument 'scenarios/demo-fleet.tle'"),
+        "{err}"
+    );
+    let out = passlane(&["cdm", "a.cdm", "b.cdm"]);
+    assert_eq!(out.status.code(), Some(2));
+    // A runtime error names the command and the cause, and prints no usage.
+    let out = passlane(&["passes", "--scenario", "no/such/scenario.json"]);
+    assert_eq!(out.status.code(), Some(1));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.starts_with("passlane passes: error: cannot read scenario no/such/scenario.json"),
+        "{err}"
+    );
+    assert!(!err.to_lowercase().contains("usage"), "{err}");
+    // Validation after parsing keeps its wording.
+    let out = passlane(&[
+        "screen",
+        "--scenario",
+        "scenarios/demo.json",
+        "--threshold-km=0",
+    ]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--threshold-km must be positive"));
+}
+
+#[test]
+fn options_keep_their_forms_last_value_wins_and_negative_values_pass() {
+    // `--flag=value`, a repeated option (the last one counts), a negative
+    // value after its option, and --quiet: the same output as the plain form.
+    let plain = passlane(&[
+        "passes",
+        "--scenario",
+        "scenarios/demo.json",
+        "--end",
+        "2026-12-01T06:00:00Z",
+        "--format",
+        "csv",
+        "--ut1-utc-s",
+        "-0.2",
+    ]);
+    assert!(
+        plain.status.success(),
+        "{}",
+        String::from_utf8_lossy(&plain.stderr)
+    );
+    let other = passlane(&[
+        "passes",
+        "--scenario=scenarios/demo.json",
+        "--end=2026-12-05T00:00:00Z",
+        "--end",
+        "2026-12-01T06:00:00Z",
+        "--format=csv",
+        "--ut1-utc-s=-0.2",
+        "--quiet",
+    ]);
+    assert!(
+        other.status.success(),
+        "{}",
+        String::from_utf8_lossy(&other.stderr)
+    );
+    assert_eq!(plain.stdout, other.stdout);
+    assert!(plain.stdout.len() > 200);
+    // No progress bar when standard error is not a terminal.
+    assert!(
+        plain.stderr.is_empty(),
+        "{}",
+        String::from_utf8_lossy(&plain.stderr)
+    );
+}
+
+/// Runs passlane with standard output piped, reads one line and closes the
+/// pipe, as `passlane ... | head -1` does; the rest of the output must be
+/// larger than a pipe's buffer for the write to hit the closed pipe.
+fn read_one_line_then_close(args: &[&str]) -> (Option<i32>, String, String) {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_passlane"))
+        .args(args)
+        .current_dir(repo())
+        .stdin(Stdio::null())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("run passlane");
+    let mut first = String::new();
+    {
+        let stdout = child.stdout.take().expect("piped stdout");
+        let mut reader = std::io::BufReader::new(stdout);
+        reader.read_line(&mut first).expect("first line");
+        // The reader (and the pipe) is dropped here.
+    }
+    let out = child.wait_with_output().expect("wait for passlane");
+    (
+        out.status.code(),
+        first,
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn a_reader_that_stops_early_ends_the_command_quietly() {
+    for args in [
+        // About 1 MB of JSON and 130 kB of CSV over the demo's week, well
+        // beyond a pipe's 64 kB buffer.
+        &[
+            "passes",
+            "--scenario",
+            "scenarios/demo.json",
+            "--format",
+            "json",
+        ][..],
+        &[
+            "passes",
+            "--scenario",
+            "scenarios/demo.json",
+            "--format",
+            "csv",
+        ][..],
+        &[
+            "plan",
+            "--scenario",
+            "scenarios/demo.json",
+            "--format",
+            "json",
+        ][..],
+        &["passes", "--help"][..],
+    ] {
+        let (code, first, stderr) = read_one_line_then_close(args);
+        assert!(!first.is_empty(), "{args:?}: no first line");
+        assert_eq!(code, Some(0), "{args:?}: {stderr}");
+        assert_eq!(stderr, "", "{args:?}");
+    }
+}
+
+#[test]
+fn two_stations_of_one_name_are_refused_naming_both() {
+    let out = passlane(&[
+        "passes",
+        "--elements",
+        "scenarios/demo-fleet.tle",
+        "--station",
+        "Ridge,10,20,0",
+        "--station",
+        "RIDGE ,11,21,0",
+        "--start",
+        "2026-12-01T00:00:00Z",
+        "--end",
+        "2026-12-01T06:00:00Z",
+    ]);
+    assert!(!out.status.success());
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("stations[1].name") && err.contains("stations[0]"),
+        "{err}"
+    );
+}
+
+#[test]
+fn avoid_json_contract_and_refusals() {
+    // The demo's designed encounter of KRSL-3 with DEBRIS 99871.
+    let base = [
+        "avoid",
+        "--scenario",
+        "scenarios/demo.json",
+        "--primary",
+        "90003",
+        "--secondary",
+        "99871",
+        "--tca",
+        "2026-12-03T06:00:00Z",
+    ];
+    let mut one: Vec<&str> = base.to_vec();
+    one.extend([
+        "--burn-time",
+        "2026-12-03T03:00:00Z",
+        "--dv-ric-m-s",
+        "0,0.05,0",
+        "--format",
+        "json",
+    ]);
+    let v = ok_json(&one);
+    has_fields(
+        &v,
+        &[
+            "primary_catalog_number",
+            "secondary_catalog_number",
+            "burn_time",
+            "dv_ric_m_s",
+            "before",
+            "after",
+        ],
+    );
+    for side in ["before", "after"] {
+        has_fields(
+            &v[side],
+            &[
+                "tca",
+                "miss_distance_km",
+                "radial_km",
+                "in_track_km",
+                "cross_track_km",
+                "relative_speed_km_s",
+                "pc",
+                "pc_max",
+            ],
+        );
+    }
+    assert_eq!(v["dv_ric_m_s"][1].as_f64(), Some(0.05));
+    assert!(v["after"]["miss_distance_km"].as_f64() > v["before"]["miss_distance_km"].as_f64());
+
+    let mut tr: Vec<&str> = base.to_vec();
+    tr.extend([
+        "--trade",
+        "--orbits-before",
+        "1,2",
+        "--dv-m-s=-0.1,0.1",
+        "--format",
+        "json",
+    ]);
+    let v = ok_json(&tr);
+    let rows = v["trade"].as_array().unwrap();
+    assert_eq!(rows.len(), 4);
+    has_fields(
+        &rows[0],
+        &[
+            "orbits_before",
+            "burn_time",
+            "dv_in_track_m_s",
+            "miss_distance_km",
+            "pc",
+        ],
+    );
+    assert_eq!(v["smallest"].as_array().unwrap().len(), 2);
+
+    // A burn after the TCA names the option.
+    let mut late: Vec<&str> = base.to_vec();
+    late.extend([
+        "--burn-time",
+        "2026-12-03T07:00:00Z",
+        "--dv-ric-m-s",
+        "0,0.05,0",
+    ]);
+    let out = passlane(&late);
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--burn-time"));
+    // An unknown catalog number names the option too.
+    let out = passlane(&[
+        "avoid",
+        "--scenario",
+        "scenarios/demo.json",
+        "--primary",
+        "12345",
+        "--secondary",
+        "99871",
+        "--tca",
+        "2026-12-03T06:00:00Z",
+        "--trade",
+    ]);
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--primary 12345"));
 }

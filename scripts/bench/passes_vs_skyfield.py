@@ -16,8 +16,8 @@ import subprocess
 import sys
 
 REPO = os.path.abspath(os.path.join(os.path.dirname(__file__), "..", ".."))
-STATIONS = [("Northfell", 78.23, 15.39, 480.0), ("Bramble Hill", 51.45, -1.30, 120.0),
-            ("Coral Shoal", 1.35, 103.82, 15.0)]
+STATIONS = [("Northfell", 73.36, -98.74, 240.0), ("Bramble Hill", 51.42, -126.45, 1580.0),
+            ("Coral Shoal", -5.64, -155.90, 6.0)]
 START, END = "2026-12-01T00:00:00Z", "2026-12-08T00:00:00Z"
 
 SKYFIELD_CHILD = r'''

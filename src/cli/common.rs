@@ -5,9 +5,10 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, LoadOptions, LoadReport, UtcTime, elements};
+use passlane_plan::station::{StationSet, same_station_name};
 use passlane_plan::{Scenario, Station};
 
-use super::args::RawArgs;
+use super::args::{FleetArgs, StationArgs, WindowArgs};
 
 /// Loads element files, prints every diagnostic to stderr as `file:line: ...`,
 /// and returns the good sets. Fails only when nothing at all loaded.
@@ -69,12 +70,35 @@ pub fn resolve(scenario_path: &Path, file: &str) -> PathBuf {
     }
 }
 
-pub fn parse_time(args: &RawArgs, name: &str) -> Result<Option<UtcTime>> {
-    match args.value(name) {
-        None => Ok(None),
-        Some(v) => Ok(Some(
-            UtcTime::parse_iso(v).map_err(|e| anyhow::anyhow!("--{name}: {e}"))?,
-        )),
+/// Where a command's fleet, stations and window come from: the raw options,
+/// before anything is read.
+pub struct Sources<'a> {
+    pub scenario: Option<&'a Path>,
+    pub elements: &'a [PathBuf],
+    pub stations: &'a [String],
+    pub start: Option<UtcTime>,
+    pub end: Option<UtcTime>,
+    pub lenient: bool,
+}
+
+impl<'a> Sources<'a> {
+    /// The shared options of most commands (no stations).
+    pub fn new(fleet: &'a FleetArgs, window: Option<&WindowArgs>) -> Self {
+        Sources {
+            scenario: fleet.scenario.as_deref(),
+            elements: &fleet.elements,
+            stations: &[],
+            start: window.and_then(|w| w.start),
+            end: window.and_then(|w| w.end),
+            lenient: fleet.lenient,
+        }
+    }
+
+    pub fn with_stations(self, stations: &'a StationArgs) -> Self {
+        Sources {
+            stations: &stations.station,
+            ..self
+        }
     }
 }
 
@@ -88,17 +112,15 @@ pub struct Inputs {
     pub end: Option<UtcTime>,
 }
 
-pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
-    let scenario = match args.value("scenario") {
-        Some(p) => {
-            let path = PathBuf::from(p);
-            let s = load_scenario(&path)?;
-            Some((path, s))
+pub fn gather(sources: &Sources, need_stations: bool) -> Result<Inputs> {
+    let scenario = match sources.scenario {
+        Some(path) => {
+            let s = load_scenario(path)?;
+            Some((path.to_path_buf(), s))
         }
         None => None,
     };
-    let mut element_paths: Vec<PathBuf> =
-        args.values("elements").iter().map(PathBuf::from).collect();
+    let mut element_paths: Vec<PathBuf> = sources.elements.to_vec();
     if element_paths.is_empty()
         && let Some((p, s)) = &scenario
     {
@@ -107,9 +129,9 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
     if element_paths.is_empty() {
         bail!("no element sets: give --elements FILE (or --scenario FILE with element_files)");
     }
-    let sets = load_fleet(&element_paths, args.flag("lenient"))?;
+    let sets = load_fleet(&element_paths, sources.lenient)?;
     let mut stations = Vec::new();
-    for s in args.values("station") {
+    for s in sources.stations {
         // NAME,LAT,LON,HEIGHT defines a station; a bare name picks one of the
         // scenario's (with its mask, mount and channels).
         if s.contains(',') {
@@ -120,10 +142,7 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
             .as_ref()
             .map(|(_, sc)| sc.stations.iter().collect())
             .unwrap_or_default();
-        match known
-            .iter()
-            .find(|st| st.name.eq_ignore_ascii_case(s.trim()))
-        {
+        match known.iter().find(|st| same_station_name(&st.name, s)) {
             Some(st) => stations.push((*st).clone()),
             None if known.is_empty() => bail!(
                 "--station {s:?}: give NAME,LAT_DEG,LON_DEG,HEIGHT_M, or a station name together with --scenario FILE"
@@ -148,9 +167,14 @@ pub fn gather(args: &RawArgs, need_stations: bool) -> Result<Inputs> {
             "no stations: give --station NAME,LAT_DEG,LON_DEG,HEIGHT_M (repeatable) or --scenario FILE"
         );
     }
+    // One list, validated once: every pass names its station by its index
+    // here, so two stations may not share a name.
+    let stations = StationSet::new(stations)
+        .map_err(|e| anyhow::anyhow!("--station: {e}"))?
+        .into_vec();
     let window = scenario.as_ref().and_then(|(_, s)| s.window);
-    let start = parse_time(args, "start")?.or(window.map(|w| w.start));
-    let end = parse_time(args, "end")?.or(window.map(|w| w.end));
+    let start = sources.start.or(window.map(|w| w.start));
+    let end = sources.end.or(window.map(|w| w.end));
     Ok(Inputs {
         scenario,
         sets,
@@ -211,20 +235,6 @@ pub enum Format {
     Table,
     Csv,
     Json,
-}
-
-pub fn format(args: &RawArgs, default: Format, allowed: &[Format]) -> Result<Format> {
-    let f = match args.value("format") {
-        None => default,
-        Some("table") => Format::Table,
-        Some("csv") => Format::Csv,
-        Some("json") => Format::Json,
-        Some(other) => bail!("--format {other:?}: expected table, csv or json"),
-    };
-    if !allowed.contains(&f) {
-        bail!("--format: this command does not write {f:?}");
-    }
-    Ok(f)
 }
 
 /// Shortens a name for a fixed-width table column.

@@ -3,14 +3,12 @@
 use std::io::Write;
 use std::path::PathBuf;
 
-use anyhow::{Result, bail};
+use anyhow::Result;
 use passlane_orbit::{OrbitSummary, UtcTime, element_age_days};
 use serde::Serialize;
 
-use super::args::RawArgs;
+use super::args::ElementsArgs;
 use super::common::{self, Format};
-
-pub const USAGE: &str = "passlane elements FILE... [--format table|json] [--at ISO] [--lenient]";
 
 #[derive(Serialize)]
 struct Row<'a> {
@@ -38,15 +36,11 @@ struct Row<'a> {
     source_line: usize,
 }
 
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(argv, &["format", "at"], &["lenient"])?;
-    if args.positionals.is_empty() {
-        bail!("give at least one element file\nusage: {USAGE}");
-    }
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let at = common::parse_time(&args, "at")?.unwrap_or_else(|| UtcTime::now());
-    let paths: Vec<PathBuf> = args.positionals.iter().map(PathBuf::from).collect();
-    let report = common::load_elements(&paths, args.flag("lenient"))?;
+pub fn run(args: &ElementsArgs, out: &mut dyn Write) -> Result<()> {
+    let format = Format::from(args.format);
+    let at = args.at.unwrap_or_else(UtcTime::now);
+    let paths: &[PathBuf] = &args.files;
+    let report = common::load_elements(paths, args.lenient)?;
     let rows: Vec<Row> = report
         .sets
         .iter()

@@ -7,11 +7,8 @@ use passlane_orbit::frames::earth_fixed_to_geodetic;
 use passlane_orbit::{EarthOrientation, Propagator, TemeToEarthFixed, TimeGrid, UtcTime};
 use serde::Serialize;
 
-use super::args::RawArgs;
-use super::common::{self, Format};
-
-pub const USAGE: &str = "passlane ephemeris --elements FILE --start ISO --end ISO --step-s S \
-[--frame teme|earth-fixed|geodetic] [--format csv|json] [--satellite NAME_OR_NUMBER] [--ut1-utc-s S]";
+use super::args::{EphemerisArgs, Frame};
+use super::common::{self, Format, Sources};
 
 #[derive(Serialize)]
 #[serde(untagged)]
@@ -31,44 +28,17 @@ enum Row {
     },
 }
 
-#[derive(Clone, Copy, PartialEq)]
-enum Frame {
-    Teme,
-    EarthFixed,
-    Geodetic,
-}
-
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "elements",
-            "scenario",
-            "start",
-            "end",
-            "step-s",
-            "frame",
-            "format",
-            "satellite",
-            "ut1-utc-s",
-        ],
-        &["lenient"],
-    )?;
-    let inputs = common::gather(&args, false)?;
+pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
+    let inputs = common::gather(&Sources::new(&args.fleet, Some(&args.window)), false)?;
     let (start, end) = common::window(&inputs)?;
-    let step_s = args.f64_value("step-s")?.unwrap_or(60.0);
+    let step_s = args.step_s;
     if step_s <= 0.0 {
         bail!("--step-s must be positive");
     }
-    let frame = match args.value("frame").unwrap_or("teme") {
-        "teme" => Frame::Teme,
-        "earth-fixed" | "ecef" | "itrf" => Frame::EarthFixed,
-        "geodetic" => Frame::Geodetic,
-        other => bail!("--frame {other:?}: expected teme, earth-fixed or geodetic"),
-    };
-    let format = common::format(&args, Format::Csv, &[Format::Csv, Format::Json])?;
+    let frame = args.frame;
+    let format = Format::from(args.format);
     let eop = EarthOrientation {
-        ut1_utc_s: args.f64_value("ut1-utc-s")?.unwrap_or(
+        ut1_utc_s: args.earth_orientation.ut1_utc_s.unwrap_or(
             inputs
                 .scenario
                 .as_ref()
@@ -77,7 +47,7 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
         ),
         ..EarthOrientation::default()
     };
-    let sets = match args.value("satellite") {
+    let sets = match &args.satellite {
         Some(k) => vec![common::pick_satellite(&inputs.sets, k)?.clone()],
         None => inputs.sets.clone(),
     };

@@ -4,36 +4,23 @@ use std::io::Write;
 
 use anyhow::{Result, bail};
 use passlane_orbit::{EarthOrientation, Illumination, UtcTime};
+use passlane_plan::export::csv_field;
 use passlane_plan::passes::{Pass, PassOptions, find_passes};
 use passlane_plan::station::Station;
 use passlane_plan::{Silent, pointing_table};
 
-use super::args::RawArgs;
-use super::common::{self, Format, Inputs};
+use super::args::{EarthOrientationArgs, PassesArgs, TrackArgs};
+use super::common::{self, Format, Inputs, Sources};
+use super::progress::Bar;
 
-pub const USAGE: &str = "passlane passes --elements FILE [--scenario FILE] [--station NAME,LAT_DEG,LON_DEG,HEIGHT_M ...] \
---start ISO --end ISO [--min-elevation DEG] [--format table|csv|json] [--ut1-utc-s S]";
-pub const TRACK_USAGE: &str = "passlane track --elements FILE --station ... --satellite NAME_OR_NUMBER --pass-start ISO \
-[--step-s S] [--format csv|json] [--ut1-utc-s S]";
-
-const OPTIONS: &[&str] = &[
-    "elements",
-    "scenario",
-    "station",
-    "start",
-    "end",
-    "min-elevation",
-    "format",
-    "ut1-utc-s",
-];
-
-fn earth_orientation(args: &RawArgs, inputs: &Inputs) -> Result<EarthOrientation> {
+/// The scenario's Earth orientation, with `--ut1-utc-s` in its place if given.
+fn earth_orientation(args: &EarthOrientationArgs, inputs: &Inputs) -> Result<EarthOrientation> {
     let mut eop = inputs
         .scenario
         .as_ref()
         .map(|(_, s)| s.earth_orientation)
         .unwrap_or_default();
-    if let Some(v) = args.f64_value("ut1-utc-s")? {
+    if let Some(v) = args.ut1_utc_s {
         if v.abs() > 1.0 {
             bail!("--ut1-utc-s {v}: UT1-UTC stays within ±0.9 s");
         }
@@ -42,28 +29,30 @@ fn earth_orientation(args: &RawArgs, inputs: &Inputs) -> Result<EarthOrientation
     Ok(eop)
 }
 
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(argv, OPTIONS, &["lenient"])?;
-    let inputs = common::gather(&args, true)?;
-    let (start, end) = common::window(&inputs)?;
-    let format = common::format(
-        &args,
-        Format::Table,
-        &[Format::Table, Format::Csv, Format::Json],
-    )?;
-    let min_el = args.f64_value("min-elevation")?;
-    if let Some(m) = min_el
+/// `--min-elevation`, if given, within the range a horizon can sensibly have.
+fn min_elevation(value: Option<f64>) -> Result<Option<f64>> {
+    if let Some(m) = value
         && !(-5.0..90.0).contains(&m)
     {
         bail!("--min-elevation {m}: expected -5 to 90 degrees");
     }
+    Ok(value)
+}
+
+pub fn run(args: &PassesArgs, out: &mut dyn Write) -> Result<()> {
+    let sources = Sources::new(&args.fleet, Some(&args.window)).with_stations(&args.stations);
+    let inputs = common::gather(&sources, true)?;
+    let (start, end) = common::window(&inputs)?;
+    let format = Format::from(args.format);
     let options = PassOptions {
         start,
         end,
-        earth_orientation: earth_orientation(&args, &inputs)?,
-        min_elevation_deg: min_el,
+        earth_orientation: earth_orientation(&args.earth_orientation, &inputs)?,
+        min_elevation_deg: min_elevation(args.min_elevation)?,
     };
-    let report = find_passes(&inputs.sets, &inputs.stations, &options, &Silent);
+    let bar = Bar::new("contact windows", args.quiet.quiet);
+    let report = find_passes(&inputs.sets, &inputs.stations, &options, &bar);
+    bar.finish();
     for f in &report.failures {
         eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
     }
@@ -112,15 +101,6 @@ fn write_csv(out: &mut dyn Write, passes: &[Pass]) -> Result<()> {
         )?;
     }
     Ok(())
-}
-
-/// Quotes a CSV field when it holds a comma, quote or newline (RFC 4180).
-pub fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
 }
 
 fn mmss(s: f64) -> String {
@@ -221,24 +201,10 @@ fn write_table(
     Ok(())
 }
 
-pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "elements",
-            "scenario",
-            "station",
-            "satellite",
-            "pass-start",
-            "step-s",
-            "format",
-            "ut1-utc-s",
-            "min-elevation",
-        ],
-        &["lenient"],
-    )?;
-    let inputs = common::gather(&args, true)?;
-    let sat = common::pick_satellite(&inputs.sets, args.required("satellite")?)?;
+pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
+    let sources = Sources::new(&args.fleet, None).with_stations(&args.stations);
+    let inputs = common::gather(&sources, true)?;
+    let sat = common::pick_satellite(&inputs.sets, &args.satellite)?;
     let station: &Station = if inputs.stations.len() == 1 {
         &inputs.stations[0]
     } else {
@@ -247,21 +213,20 @@ pub fn run_track(argv: &[String], out: &mut dyn Write) -> Result<()> {
             inputs.stations.len()
         );
     };
-    let at = UtcTime::parse_iso(args.required("pass-start")?)
-        .map_err(|e| anyhow::anyhow!("--pass-start: {e}"))?;
-    let step_s = args.f64_value("step-s")?.unwrap_or(1.0);
+    let at = args.pass_start;
+    let step_s = args.step_s;
     if step_s <= 0.0 {
         bail!("--step-s must be positive");
     }
-    let format = common::format(&args, Format::Csv, &[Format::Csv, Format::Json])?;
-    let eop = earth_orientation(&args, &inputs)?;
+    let format = Format::from(args.format);
+    let eop = earth_orientation(&args.earth_orientation, &inputs)?;
     // Search a window around the given time; the pass is the one containing it,
     // or else the first to start within 30 minutes after it.
     let options = PassOptions {
         start: at.add_s(-3.0 * 3600.0),
         end: at.add_s(6.0 * 3600.0),
         earth_orientation: eop,
-        min_elevation_deg: args.f64_value("min-elevation")?,
+        min_elevation_deg: min_elevation(args.min_elevation)?,
     };
     let report = find_passes(
         std::slice::from_ref(sat),

@@ -6,52 +6,43 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
-use passlane_plan::Silent;
 use passlane_plan::export::{self, HandOffContext, hand_off_files};
 use passlane_plan::schedule::{Method, Plan, plan_network};
 
-use super::args::RawArgs;
-use super::common::{self, Format};
+use super::args::PlanArgs;
+use super::common::{self, Format, Sources};
+use super::progress::Bar;
 
-pub const USAGE: &str = "passlane plan --scenario FILE [--start ISO] [--end ISO] [--out DIR] [--format table|json] \
-[--pointing-step-s S]";
-
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "scenario",
-            "elements",
-            "start",
-            "end",
-            "out",
-            "format",
-            "pointing-step-s",
-        ],
-        &["lenient"],
-    )?;
-    if args.value("scenario").is_none() {
-        bail!("--scenario FILE is required: the network (stations, antennas, demands) lives there");
-    }
-    let inputs = common::gather(&args, true)?;
+pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
+    let sources = Sources {
+        scenario: Some(&args.scenario),
+        elements: &args.elements,
+        stations: &[],
+        start: args.window.start,
+        end: args.window.end,
+        lenient: args.lenient,
+    };
+    let inputs = common::gather(&sources, true)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let pointing_step_s = args.f64_value("pointing-step-s")?.unwrap_or(1.0);
+    let format = Format::from(args.format);
+    let pointing_step_s = args.pointing_step_s;
     if pointing_step_s <= 0.0 {
         bail!("--pointing-step-s must be positive");
     }
     let Some((scenario_path, scenario)) = &inputs.scenario else {
         bail!("--scenario FILE is required");
     };
-    let plan = plan_network(scenario, &inputs.sets, start, end, &Silent)
-        .map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
+    let bar = Bar::new("plan", args.quiet.quiet);
+    let plan = plan_network(scenario, &inputs.sets, start, end, &bar);
+    bar.finish();
+    let plan = plan.map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
     for w in &plan.warnings {
         eprintln!("warning: {w}");
     }
     let created = UtcTime::now();
-    let written = match args.value("out") {
+    let written = match &args.out {
         Some(dir) => Some(write_outputs(
-            Path::new(dir),
+            dir,
             &plan,
             &inputs.sets,
             scenario,

@@ -6,21 +6,16 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
-use passlane_plan::Progress;
 use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{CdmContext, event_to_cdm};
 use passlane_plan::job::{ScreeningJob, screen_and_assess};
 use passlane_plan::screen::{CloseApproach, ScreeningVolume};
 use serde::Serialize;
 
-use super::args::RawArgs;
-use super::common::{self, Format};
-use super::passes_cmd::csv_field;
-
-pub const USAGE: &str = "passlane screen --elements FLEET_FILE [--catalog FILE] [--all-vs-all] --start ISO --end ISO \
---threshold-km D [--box-km R,I,C | --ellipsoid-km R,I,C] [--hard-body-radius-m R] [--format table|csv|json] \
-[--cdm-dir DIR] [--scenario FILE] [--quiet]";
-pub const CDM_USAGE: &str = "passlane cdm FILE [--hard-body-radius-m R] [--format table|json]";
+use super::args::{CdmArgs, ScreenArgs};
+use super::common::{self, Format, Sources};
+use super::progress::Bar;
+use passlane_plan::export::csv_field;
 
 const CAUTION: &str = "Caution: screening on published mean elements is advisory. Defer to official conjunction \
 messages and coordinate with the other operator before acting.";
@@ -46,26 +41,9 @@ struct Row<'a> {
     risk_note: Option<String>,
 }
 
-/// Percent done on stderr, only when it is a terminal.
-struct TerminalPercent {
-    quiet: bool,
-    last_pct: std::sync::atomic::AtomicI64,
-}
-
-impl Progress for TerminalPercent {
-    fn report(&self, f: f64) {
-        let pct = (f * 100.0).floor() as i64;
-        let before = self
-            .last_pct
-            .swap(pct, std::sync::atomic::Ordering::Relaxed);
-        if !self.quiet && pct != before && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
-            eprint!("\rscreening… {pct:3}%");
-        }
-    }
-}
-
-fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
-    let Some(v) = args.value(name) else {
+/// `--box-km` or `--ellipsoid-km`: three positive sizes in km.
+fn three(value: Option<&str>, name: &str) -> Result<Option<[f64; 3]>> {
+    let Some(v) = value else {
         return Ok(None);
     };
     let parts: Vec<f64> = v
@@ -79,41 +57,25 @@ fn three(args: &RawArgs, name: &str) -> Result<Option<[f64; 3]>> {
     }
 }
 
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(
-        argv,
-        &[
-            "elements",
-            "catalog",
-            "scenario",
-            "start",
-            "end",
-            "threshold-km",
-            "box-km",
-            "ellipsoid-km",
-            "hard-body-radius-m",
-            "format",
-            "cdm-dir",
-            "originator",
-        ],
-        &["all-vs-all", "lenient", "quiet"],
-    )?;
-    let inputs = common::gather(&args, false)?;
+pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
+    let inputs = common::gather(&Sources::new(&args.fleet, Some(&args.window)), false)?;
     let (start, end) = common::window(&inputs)?;
-    let format = common::format(
-        &args,
-        Format::Table,
-        &[Format::Table, Format::Csv, Format::Json],
-    )?;
+    let format = Format::from(args.format);
     let scenario = inputs.scenario.as_ref().map(|(_, s)| s);
     let defaults = scenario.map(|s| s.screening.clone()).unwrap_or_default();
-    let threshold_km = args
-        .f64_value("threshold-km")?
-        .unwrap_or(defaults.threshold_km);
+    let threshold_km = args.threshold_km.unwrap_or(defaults.threshold_km);
     if threshold_km <= 0.0 {
         bail!("--threshold-km must be positive");
     }
-    let volume = match (three(&args, "box-km")?, three(&args, "ellipsoid-km")?) {
+    if let Some(r) = args.hard_body_radius_m
+        && r <= 0.0
+    {
+        bail!("--hard-body-radius-m must be positive");
+    }
+    let volume = match (
+        three(args.box_km.as_deref(), "box-km")?,
+        three(args.ellipsoid_km.as_deref(), "ellipsoid-km")?,
+    ) {
         (Some(_), Some(_)) => bail!("give --box-km or --ellipsoid-km, not both"),
         (Some([r, i, c]), None) => ScreeningVolume::Box {
             radial_km: r,
@@ -129,12 +91,11 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             radius_km: threshold_km,
         },
     };
-    let mut catalog_paths: Vec<PathBuf> =
-        args.values("catalog").iter().map(PathBuf::from).collect();
+    let mut catalog_paths: Vec<PathBuf> = args.catalog.clone();
     if catalog_paths.is_empty()
-        && !args.flag("all-vs-all")
+        && !args.all_vs_all
         && let Some((p, s)) = &inputs.scenario
-        && args.values("elements").is_empty()
+        && args.fleet.elements.is_empty()
     {
         catalog_paths = s
             .catalog_files
@@ -145,32 +106,26 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
     let catalog: Option<Vec<ElementSet>> = if catalog_paths.is_empty() {
         None
     } else {
-        Some(common::load_fleet(&catalog_paths, args.flag("lenient"))?)
+        Some(common::load_fleet(&catalog_paths, args.fleet.lenient)?)
     };
     let catalog = catalog.unwrap_or_default();
     let default_scenario = passlane_plan::Scenario::default();
     let assumptions = scenario.unwrap_or(&default_scenario);
-    let quiet = args.flag("quiet");
-    let progress = TerminalPercent {
-        quiet,
-        last_pct: std::sync::atomic::AtomicI64::new(-1),
-    };
+    let bar = Bar::new("screening", args.quiet.quiet);
     let outcome = screen_and_assess(
         &ScreeningJob {
             fleet: &inputs.sets,
             catalog: &catalog,
-            all_vs_all: args.flag("all-vs-all"),
+            all_vs_all: args.all_vs_all,
             start,
             end,
             volume,
             scenario: assumptions,
-            hard_body_radius_override_m: args.f64_value("hard-body-radius-m")?,
+            hard_body_radius_override_m: args.hard_body_radius_m,
         },
-        &progress,
+        &bar,
     );
-    if !quiet && std::io::IsTerminal::is_terminal(&std::io::stderr()) {
-        eprintln!("\rscreening… done ");
-    }
+    bar.finish();
     let result = &outcome.result;
     let risks = &outcome.risks;
     let covariance = outcome.covariance;
@@ -205,12 +160,10 @@ pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
             },
         })
         .collect();
-    if let Some(dir) = args.value("cdm-dir") {
-        let dir = PathBuf::from(dir);
-        std::fs::create_dir_all(&dir)
-            .with_context(|| format!("cannot create {}", dir.display()))?;
+    if let Some(dir) = &args.cdm_dir {
+        std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::now();
-        let originator = args.value("originator").unwrap_or("PASSLANE");
+        let originator = args.originator.as_str();
         let by_number: HashMap<u32, &ElementSet> = inputs
             .sets
             .iter()
@@ -388,13 +341,10 @@ fn describe_volume(v: &ScreeningVolume) -> String {
     }
 }
 
-pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let args = RawArgs::parse(argv, &["hard-body-radius-m", "format"], &[])?;
-    let [file] = args.positionals.as_slice() else {
-        bail!("give one CDM file\nusage: {CDM_USAGE}");
-    };
-    let format = common::format(&args, Format::Table, &[Format::Table, Format::Json])?;
-    let bytes = passlane_files::read_limited(std::path::Path::new(file), 16 * 1024 * 1024)
+pub fn run_cdm(args: &CdmArgs, out: &mut dyn Write) -> Result<()> {
+    let file = &args.file.display().to_string();
+    let format = Format::from(args.format);
+    let bytes = passlane_files::read_limited(&args.file, 16 * 1024 * 1024)
         .with_context(|| format!("cannot read {file}"))?;
     let text = String::from_utf8(bytes).map_err(|e| {
         anyhow::anyhow!(
@@ -403,7 +353,7 @@ pub fn run_cdm(argv: &[String], out: &mut dyn Write) -> Result<()> {
         )
     })?;
     let cdm = Cdm::parse(&text, file)?;
-    let hbr = args.f64_value("hard-body-radius-m")?.unwrap_or(10.0);
+    let hbr = args.hard_body_radius_m;
     if hbr <= 0.0 {
         bail!("--hard-body-radius-m must be positive");
     }

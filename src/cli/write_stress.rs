@@ -6,30 +6,16 @@
 //! real process in the middle of a save.
 
 use std::io::Write;
-use std::path::Path;
 
-use anyhow::{Context, Result, bail};
+use anyhow::{Context, Result};
+
+use super::args::WriteStressArgs;
 
 /// Upper bound on rounds, so a forgotten child stops on its own.
 const MAX_ROUNDS: u64 = 100_000;
 
-pub fn run(argv: &[String], out: &mut dyn Write) -> Result<()> {
-    let (path, bytes, first_round) = match argv {
-        [p] => (p, 1 << 20, 0),
-        [p, n] => (
-            p,
-            n.parse::<usize>().context("BYTES must be a whole number")?,
-            0,
-        ),
-        [p, n, r] => (
-            p,
-            n.parse::<usize>().context("BYTES must be a whole number")?,
-            r.parse::<u64>()
-                .context("FIRST_ROUND must be a whole number")?,
-        ),
-        _ => bail!("usage: passlane __write-stress PATH [BYTES [FIRST_ROUND]]"),
-    };
-    let path = Path::new(path);
+pub fn run(args: &WriteStressArgs, out: &mut dyn Write) -> Result<()> {
+    let (path, bytes, first_round) = (args.path.as_path(), args.bytes, args.first_round);
     let removed = passlane_files::remove_stale_temporaries(path);
     writeln!(out, "removed {removed} stale temporaries")?;
     out.flush()?;

@@ -136,7 +136,7 @@ impl Document {
             .iter()
             .map(|s| s.epoch)
             .reduce(UtcTime::min)
-            .unwrap_or_else(|| UtcTime::now());
+            .unwrap_or_else(UtcTime::now);
         (start, start.add_s(86_400.0))
     }
 

@@ -248,19 +248,22 @@ fn fleet_view_shows_orbit_summaries_and_stations() {
     // The name also labels the spacecraft's timeline row, so it appears more than
     // once; the summary row is recognised by its period, computed here directly.
     assert!(
-        h.query_all_by_label("KRSL-1 HERON").count() >= 2,
+        h.query_all_by_label("KRSL-1 ORMIVEL").count() >= 2,
         "timeline row and summary row"
     );
-    let heron = h
+    let ormivel = h
         .state()
         .state
         .doc
         .fleet
         .iter()
-        .find(|s| s.name == "KRSL-1 HERON")
+        .find(|s| s.name == "KRSL-1 ORMIVEL")
         .cloned();
-    let heron = heron.expect("the demo fleet has KRSL-1 HERON");
-    let period = format!("{:.2}", passlane_orbit::OrbitSummary::of(&heron).period_min);
+    let ormivel = ormivel.expect("the demo fleet has KRSL-1 ORMIVEL");
+    let period = format!(
+        "{:.2}",
+        passlane_orbit::OrbitSummary::of(&ormivel).period_min
+    );
     assert!(
         h.query_by_label(&period).is_some(),
         "orbit summary shows the period {period} min"

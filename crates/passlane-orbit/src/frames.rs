@@ -398,9 +398,9 @@ mod tests {
                 height_km: 0.0,
             },
             Geodetic {
-                latitude_deg: 78.23,
-                longitude_deg: 15.39,
-                height_km: 0.48,
+                latitude_deg: 73.36,
+                longitude_deg: -98.74,
+                height_km: 0.24,
             },
             Geodetic {
                 latitude_deg: -45.0,

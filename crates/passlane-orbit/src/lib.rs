@@ -17,6 +17,7 @@ pub mod ephemeris;
 pub mod frames;
 pub mod inertial;
 pub mod interpolate;
+pub mod numerical;
 pub mod propagate;
 pub mod summary;
 pub mod sun;

@@ -17,10 +17,10 @@ const STRICT: LoadOptions = LoadOptions { lenient: false };
 /// A keyword to set (`Some`) or remove (`None`).
 type Change = (&'static str, Option<&'static str>);
 
-/// HERON as OMM keyword/value pairs (CCSDS 502.0 keywords).
-fn heron_omm() -> Vec<(&'static str, &'static str)> {
+/// ORMIVEL as OMM keyword/value pairs (CCSDS 502.0 keywords).
+fn ormivel_omm() -> Vec<(&'static str, &'static str)> {
     vec![
-        ("OBJECT_NAME", "KRSL-1 HERON"),
+        ("OBJECT_NAME", "KRSL-1 ORMIVEL"),
         ("OBJECT_ID", "2026-901A"),
         ("CENTER_NAME", "EARTH"),
         ("REF_FRAME", "TEME"),
@@ -172,8 +172,8 @@ fn json_array(objs: &[String]) -> String {
 
 #[test]
 fn the_same_satellite_in_every_format_gives_the_same_elements() {
-    let tle = load(HERON.join("\n").as_bytes(), "x", STRICT);
-    let p = heron_omm();
+    let tle = load(ORMIVEL.join("\n").as_bytes(), "x", STRICT);
+    let p = ormivel_omm();
     let texts = [
         kvn(&p),
         xml(&p),
@@ -199,12 +199,12 @@ fn the_same_satellite_in_every_format_gives_the_same_elements() {
 
 #[test]
 fn several_omms_in_one_kvn_file() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let second = with(
         &p,
         &[
             ("NORAD_CAT_ID", Some("90002")),
-            ("OBJECT_NAME", Some("KRSL-2 WREN")),
+            ("OBJECT_NAME", Some("KRSL-2 BREVANDT")),
         ],
     );
     let text = kvn(&p) + "\n" + &kvn(&second);
@@ -218,13 +218,13 @@ fn several_omms_in_one_kvn_file() {
 #[test]
 fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
     use Severity::Error;
-    let p = heron_omm();
+    let p = ormivel_omm();
     let a = with(&p, &[("NORAD_CAT_ID", Some("90001"))]);
     let c = with(
         &p,
         &[
             ("NORAD_CAT_ID", Some("90003")),
-            ("OBJECT_NAME", Some("KRSL-3 PLOVER")),
+            ("OBJECT_NAME", Some("KRSL-3 LUNNOCK")),
         ],
     );
     let mid = |changes: &[(&'static str, Option<&'static str>)]| {
@@ -233,7 +233,7 @@ fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
             &[
                 &[
                     ("NORAD_CAT_ID", Some("90002")),
-                    ("OBJECT_NAME", Some("KRSL-2 WREN")),
+                    ("OBJECT_NAME", Some("KRSL-2 BREVANDT")),
                 ],
                 changes,
             ]
@@ -352,7 +352,7 @@ fn bad_omm_records_are_reported_and_their_neighbours_still_load() {
 
 #[test]
 fn missing_bstar_in_kvn_and_xml_names_bstar() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let no_bstar = with(&p, &[("BSTAR", None), ("NORAD_CAT_ID", Some("90002"))]);
     let c = with(&p, &[("NORAD_CAT_ID", Some("90003"))]);
     let text = kvn(&p) + &kvn(&no_bstar) + &kvn(&c);
@@ -373,7 +373,7 @@ fn missing_bstar_in_kvn_and_xml_names_bstar() {
 #[test]
 fn mean_motion_derivatives_default_to_zero() {
     let p = with(
-        &heron_omm(),
+        &ormivel_omm(),
         &[("MEAN_MOTION_DOT", None), ("MEAN_MOTION_DDOT", None)],
     );
     let r = load(kvn(&p).as_bytes(), "x.kvn", STRICT);
@@ -383,7 +383,7 @@ fn mean_motion_derivatives_default_to_zero() {
 
 #[test]
 fn xml_errors_carry_the_line_of_the_element() {
-    let p = with(&heron_omm(), &[("ECCENTRICITY", Some("1.5"))]);
+    let p = with(&ormivel_omm(), &[("ECCENTRICITY", Some("1.5"))]);
     let text = xml(&p);
     let r = load(text.as_bytes(), "x.xml", STRICT);
     let d = &r.diagnostics[0];
@@ -401,7 +401,7 @@ fn xml_errors_carry_the_line_of_the_element() {
 
 #[test]
 fn json_with_numbers_as_strings_loads() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let text = json_array(&[json_obj(&p, true)]);
     assert!(text.contains("\"MEAN_MOTION\": \"15.20279803\""));
     let r = load(text.as_bytes(), "s.json", STRICT);
@@ -411,7 +411,7 @@ fn json_with_numbers_as_strings_loads() {
 
 #[test]
 fn deeply_nested_json_gives_a_clear_error() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let deep = format!("{}{}", "[".repeat(100_000), "]".repeat(100_000));
     let bad = format!("  {{\"NORAD_CAT_ID\": 90002, \"BSTAR\": {deep}}}");
     let c = with(&p, &[("NORAD_CAT_ID", Some("90003"))]);
@@ -430,7 +430,7 @@ fn deeply_nested_json_gives_a_clear_error() {
 
 #[test]
 fn broken_json_keeps_the_records_before_the_break() {
-    let p = heron_omm();
+    let p = ormivel_omm();
     let text = format!("[\n{},\n  {{\"NORAD_CAT_ID\": 9000", json_obj(&p, false));
     let r = load(text.as_bytes(), "cut.json", STRICT);
     assert_eq!(catalogs(&r), vec![90001]);
@@ -452,7 +452,7 @@ fn deeply_nested_xml_does_not_crash() {
 
 #[test]
 fn diagnostics_display_file_line_field_and_reason() {
-    let w = wren();
+    let w = brevandt();
     let r = load(
         &around(&[w[0].clone(), format!("{}4", &w[1][..68]), w[2].clone()]),
         "fleet.tle",

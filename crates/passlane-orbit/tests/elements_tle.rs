@@ -40,7 +40,7 @@ fn check(name: &str, r: &LoadReport, expected: &[Expect], loaded: &[u32]) {
 #[test]
 fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
     use Severity::{Error, Warning};
-    let w = wren();
+    let w = brevandt();
     let bad_checksum = vec![w[0].clone(), format!("{}4", &w[1][..68]), w[2].clone()];
     // Inclination moved one column to the right: the blank column 17 is taken.
     let shifted = vec![
@@ -73,7 +73,13 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
         Vec<u32>,
     );
     let cases: Vec<Case> = vec![
-        ("good", wren(), STRICT, vec![], vec![90001, 90002, 90003]),
+        (
+            "good",
+            brevandt(),
+            STRICT,
+            vec![],
+            vec![90001, 90002, 90003],
+        ),
         (
             "checksum wrong, strict",
             bad_checksum.clone(),
@@ -196,13 +202,13 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
             vec![90001, 90002, 90003],
         ),
         (
-            // Same catalog number as HERON with a newer epoch: the newer one
+            // Same catalog number as ORMIVEL with a newer epoch: the newer one
             // (line 4) is kept, the older (line 1) dropped with a warning.
             "duplicate catalog number",
             vec![
-                "KRSL-1 HERON (NEWER)".to_string(),
-                edit(HERON[1], 19, "26336.21354167"),
-                HERON[2].to_string(),
+                "KRSL-1 ORMIVEL (NEWER)".to_string(),
+                edit(ORMIVEL[1], 19, "26336.21354167"),
+                ORMIVEL[2].to_string(),
             ],
             STRICT,
             vec![(
@@ -223,12 +229,12 @@ fn bad_tle_records_are_reported_and_their_neighbours_still_load() {
 #[test]
 fn duplicate_keeps_the_newest_epoch() {
     let newer = vec![
-        "KRSL-1 HERON (NEWER)".to_string(),
-        edit(HERON[1], 19, "26336.21354167"),
-        HERON[2].to_string(),
+        "KRSL-1 ORMIVEL (NEWER)".to_string(),
+        edit(ORMIVEL[1], 19, "26336.21354167"),
+        ORMIVEL[2].to_string(),
     ];
     let r = load(&around(&newer), "case.tle", STRICT);
-    assert_eq!(r.sets[0].name, "KRSL-1 HERON (NEWER)");
+    assert_eq!(r.sets[0].name, "KRSL-1 ORMIVEL (NEWER)");
     assert_eq!(r.sets[0].source.line, 4);
     // Without de-duplication both stay.
     let r = load_records(&around(&newer), "case.tle", STRICT);
@@ -237,9 +243,14 @@ fn duplicate_keeps_the_newest_epoch() {
 
 #[test]
 fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
-    let mut text = [HERON.join("\n"), PLOVER.join("\n"), WREN[0].to_string()].join("\n");
+    let mut text = [
+        ORMIVEL.join("\n"),
+        LUNNOCK.join("\n"),
+        BREVANDT[0].to_string(),
+    ]
+    .join("\n");
     text.push('\n');
-    text.push_str(&WREN[1][..30]);
+    text.push_str(&BREVANDT[1][..30]);
     let r = load(text.as_bytes(), "case.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001, 90003]);
     assert_eq!(r.diagnostics.len(), 1, "{:#?}", r.diagnostics);
@@ -248,7 +259,7 @@ fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
     assert!(d.message.contains("the file ends here"), "{d}");
 
     // Cut right after a name line.
-    let text = [HERON.join("\n"), WREN[0].to_string()].join("\n");
+    let text = [ORMIVEL.join("\n"), BREVANDT[0].to_string()].join("\n");
     let r = load(text.as_bytes(), "case.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001]);
     assert_eq!(r.diagnostics[0].line, 4);
@@ -262,7 +273,7 @@ fn a_file_cut_inside_a_record_keeps_the_records_before_it() {
 #[test]
 fn resynchronises_on_the_next_line_1_in_two_line_files() {
     // Two-line form: a line 1 without its line 2, then good records.
-    let text = [HERON[1], HERON[2], WREN[1], PLOVER[1], PLOVER[2]].join("\n");
+    let text = [ORMIVEL[1], ORMIVEL[2], BREVANDT[1], LUNNOCK[1], LUNNOCK[2]].join("\n");
     let r = load(text.as_bytes(), "two.tle", STRICT);
     assert_eq!(catalogs(&r), vec![90001, 90003]);
     assert_eq!(r.sets[0].name, "CATALOG 90001");
@@ -283,21 +294,21 @@ fn empty_and_blank_files() {
 fn three_line_form_with_zero_names_crlf_trailing_blanks_and_gaps() {
     let text = format!(
         "0 {}   \r\n{}  \r\n{}\t\r\n\r\n\r\n0 {}\r\n{}\r\n{}   ",
-        HERON[0], HERON[1], HERON[2], WREN[0], WREN[1], WREN[2]
+        ORMIVEL[0], ORMIVEL[1], ORMIVEL[2], BREVANDT[0], BREVANDT[1], BREVANDT[2]
     );
     let r = load(text.as_bytes(), "crlf.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
-    assert_eq!(r.sets[0].name, "KRSL-1 HERON");
-    assert_eq!(r.sets[1].name, "KRSL-2 WREN");
+    assert_eq!(r.sets[0].name, "KRSL-1 ORMIVEL");
+    assert_eq!(r.sets[1].name, "KRSL-2 BREVANDT");
     assert_eq!(r.sets[1].source.line, 6);
 }
 
 #[test]
 fn reads_every_tle_field() {
-    let r = load(HERON.join("\n").as_bytes(), "heron.tle", STRICT);
+    let r = load(ORMIVEL.join("\n").as_bytes(), "ormivel.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     let s = &r.sets[0];
-    assert_eq!(s.name, "KRSL-1 HERON");
+    assert_eq!(s.name, "KRSL-1 ORMIVEL");
     assert_eq!(s.catalog_number, 90001);
     assert_eq!(s.classification, 'U');
     assert_eq!(s.international_designator, "26901A");
@@ -315,13 +326,13 @@ fn reads_every_tle_field() {
     assert_eq!(s.mean_anomaly_deg, 272.0);
     assert_eq!(s.mean_motion_rev_day, 15.20279803);
     assert_eq!(s.revolution_number, 1234);
-    assert_eq!((s.source.file.as_str(), s.source.line), ("heron.tle", 1));
+    assert_eq!((s.source.file.as_str(), s.source.line), ("ormivel.tle", 1));
 }
 
 #[test]
 fn alpha5_catalog_numbers_load() {
-    let l1 = edit(HERON[1], 3, "A0001");
-    let l2 = edit(HERON[2], 3, "A0001");
+    let l1 = edit(ORMIVEL[1], 3, "A0001");
+    let l2 = edit(ORMIVEL[2], 3, "A0001");
     let r = load([l1, l2].join("\n").as_bytes(), "a5.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     // Alpha-5 (common practice): A = 10, so A0001 = 100001.
@@ -342,7 +353,7 @@ fn the_demo_fleet_loads_cleanly() {
     let r = load(&demo_fleet(), "demo-fleet.tle", STRICT);
     assert!(r.diagnostics.is_empty(), "{:#?}", r.diagnostics);
     assert_eq!(catalogs(&r), vec![90001, 90002, 90003, 90004, 90005, 90006]);
-    assert_eq!(r.sets[5].name, "KRSL-6 SKUA");
+    assert_eq!(r.sets[5].name, "KRSL-6 TASSOREL");
     assert_eq!(r.sets[5].eccentricity, 0.1322046);
 }
 

@@ -11,14 +11,14 @@ use passlane_orbit::elements::{LoadOptions, LoadReport, load};
 const STRICT: LoadOptions = LoadOptions { lenient: false };
 const LENIENT: LoadOptions = LoadOptions { lenient: true };
 
-const HERON: [&str; 3] = [
-    "KRSL-1 HERON",
+const ORMIVEL: [&str; 3] = [
+    "KRSL-1 ORMIVEL",
     "1 90001U 26901A   26335.21354167  .00000876  00000-0  21000-3 0  9993",
     "2 90001  97.4021  45.1200 0010170  88.1000 272.0000 15.20279803 12341",
 ];
 
-fn heron() -> String {
-    HERON.join("\n") + "\n"
+fn ormivel() -> String {
+    ORMIVEL.join("\n") + "\n"
 }
 
 /// Loads in both modes and insists on at least one error diagnostic with a
@@ -60,10 +60,10 @@ fn a_ten_megabyte_line_without_newline() {
 
 #[test]
 fn a_ten_megabyte_line_between_good_records() {
-    let mut text = heron().into_bytes();
+    let mut text = ormivel().into_bytes();
     text.extend(b"x".repeat(10 * 1024 * 1024));
     text.push(b'\n');
-    text.extend_from_slice(heron().as_bytes());
+    text.extend_from_slice(ormivel().as_bytes());
     let r = load(&text, "mixed", STRICT);
     assert_eq!(
         r.sets.len(),
@@ -89,9 +89,9 @@ fn nul_bytes_and_invalid_utf8() {
         rejected("invalid UTF-8 in OMM", &bytes);
     }
     // A TLE with a NUL inside a field is rejected, the next record loads.
-    let mut bad = heron().into_bytes();
+    let mut bad = ormivel().into_bytes();
     bad[40] = 0;
-    bad.extend_from_slice(heron().replace("KRSL-1", "KRSL-1B").as_bytes());
+    bad.extend_from_slice(ormivel().replace("KRSL-1", "KRSL-1B").as_bytes());
     let r = load(&bad, "nul", STRICT);
     assert!(r.errors().count() >= 1);
 }
@@ -121,7 +121,7 @@ fn deeply_nested_xml() {
     }
 }
 
-/// OMM fields holding numbers, with HERON's values.
+/// OMM fields holding numbers, with ORMIVEL's values.
 const NUMERIC: [(&str, &str); 13] = [
     ("MEAN_MOTION", "15.20279803"),
     ("ECCENTRICITY", "0.0010170"),
@@ -139,7 +139,7 @@ const NUMERIC: [(&str, &str); 13] = [
 ];
 
 const TEXT: [(&str, &str); 7] = [
-    ("OBJECT_NAME", "KRSL-1 HERON"),
+    ("OBJECT_NAME", "KRSL-1 ORMIVEL"),
     ("OBJECT_ID", "2026-901A"),
     ("CENTER_NAME", "EARTH"),
     ("REF_FRAME", "TEME"),
@@ -203,7 +203,7 @@ fn json(pairs: &[(&str, String)], bare: &str) -> String {
 
 #[test]
 fn the_good_record_loads_in_every_rendering() {
-    // Guards the test helpers: with no change, each rendering loads HERON.
+    // Guards the test helpers: with no change, each rendering loads ORMIVEL.
     let pairs = pairs_with("", "");
     for (name, text) in [
         ("kvn", kvn(&pairs)),
@@ -266,7 +266,7 @@ fn tle_fields_with_words_and_overflow() {
         (2, 9, "NaN.0000"),      // inclination
     ];
     for (which, col, text) in cases {
-        let mut lines: Vec<String> = HERON.iter().map(|s| s.to_string()).collect();
+        let mut lines: Vec<String> = ORMIVEL.iter().map(|s| s.to_string()).collect();
         lines[which].replace_range(col - 1..col - 1 + text.len(), text);
         let bytes = (lines.join("\n") + "\n").into_bytes();
         rejected(&format!("line {which} col {col} {text}"), &bytes);

@@ -28,22 +28,24 @@ fn main() {
     let end = UtcTime::parse_iso("2026-12-08T00:00:00Z").expect("time");
     let options = PassOptions::new(start, end);
     let three = vec![
-        Station::new("Northfell", 78.23, 15.39, 480.0),
-        Station::new("Bramble Hill", 51.45, -1.3, 120.0),
-        Station::new("Coral Shoal", 1.35, 103.82, 15.0),
+        Station::new("Northfell", 73.36, -98.74, 240.0),
+        Station::new("Bramble Hill", 51.42, -126.45, 1580.0),
+        Station::new("Coral Shoal", -5.64, -155.9, 6.0),
     ];
-    // Ten invented stations spread over latitudes.
+    // Ten invented stations spread over latitudes: the three demo sites and
+    // seven open-ocean points hundreds of kilometres from any land, so that
+    // none stands for a real place.
     let ten: Vec<Station> = [
-        (78.2, 15.4),
-        (64.8, -147.7),
-        (51.5, -1.3),
-        (40.4, -3.7),
-        (35.4, 139.4),
-        (19.0, -155.6),
-        (1.35, 103.8),
-        (-25.9, 27.7),
-        (-33.9, 151.2),
-        (-52.9, -70.8),
+        (73.36, -98.74),
+        (64.8, -30.0),
+        (51.42, -126.45),
+        (40.4, -45.0),
+        (35.4, 160.0),
+        (19.0, -135.0),
+        (-5.64, -155.9),
+        (-25.9, 80.0),
+        (-33.9, -20.0),
+        (-52.9, -140.0),
     ]
     .iter()
     .enumerate()

@@ -29,17 +29,18 @@ fn main() {
     let start = UtcTime::parse_iso("2026-12-01T00:00:00Z").expect("time");
     let end = UtcTime::parse_iso("2026-12-08T00:00:00Z").expect("time");
 
-    // Eight invented stations; the first four have two antennas (12 in all),
-    // the second of which only works above 15°.
+    // Eight invented stations (the three demo sites and open-ocean points far
+    // from any land, as in the passes bench); the first four have two antennas
+    // (12 in all), the second of which only works above 15°.
     let sites = [
-        (78.2, 15.4),
-        (64.8, -147.7),
-        (51.5, -1.3),
-        (-52.9, -70.8),
-        (35.4, 139.4),
-        (1.35, 103.8),
-        (-25.9, 27.7),
-        (19.0, -155.6),
+        (73.36, -98.74),
+        (64.8, -30.0),
+        (51.42, -126.45),
+        (-52.9, -140.0),
+        (35.4, 160.0),
+        (-5.64, -155.9),
+        (-25.9, 80.0),
+        (19.0, -135.0),
     ];
     let mut scenario = Scenario::default();
     for (i, (lat, lon)) in sites.iter().enumerate() {

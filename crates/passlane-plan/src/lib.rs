@@ -24,7 +24,7 @@ pub mod progress;
 pub mod scenario;
 
 // Each job's modules, also reachable from the crate root.
-pub use approaches::{cdm, conjunction, encounter, job, pc, screen};
+pub use approaches::{avoid, cdm, conjunction, encounter, job, pc, screen};
 pub use contacts::{passes, pointing, station};
 pub use network::{export, schedule};
 

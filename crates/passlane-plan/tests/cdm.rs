@@ -6,8 +6,8 @@
 use passlane_plan::cdm::{Cdm, CdmError};
 use passlane_plan::pc::{Encounter2d, pc_foster};
 
-const GOOD: &str = include_str!("fixtures/cdm/heron_vs_debris_99871.kvn");
-const GOOD_NAME: &str = "heron_vs_debris_99871.kvn";
+const GOOD: &str = include_str!("fixtures/cdm/ormivel_vs_debris_99871.kvn");
+const GOOD_NAME: &str = "ormivel_vs_debris_99871.kvn";
 
 fn parse_ok(text: &str) -> Cdm {
     match Cdm::parse(text, GOOD_NAME) {
@@ -31,7 +31,7 @@ fn rel_err(got: f64, want: f64) -> f64 {
 fn reads_the_hand_built_message() {
     let c = parse_ok(GOOD);
     assert_eq!(c.header.originator, "KESTREL RIDGE SPACE LAB");
-    assert_eq!(c.object1.object_name, "KRSL-1 HERON");
+    assert_eq!(c.object1.object_name, "KRSL-1 ORMIVEL");
     assert_eq!(c.object2.object_designator, "99871");
     assert_eq!(c.relative.miss_distance_m, 1000.0);
     assert_eq!(c.object2.state.position_km, [7001.0, 0.0, 0.0]);

@@ -8,7 +8,7 @@ use passlane_plan::Scenario;
 use passlane_plan::cdm::Cdm;
 use passlane_plan::scenario::SCENARIO_FORMAT_VERSION;
 
-const GOOD_CDM: &str = include_str!("fixtures/cdm/heron_vs_debris_99871.kvn");
+const GOOD_CDM: &str = include_str!("fixtures/cdm/ormivel_vs_debris_99871.kvn");
 const DEMO_SCENARIO: &str = include_str!("../../../scenarios/demo.json");
 
 /// Values no numeric field may accept.

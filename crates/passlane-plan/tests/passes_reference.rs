@@ -391,7 +391,7 @@ fn pointing_table_agrees_with_look_angles_and_doppler() {
 #[test]
 fn horizon_mask_affects_only_passes_through_its_sector() {
     let sets = demo_fleet();
-    let base = Station::new("Bramble Hill", 51.45, -1.3, 120.0);
+    let base = Station::new("Bramble Hill", 51.42, -126.45, 1580.0);
     let mut masked = base.clone();
     masked.horizon_mask = vec![
         MaskPoint {

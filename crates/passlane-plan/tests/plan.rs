@@ -704,7 +704,7 @@ fn oem_follows_the_layout_and_matches_the_ephemeris() {
     assert_eq!(
         &lines[meta_start + 1..meta_stop],
         &[
-            "OBJECT_NAME = KRSL-1 HERON",
+            "OBJECT_NAME = KRSL-1 ORMIVEL",
             "OBJECT_ID = 2026-901A",
             "CENTER_NAME = EARTH",
             "REF_FRAME = TEME",

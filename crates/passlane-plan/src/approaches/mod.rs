@@ -10,9 +10,12 @@
 //! - [`cdm`]: CCSDS conjunction data messages, read and written.
 //! - [`conjunction`]: the assessment of screening events with the operator's
 //!   assumed covariance, and CDMs made from events.
+//! - [`avoid`]: what a burn does to a close approach, and the trade of burn
+//!   time against Δv.
 //! - [`job`]: the one sequence the command line and the window both run
 //!   (screen, add the fleet's own pairs, sort, assess).
 
+pub mod avoid;
 pub mod cdm;
 pub mod conjunction;
 pub mod encounter;

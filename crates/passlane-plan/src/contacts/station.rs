@@ -472,9 +472,9 @@ mod tests {
 
     #[test]
     fn inline_form() {
-        let s = Station::parse_inline("Bramble Hill,51.45,-1.3,120").unwrap();
+        let s = Station::parse_inline("Bramble Hill,51.42,-126.45,1580").unwrap();
         assert_eq!(s.name, "Bramble Hill");
-        assert_eq!(s.height_m, 120.0);
+        assert_eq!(s.height_m, 1580.0);
         let e = Station::parse_inline("X,91,0,0").unwrap_err();
         assert_eq!(e.field, "latitude_deg");
         let e = Station::parse_inline("X,1,zero,0").unwrap_err();

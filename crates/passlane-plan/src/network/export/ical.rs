@@ -58,7 +58,7 @@ pub fn write_icalendar(
     Ok(())
 }
 
-/// The event title, e.g. "KRSL-5 AUK: Northfell / NF-A 3.7 m".
+/// The event title, e.g. "KRSL-5 FIRTHEN: Northfell / NF-A 3.7 m".
 pub fn summary(c: &PlannedContact) -> String {
     format!("{}: {} / {}", c.spacecraft, c.station, c.antenna)
 }

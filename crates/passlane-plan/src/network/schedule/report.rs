@@ -88,8 +88,8 @@ pub struct ResolvedConflict {
 }
 
 impl ResolvedConflict {
-    /// One line, e.g. "KRSL-3 PLOVER lost Northfell/NF-A 2026-12-01 03:12–03:20
-    /// to KRSL-5 AUK (priority 5 > 1)".
+    /// One line, e.g. "KRSL-3 LUNNOCK lost Northfell/NF-A 2026-12-01 03:12–03:20
+    /// to KRSL-5 FIRTHEN (priority 5 > 1)".
     pub fn describe(&self) -> String {
         let aos = self.aos.to_iso_s();
         let los = self.los.to_iso_s();
