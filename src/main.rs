@@ -37,7 +37,7 @@ fn main() -> ExitCode {
         Command::Passes(args) => cli::passes_cmd::run(args, out),
         Command::Track(args) => cli::passes_cmd::run_track(args, out),
         Command::Screen(args) => cli::screen_cmd::run(args, out),
-        Command::Cdm(args) => cli::screen_cmd::run_cdm(args, out),
+        Command::Cdm(args) => cli::cdm_cmd::run(args, out),
         Command::Plan(args) => cli::plan_cmd::run(args, out),
         Command::Avoid(args) => cli::avoid_cmd::run(args, out),
         Command::Completions(args) => completions(args.shell, out),

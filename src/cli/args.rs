@@ -137,6 +137,14 @@ pub struct FleetArgs {
         allow_hyphen_values = true
     )]
     pub elements: Vec<PathBuf>,
+    /// Operator ephemeris (CCSDS OEM, KVN or XML) that gives a spacecraft's motion: FILE, or CATALOG=FILE to say which catalog number it is; repeatable [default: the scenario's ephemeris_files]
+    #[arg(
+        long,
+        value_name = "[CATALOG=]FILE",
+        help_heading = "Inputs",
+        allow_hyphen_values = true
+    )]
+    pub ephemeris: Vec<String>,
     /// Scenario file (JSON): fleet, stations, window and settings, each overridden by the options here [default: none]
     #[arg(
         long,
@@ -385,7 +393,7 @@ pub struct ScreenArgs {
     /// Output format on standard output
     #[arg(long, value_enum, default_value_t = TableCsvJson::Table, help_heading = "Output", allow_hyphen_values = true)]
     pub format: TableCsvJson,
-    /// Write one CCSDS CDM (KVN) per event into this folder [default: write none]
+    /// Write one CCSDS CDM per event into this folder [default: write none]
     #[arg(
         long,
         value_name = "DIR",
@@ -393,7 +401,10 @@ pub struct ScreenArgs {
         allow_hyphen_values = true
     )]
     pub cdm_dir: Option<PathBuf>,
-    /// ORIGINATOR of the CDMs written
+    /// Form of the CDMs written (CCSDS 508.0-B-1): KVN text or XML
+    #[arg(long, value_enum, default_value_t = MessageFormat::Kvn, help_heading = "Output", allow_hyphen_values = true)]
+    pub cdm_format: MessageFormat,
+    /// ORIGINATOR of the CDMs written (uppercased; letters, digits, - and _)
     #[arg(
         long,
         value_name = "NAME",
@@ -408,11 +419,12 @@ pub struct ScreenArgs {
 
 #[derive(Debug, Args)]
 pub struct CdmArgs {
-    /// CCSDS conjunction data message (KVN)
-    pub file: PathBuf,
-    /// Combined hard-body radius of the two objects, metres (a CDM carries none)
-    #[arg(long, value_name = "M", value_parser = finite_f64, default_value_t = 10.0, help_heading = "Probability", allow_hyphen_values = true)]
-    pub hard_body_radius_m: f64,
+    /// CCSDS conjunction data messages (KVN or XML); several of one event show its trend
+    #[arg(value_name = "FILE", required = true)]
+    pub files: Vec<PathBuf>,
+    /// Combined hard-body radius of the two objects, metres, overriding the message's [default: the radius this tool recorded in the message, else 10]
+    #[arg(long, value_name = "M", value_parser = finite_f64, help_heading = "Probability", allow_hyphen_values = true)]
+    pub hard_body_radius_m: Option<f64>,
     /// Output format on standard output
     #[arg(long, value_enum, default_value_t = TableJson::Table, help_heading = "Output", allow_hyphen_values = true)]
     pub format: TableJson,
@@ -509,12 +521,20 @@ pub struct PlanArgs {
         allow_hyphen_values = true
     )]
     pub elements: Vec<PathBuf>,
+    /// Operator ephemeris (CCSDS OEM, KVN or XML) that gives a spacecraft's motion: FILE, or CATALOG=FILE to say which catalog number it is; repeatable [default: the scenario's ephemeris_files]
+    #[arg(
+        long,
+        value_name = "[CATALOG=]FILE",
+        help_heading = "Inputs",
+        allow_hyphen_values = true
+    )]
+    pub ephemeris: Vec<String>,
     /// Load element records with a wrong checksum or extra columns, with a warning
     #[arg(long, help_heading = "Inputs")]
     pub lenient: bool,
     #[command(flatten)]
     pub window: WindowArgs,
-    /// Write plan.csv, plan.json, plan.ics, pointing/*.csv and oem/*.oem into this folder [default: write no files]
+    /// Write plan.csv, plan.json, plan.ics, pointing/*.csv and oem/*.oem (or *.xml) into this folder [default: write no files]
     #[arg(
         long,
         value_name = "DIR",
@@ -528,8 +548,26 @@ pub struct PlanArgs {
     /// Time between rows of the pointing files, seconds
     #[arg(long, value_name = "S", value_parser = finite_f64, default_value_t = 1.0, help_heading = "Output", allow_hyphen_values = true)]
     pub pointing_step_s: f64,
+    /// Form of the OEM files (CCSDS 502.0-B-3): KVN text or XML
+    #[arg(long, value_enum, default_value_t = MessageFormat::Kvn, help_heading = "Output", allow_hyphen_values = true)]
+    pub oem_format: MessageFormat,
+    /// Frame of the OEM files: EME2000 (IAU 1976/1980 from SGP4's TEME) or TEME itself
+    #[arg(long, value_enum, default_value_t = OemFrameArg::Eme2000, help_heading = "Output", allow_hyphen_values = true)]
+    pub oem_frame: OemFrameArg,
     #[command(flatten)]
     pub quiet: QuietArgs,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MessageFormat {
+    Kvn,
+    Xml,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum OemFrameArg {
+    Eme2000,
+    Teme,
 }
 
 #[derive(Debug, Clone, Copy, ValueEnum)]

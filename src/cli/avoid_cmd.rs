@@ -161,6 +161,7 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
     let sources = Sources {
         scenario: args.fleet.scenario.as_deref(),
         elements: &args.fleet.elements,
+        ephemerides: &args.fleet.ephemeris,
         stations: &[],
         start: None,
         end: None,

@@ -35,6 +35,53 @@ pub fn load_fleet(paths: &[PathBuf], lenient: bool) -> Result<Vec<ElementSet>> {
     Ok(report.sets)
 }
 
+/// `--ephemeris` value: `FILE`, or `CATALOG=FILE` (digits before `=`).
+pub fn ephemeris_spec(spec: &str) -> Result<(PathBuf, Option<u32>)> {
+    if let Some((n, file)) = spec.split_once('=')
+        && !n.is_empty()
+        && n.bytes().all(|b| b.is_ascii_digit())
+    {
+        let n: u32 = n.parse().map_err(|_| {
+            anyhow::anyhow!("--ephemeris {spec:?}: catalog number {n} is too large")
+        })?;
+        if file.is_empty() {
+            bail!("--ephemeris {spec:?}: give CATALOG=FILE");
+        }
+        return Ok((PathBuf::from(file), Some(n)));
+    }
+    Ok((PathBuf::from(spec), None))
+}
+
+/// Reads operator ephemerides (CCSDS OEM) and puts them into the fleet,
+/// printing every diagnostic to stderr as `file:line: ...`; a file that
+/// cannot be used is reported and the others still load.
+pub fn attach_ephemerides(
+    fleet: &mut Vec<ElementSet>,
+    files: &[(PathBuf, Option<u32>)],
+    eop: &passlane_orbit::EarthOrientation,
+) -> Result<()> {
+    use passlane_orbit::ephemeris::{EphemerisInput, attach_to_fleet, load_oem};
+    let mut inputs = Vec::new();
+    for (path, catalog_number) in files {
+        let bytes = passlane_files::read_limited(path, passlane_files::DEFAULT_READ_LIMIT_BYTES)
+            .with_context(|| format!("cannot read ephemeris file {}", path.display()))?;
+        let (eph, diagnostics) = load_oem(&bytes, &path.display().to_string(), eop);
+        for d in &diagnostics {
+            eprintln!("{d}");
+        }
+        if let Some(ephemeris) = eph {
+            inputs.push(EphemerisInput {
+                ephemeris,
+                catalog_number: *catalog_number,
+            });
+        }
+    }
+    for d in attach_to_fleet(fleet, inputs) {
+        eprintln!("{d}");
+    }
+    Ok(())
+}
+
 pub fn join_paths(paths: &[PathBuf]) -> String {
     paths
         .iter()
@@ -75,6 +122,8 @@ pub fn resolve(scenario_path: &Path, file: &str) -> PathBuf {
 pub struct Sources<'a> {
     pub scenario: Option<&'a Path>,
     pub elements: &'a [PathBuf],
+    /// `--ephemeris` values: FILE or CATALOG=FILE.
+    pub ephemerides: &'a [String],
     pub stations: &'a [String],
     pub start: Option<UtcTime>,
     pub end: Option<UtcTime>,
@@ -87,6 +136,7 @@ impl<'a> Sources<'a> {
         Sources {
             scenario: fleet.scenario.as_deref(),
             elements: &fleet.elements,
+            ephemerides: &fleet.ephemeris,
             stations: &[],
             start: window.and_then(|w| w.start),
             end: window.and_then(|w| w.end),
@@ -126,10 +176,39 @@ pub fn gather(sources: &Sources, need_stations: bool) -> Result<Inputs> {
     {
         element_paths = s.element_files.iter().map(|f| resolve(p, f)).collect();
     }
-    if element_paths.is_empty() {
-        bail!("no element sets: give --elements FILE (or --scenario FILE with element_files)");
+    let mut ephemerides: Vec<(PathBuf, Option<u32>)> = Vec::new();
+    for spec in sources.ephemerides {
+        ephemerides.push(ephemeris_spec(spec)?);
     }
-    let sets = load_fleet(&element_paths, sources.lenient)?;
+    if ephemerides.is_empty()
+        && let Some((p, s)) = &scenario
+    {
+        ephemerides = s
+            .ephemeris_files
+            .iter()
+            .map(|e| (resolve(p, &e.file), e.catalog_number))
+            .collect();
+    }
+    if element_paths.is_empty() && ephemerides.is_empty() {
+        bail!(
+            "no element sets: give --elements FILE or --ephemeris FILE (or --scenario FILE with element_files)"
+        );
+    }
+    let mut sets = if element_paths.is_empty() {
+        Vec::new()
+    } else {
+        load_fleet(&element_paths, sources.lenient)?
+    };
+    if !ephemerides.is_empty() {
+        let eop = scenario
+            .as_ref()
+            .map(|(_, s)| s.earth_orientation)
+            .unwrap_or_default();
+        attach_ephemerides(&mut sets, &ephemerides, &eop)?;
+        if sets.is_empty() {
+            bail!("nothing loaded: no element set, and no ephemeris could be used");
+        }
+    }
     let mut stations = Vec::new();
     for s in sources.stations {
         // NAME,LAT,LON,HEIGHT defines a station; a bare name picks one of the

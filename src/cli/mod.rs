@@ -4,6 +4,7 @@
 
 pub mod args;
 pub mod avoid_cmd;
+pub mod cdm_cmd;
 pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;

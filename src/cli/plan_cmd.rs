@@ -9,7 +9,7 @@ use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::export::{self, HandOffContext, hand_off_files};
 use passlane_plan::schedule::{Method, Plan, plan_network};
 
-use super::args::PlanArgs;
+use super::args::{MessageFormat, OemFrameArg, PlanArgs};
 use super::common::{self, Format, Sources};
 use super::progress::Bar;
 
@@ -17,6 +17,7 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
     let sources = Sources {
         scenario: Some(&args.scenario),
         elements: &args.elements,
+        ephemerides: &args.ephemeris,
         stations: &[],
         start: args.window.start,
         end: args.window.end,
@@ -48,6 +49,7 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
             scenario,
             created,
             pointing_step_s,
+            args,
         )?),
         None => None,
     };
@@ -73,6 +75,7 @@ fn write_outputs(
     scenario: &passlane_plan::Scenario,
     created: UtcTime,
     pointing_step_s: f64,
+    args: &PlanArgs,
 ) -> Result<Written> {
     let hand_off = hand_off_files(
         plan,
@@ -84,8 +87,14 @@ fn write_outputs(
             originator: scenario.originator(),
             created,
             pointing_step_s,
-            oem_format: passlane_orbit::ephemeris::OemFormat::Kvn,
-            oem_frame: passlane_plan::export::OemFrame::Eme2000,
+            oem_format: match args.oem_format {
+                MessageFormat::Kvn => passlane_orbit::ephemeris::OemFormat::Kvn,
+                MessageFormat::Xml => passlane_orbit::ephemeris::OemFormat::Xml,
+            },
+            oem_frame: match args.oem_frame {
+                OemFrameArg::Eme2000 => passlane_plan::export::OemFrame::Eme2000,
+                OemFrameArg::Teme => passlane_plan::export::OemFrame::Teme,
+            },
         },
     );
     for w in &hand_off.warnings {

@@ -6,13 +6,12 @@ use std::path::PathBuf;
 
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
-use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{CdmContext, event_to_cdm};
 use passlane_plan::job::{ScreeningJob, screen_and_assess};
 use passlane_plan::screen::{CloseApproach, ScreeningVolume};
 use serde::Serialize;
 
-use super::args::{CdmArgs, ScreenArgs};
+use super::args::{MessageFormat, ScreenArgs};
 use super::common::{self, Format, Sources};
 use super::progress::Bar;
 use passlane_plan::export::csv_field;
@@ -144,7 +143,7 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                 pc_alfano: Some(r.pc_alfano),
                 pc_chan: Some(r.pc_chan),
                 pc_max: Some(r.pc_max),
-                covariance_source: Some(label.as_str()),
+                covariance_source: Some(r.covariance_source.as_str()),
                 hard_body_radius_m: Some(r.hard_body_radius_m),
                 risk_note: None,
             },
@@ -206,12 +205,17 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                     earth_orientation: scenario.map(|s| s.earth_orientation).unwrap_or_default(),
                 },
             )?;
-            let path = dir.join(format!("{message_id}.cdm"));
+            let xml = args.cdm_format == MessageFormat::Xml;
+            let path = dir.join(format!("{message_id}.{}", if xml { "xml" } else { "cdm" }));
             // Temporaries from an interrupted earlier run would otherwise pile up.
             passlane_files::remove_stale_temporaries(&path);
             passlane_files::write_atomic_with(&path, |w| {
                 let mut buf = Vec::new();
-                cdm.write_kvn(&mut buf)?;
+                if xml {
+                    cdm.write_xml(&mut buf)?;
+                } else {
+                    cdm.write_kvn(&mut buf)?;
+                }
                 w.write_all(&buf)
             })
             .with_context(|| format!("cannot write {}", path.display()))?;
@@ -309,7 +313,12 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
             )?;
             writeln!(
                 out,
-                "*Pc with {label}; combined hard-body radius per event (see --format json)."
+                "*Pc with {label}{}; combined hard-body radius per event (see --format json).",
+                if risks.iter().flatten().any(|r| r.covariance_source != label) {
+                    " (a spacecraft with its own ephemeris covariance uses that instead; see --format json)"
+                } else {
+                    ""
+                }
             )?;
             writeln!(
                 out,
@@ -339,83 +348,4 @@ fn describe_volume(v: &ScreeningVolume) -> String {
             format!("ellipsoid {radial_km}/{in_track_km}/{cross_track_km} km (R/I/C)")
         }
     }
-}
-
-pub fn run_cdm(args: &CdmArgs, out: &mut dyn Write) -> Result<()> {
-    let file = &args.file.display().to_string();
-    let format = Format::from(args.format);
-    let bytes = passlane_files::read_limited(&args.file, 16 * 1024 * 1024)
-        .with_context(|| format!("cannot read {file}"))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        anyhow::anyhow!(
-            "{file}: not UTF-8 text (byte {})",
-            e.utf8_error().valid_up_to()
-        )
-    })?;
-    let cdm = Cdm::parse(&text, file)?;
-    let hbr = args.hard_body_radius_m;
-    if hbr <= 0.0 {
-        bail!("--hard-body-radius-m must be positive");
-    }
-    let a = cdm
-        .recompute(hbr)
-        .map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
-    match format {
-        Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &a)?;
-            writeln!(out)?;
-        }
-        _ => {
-            writeln!(
-                out,
-                "CDM {} from {} ({})",
-                cdm.header.message_id, cdm.header.originator, cdm.header.creation_date
-            )?;
-            writeln!(
-                out,
-                "  object 1: {} ({})",
-                cdm.object1.object_name, cdm.object1.object_designator
-            )?;
-            writeln!(
-                out,
-                "  object 2: {} ({})",
-                cdm.object2.object_name, cdm.object2.object_designator
-            )?;
-            writeln!(out, "  TCA                {}", a.tca)?;
-            writeln!(
-                out,
-                "  miss distance      {:.1} m (CDM says {:.1} m)",
-                a.miss_distance_m, a.cdm_miss_distance_m
-            )?;
-            writeln!(
-                out,
-                "  R / T / N          {:.1} / {:.1} / {:.1} m",
-                a.radial_m, a.in_track_m, a.cross_track_m
-            )?;
-            writeln!(
-                out,
-                "  relative speed     {:.1} m/s, approach angle {:.1}°",
-                a.relative_speed_m_s, a.approach_angle_deg
-            )?;
-            writeln!(
-                out,
-                "  encounter plane    miss ({:.1}, {:.1}) m, sigma ({:.1}, {:.1}) m, hard-body radius {:.1} m",
-                a.miss_x_m, a.miss_y_m, a.sigma_x_m, a.sigma_y_m, a.hard_body_radius_m
-            )?;
-            writeln!(out, "  Pc (2-D integral)  {:.4e}", a.pc)?;
-            writeln!(out, "  Pc (Alfano 1-D)    {:.4e}", a.pc_alfano)?;
-            writeln!(out, "  Pc (Chan series)   {:.4e}", a.pc_chan)?;
-            writeln!(
-                out,
-                "  Pc max             {:.4e} (over covariance size)",
-                a.pc_max
-            )?;
-            if let Some(p) = a.cdm_collision_probability {
-                writeln!(out, "  CDM's own Pc       {p:.4e}")?;
-            }
-            writeln!(out, "  covariance from the {}", a.covariance_source)?;
-            writeln!(out, "{CAUTION}")?;
-        }
-    }
-    Ok(())
 }

@@ -123,6 +123,19 @@ impl Default for ScreeningDefaults {
     }
 }
 
+/// One operator ephemeris of the scenario.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct EphemerisFile {
+    /// The OEM file, relative to the scenario file.
+    pub file: String,
+    /// The spacecraft it is (an OEM names its object by OBJECT_ID, not by
+    /// catalog number). Absent: the element set whose international
+    /// designator is the OEM's OBJECT_ID, or whose name is its OBJECT_NAME.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub catalog_number: Option<u32>,
+}
+
 /// A whole scenario.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Scenario {
@@ -137,6 +150,12 @@ pub struct Scenario {
     /// Other objects to screen against (catalog files), relative to the scenario file.
     #[serde(default)]
     pub catalog_files: Vec<String>,
+    /// The operator's own ephemerides (CCSDS OEM, KVN or XML), relative to
+    /// the scenario file: each gives one spacecraft's motion in place of
+    /// SGP4 on its element set (which, if present, serves outside the
+    /// ephemeris's usable spans).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub ephemeris_files: Vec<EphemerisFile>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub window: Option<Window>,
     #[serde(default)]
@@ -163,6 +182,7 @@ impl Default for Scenario {
             operator: String::new(),
             element_files: Vec::new(),
             catalog_files: Vec::new(),
+            ephemeris_files: Vec::new(),
             window: None,
             earth_orientation: EarthOrientation::default(),
             stations: Vec::new(),
@@ -297,6 +317,24 @@ impl Scenario {
         }
         StationSet::new(self.stations.clone())
             .map_err(|e| (format!("stations[{}].{}", e.index, e.field), e.message))?;
+        for (i, e) in self.ephemeris_files.iter().enumerate() {
+            if e.file.trim().is_empty() {
+                return Err((
+                    format!("ephemeris_files[{i}].file"),
+                    "empty: give the OEM file's path".into(),
+                ));
+            }
+            if let Some(n) = e.catalog_number
+                && self.ephemeris_files[..i]
+                    .iter()
+                    .any(|o| o.catalog_number == Some(n))
+            {
+                return Err((
+                    format!("ephemeris_files[{i}].catalog_number"),
+                    format!("catalog {n} already has an ephemeris in this scenario"),
+                ));
+            }
+        }
         for (i, n) in self.satellites.iter().enumerate() {
             let field = |f: &str| format!("satellites[{i}].{f}");
             if !(n.priority.is_finite() && n.priority > 0.0) {

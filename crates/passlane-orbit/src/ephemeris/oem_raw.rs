@@ -97,7 +97,11 @@ pub(super) fn read_kvn(text: &str, sink: &mut Sink<'_>) -> Option<RawOem> {
             if !l.starts_with("CCSDS_OEM_VERS") {
                 sink.error(
                     n,
-                    l.split('=').next().unwrap_or("").trim(),
+                    if l.starts_with("COMMENT") {
+                        "COMMENT"
+                    } else {
+                        l.split('=').next().unwrap_or("").trim()
+                    },
                     "the first non-blank line of an OEM must be `CCSDS_OEM_VERS = 3.0` (CCSDS 502.0-B-3 7.3.6); nothing loaded",
                 );
                 return None;

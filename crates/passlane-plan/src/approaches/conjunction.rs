@@ -16,10 +16,13 @@ use crate::cdm::{
     COVARIANCE_COMMENT, Cdm, CdmHeader, CdmObject, CdmRelative, ccsds_identifier, ccsds_text,
     hard_body_radius_comment,
 };
-use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
+use crate::encounter::{
+    EncounterError, Mat3, StateKm, encounter_plane, relative_geometry, rtn_basis,
+};
 use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
 use crate::scenario::Scenario;
 use crate::screen::{CloseApproach, ScreeningVolume};
+use passlane_orbit::frames::{cross, unit};
 
 /// The operator's assumption about element-set accuracy.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -119,6 +122,84 @@ pub fn assess(
     )
 }
 
+/// One object's RTN position covariance at TCA (m²) and its origin: the
+/// covariance of the object's own ephemeris (OEM COVARIANCE block) nearest
+/// in time to TCA, when it has one (rotated to the object's RTN frame at
+/// TCA, not propagated), else the assumed one.
+pub fn object_covariance_rtn_m2(
+    set: &ElementSet,
+    state: &StateTeme,
+    covariance: &AssumedCovariance,
+    eop: &EarthOrientation,
+) -> (Mat3, CovarianceOrigin) {
+    if let Some(src) = &set.ephemeris
+        && let Some(c) = src.ephemeris.covariance_near(state.time)
+    {
+        if let Some(m) = oem_covariance_rtn_m2(c, state, eop) {
+            return (
+                m,
+                CovarianceOrigin::Ephemeris(format!(
+                    "OEM covariance of {} at {} (COV_REF_FRAME {}; the one nearest TCA, not propagated)",
+                    src.ephemeris.source.file, c.epoch, c.frame
+                )),
+            );
+        }
+    }
+    (
+        covariance.rtn_m2(set, state.time),
+        CovarianceOrigin::Assumed,
+    )
+}
+
+/// Where a covariance came from.
+#[derive(Debug, Clone, PartialEq)]
+pub enum CovarianceOrigin {
+    /// The operator's assumption ([`AssumedCovariance`]).
+    Assumed,
+    /// An ephemeris's own covariance, described.
+    Ephemeris(String),
+}
+
+/// The position block of an OEM covariance in the RTN frame of `state`, m².
+/// `None` for a COV_REF_FRAME this tool does not know.
+fn oem_covariance_rtn_m2(
+    c: &passlane_orbit::ephemeris::OemCovariance,
+    state: &StateTeme,
+    eop: &EarthOrientation,
+) -> Option<Mat3> {
+    use passlane_orbit::inertial::{Eme2000ToTeme, frame_bias, mul, transpose};
+    let l = &c.lower_triangle;
+    // Position block of the lower triangle (x, y, z rows), km².
+    let p: Mat3 = [[l[0], l[1], l[3]], [l[1], l[2], l[4]], [l[3], l[4], l[5]]];
+    let s = km_state(state);
+    let rtn = rtn_basis(&s)?;
+    let rotate = |m: &Mat3, cov: &Mat3| mul(&mul(m, cov), &transpose(m));
+    let frame = c.frame.trim().to_ascii_uppercase();
+    // `to_teme`: the rotation taking the covariance's frame to TEME.
+    let to_teme: Mat3 = match frame.as_str() {
+        "RTN" | "RSW" | "RIC" => transpose(&rtn),
+        "TNW" => {
+            let w = unit(&cross(&s.position_km, &s.velocity_km_s));
+            let t = unit(&s.velocity_km_s);
+            let n = cross(&w, &t);
+            transpose(&[t, n, w])
+        }
+        "TEME" => [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]],
+        "EME2000" | "J2000" => Eme2000ToTeme::at(c.epoch).matrix(),
+        "GCRF" | "ICRF" => mul(&Eme2000ToTeme::at(c.epoch).matrix(), &frame_bias()),
+        f if f.starts_with("ITRF") => {
+            let r = TemeToEarthFixed::at(c.epoch, eop);
+            let cols =
+                [[1.0, 0.0, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]].map(|e| r.position_to_teme(&e));
+            std::array::from_fn(|i| std::array::from_fn(|j| cols[j][i]))
+        }
+        _ => return None,
+    };
+    let teme = rotate(&to_teme, &p);
+    let out = rotate(&rtn, &teme);
+    Some(out.map(|row| row.map(|x| x * 1e6)))
+}
+
 fn assess_with_source(
     event: &CloseApproach,
     primary: &ElementSet,
@@ -127,14 +208,41 @@ fn assess_with_source(
     hard_body_radius_m: f64,
     hard_body_radius_source: String,
 ) -> Result<EventRisk, EncounterError> {
+    assess_full(
+        event,
+        primary,
+        secondary,
+        covariance,
+        hard_body_radius_m,
+        hard_body_radius_source,
+        &EarthOrientation::default(),
+    )
+}
+
+fn assess_full(
+    event: &CloseApproach,
+    primary: &ElementSet,
+    secondary: &ElementSet,
+    covariance: &AssumedCovariance,
+    hard_body_radius_m: f64,
+    hard_body_radius_source: String,
+    eop: &EarthOrientation,
+) -> Result<EventRisk, EncounterError> {
     let s1 = km_state(&event.primary_state);
     let s2 = km_state(&event.secondary_state);
-    let plane = encounter_plane(
-        &s1,
-        &covariance.rtn_m2(primary, event.tca),
-        &s2,
-        &covariance.rtn_m2(secondary, event.tca),
-    )?;
+    let (c1, o1) = object_covariance_rtn_m2(primary, &event.primary_state, covariance, eop);
+    let (c2, o2) = object_covariance_rtn_m2(secondary, &event.secondary_state, covariance, eop);
+    let covariance_source = match (&o1, &o2) {
+        (CovarianceOrigin::Assumed, CovarianceOrigin::Assumed) => covariance.label(),
+        _ => {
+            let d = |o: &CovarianceOrigin| match o {
+                CovarianceOrigin::Assumed => covariance.label(),
+                CovarianceOrigin::Ephemeris(s) => s.clone(),
+            };
+            format!("primary: {}; secondary: {}", d(&o1), d(&o2))
+        }
+    };
+    let plane = encounter_plane(&s1, &c1, &s2, &c2)?;
     let e = plane
         .encounter_2d(hard_body_radius_m)
         .map_err(EncounterError::Covariance)?;
@@ -145,7 +253,7 @@ fn assess_with_source(
         pc_max: pc_max(&e).pc_max,
         hard_body_radius_m,
         hard_body_radius_source,
-        covariance_source: covariance.label(),
+        covariance_source,
         sigma_x_m: e.sigma_x_m(),
         sigma_y_m: e.sigma_y_m(),
         miss_x_m: e.miss_x_m(),
@@ -207,7 +315,16 @@ pub fn assess_events<'a>(
                     )
                 }
             };
-            assess_with_source(e, p, s, &covariance, hbr, source).map_err(|err| err.to_string())
+            assess_full(
+                e,
+                p,
+                s,
+                &covariance,
+                hbr,
+                source,
+                &scenario.earth_orientation,
+            )
+            .map_err(|err| err.to_string())
         })
         .collect()
 }
@@ -270,23 +387,31 @@ pub fn event_to_cdm(
     };
     let object = |which: &str, set: &ElementSet, s: &StateTeme| -> CdmObject {
         let ef = rot.state(&s.position_km, &s.velocity_km_s);
-        let sig = covariance.sigmas_m(set, event.tca);
+        let (p, origin) = object_covariance_rtn_m2(set, s, covariance, &ctx.earth_orientation);
         // Velocity variances: position σ times the mean motion, a rough but
-        // consistent order of magnitude for an assumed covariance.
+        // consistent order of magnitude (the assumed covariance has none, and
+        // only the position block enters the probability).
         let n_rad_s = set.mean_motion_rev_day * std::f64::consts::TAU / 86_400.0;
         let mut cov = [0.0; 21];
-        cov[0] = sig[0] * sig[0];
-        cov[2] = sig[1] * sig[1];
-        cov[5] = sig[2] * sig[2];
-        cov[9] = (sig[0] * n_rad_s).powi(2);
-        cov[14] = (sig[1] * n_rad_s).powi(2);
-        cov[20] = (sig[2] * n_rad_s).powi(2);
+        cov[0] = p[0][0];
+        cov[1] = p[1][0];
+        cov[2] = p[1][1];
+        cov[3] = p[2][0];
+        cov[4] = p[2][1];
+        cov[5] = p[2][2];
+        cov[9] = p[0][0].max(0.0) * n_rad_s * n_rad_s;
+        cov[14] = p[1][1].max(0.0) * n_rad_s * n_rad_s;
+        cov[20] = p[2][2].max(0.0) * n_rad_s * n_rad_s;
+        let state_note = match &set.ephemeris {
+            Some(src) => format!("State from the operator's {}", src.ephemeris.describe()),
+            None => format!("State from SGP4 on element set epoch {}", set.epoch),
+        };
+        let (cov_note, method) = match &origin {
+            CovarianceOrigin::Assumed => (covariance.label(), "DEFAULT"),
+            CovarianceOrigin::Ephemeris(d) => (d.clone(), "CALCULATED"),
+        };
         CdmObject {
-            comments: vec![format!(
-                "State from SGP4 on element set epoch {}; covariance {}",
-                set.epoch,
-                covariance.label()
-            )],
+            comments: vec![format!("{state_note}; covariance {cov_note}")],
             object: which.to_string(),
             object_designator: format!("{:05}", set.catalog_number),
             catalog_name: "SATCAT".to_string(),
@@ -294,8 +419,15 @@ pub fn event_to_cdm(
             international_designator: set
                 .international_designator_ccsds()
                 .unwrap_or_else(|| "UNKNOWN".to_string()),
-            ephemeris_name: "NONE".to_string(),
-            covariance_method: "DEFAULT".to_string(),
+            ephemeris_name: match &set.ephemeris {
+                Some(src) => {
+                    let file = &src.ephemeris.source.file;
+                    let base = file.rsplit(['/', '\\']).next().unwrap_or(file);
+                    ccsds_identifier(base, "NONE")
+                }
+                None => "NONE".to_string(),
+            },
+            covariance_method: method.to_string(),
             maneuverable: "N/A".to_string(),
             ref_frame: "ITRF".to_string(),
             state: StateKm {
@@ -306,11 +438,23 @@ pub fn event_to_cdm(
             other: Vec::new(),
         }
     };
+    let own_ephemeris: Vec<&str> = [primary, secondary]
+        .iter()
+        .filter(|s| s.ephemeris.is_some())
+        .map(|s| s.name.as_str())
+        .collect();
     Ok(Cdm {
         header: CdmHeader {
             comments: {
                 let mut c = vec![
-                    "Screening on published mean elements (SGP4): advisory only.".to_string(),
+                    if own_ephemeris.is_empty() {
+                        "Screening on published mean elements (SGP4): advisory only.".to_string()
+                    } else {
+                        format!(
+                            "Screening with the operator's own ephemeris for {} and published mean elements (SGP4) otherwise: advisory only.",
+                            own_ephemeris.join(", ")
+                        )
+                    },
                     "Defer to official conjunction messages and coordinate with the other operator."
                         .to_string(),
                 ];
@@ -320,10 +464,15 @@ pub fn event_to_cdm(
                         &r.hard_body_radius_source,
                     ));
                 }
-                c.push(format!(
-                    "{COVARIANCE_COMMENT}: {} (both objects, COVARIANCE_METHOD = DEFAULT)",
-                    covariance.label()
-                ));
+                c.push(match risk {
+                    Some(r) if r.covariance_source != covariance.label() => {
+                        format!("{COVARIANCE_COMMENT}: {}", r.covariance_source)
+                    }
+                    _ => format!(
+                        "{COVARIANCE_COMMENT}: {} (both objects, COVARIANCE_METHOD = DEFAULT)",
+                        covariance.label()
+                    ),
+                });
                 c
             },
             ccsds_cdm_vers: "1.0".to_string(),
