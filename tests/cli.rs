@@ -5,7 +5,7 @@
 #![allow(clippy::unwrap_used, clippy::expect_used)]
 
 use std::io::BufRead;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
 use serde_json::Value;
@@ -611,6 +611,7 @@ fn passes_help_lists_every_option_with_a_description_unit_and_default() {
         "format",
         "quiet",
         "ut1-utc-s",
+        "ephemeris",
         "help",
     ];
     expected.sort();
@@ -700,7 +701,8 @@ fn usage_errors_exit_2_with_a_hint_and_runtime_errors_without_usage() {
         err.contains("unexpected argument 'scenarios/demo-fleet.tle'"),
         "{err}"
     );
-    let out = passlane(&["cdm", "a.cdm", "b.cdm"]);
+    // `cdm` takes one file or several (a trend), but at least one.
+    let out = passlane(&["cdm"]);
     assert_eq!(out.status.code(), Some(2));
     // A runtime error names the command and the cause, and prints no usage.
     let out = passlane(&["passes", "--scenario", "no/such/scenario.json"]);
@@ -954,4 +956,176 @@ fn avoid_json_contract_and_refusals() {
         "--trade",
     ]);
     assert!(String::from_utf8_lossy(&out.stderr).contains("--primary 12345"));
+}
+
+#[test]
+fn cdms_in_kvn_and_xml_give_the_screenings_pc_with_the_recorded_radius_and_a_trend() {
+    // `passlane screen --cdm-dir` twice (KVN, then XML): every message reads
+    // back with `passlane cdm`, which takes the hard-body radius the tool
+    // recorded in the message, says so, and gives the screening's Pc to
+    // 1e-9 relative; both messages of one event line up as a trend.
+    let args = |dir: &Path, format: &str| {
+        vec![
+            "screen".to_string(),
+            "--scenario".into(),
+            "scenarios/demo.json".into(),
+            "--format".into(),
+            "json".into(),
+            "--quiet".into(),
+            "--cdm-format".into(),
+            format.into(),
+            "--cdm-dir".into(),
+            dir.to_str().unwrap().into(),
+        ]
+    };
+    let (kvn, xml) = (tmp("cdm-kvn"), tmp("cdm-xml"));
+    let run = |a: Vec<String>| ok_json(&a.iter().map(String::as_str).collect::<Vec<_>>());
+    let events = run(args(&kvn, "kvn"));
+    let _ = run(args(&xml, "xml"));
+    let events = events.as_array().unwrap();
+    assert!(!events.is_empty());
+    for (k, e) in events.iter().enumerate() {
+        // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP_INDEX.
+        let stem = std::fs::read_dir(&kvn)
+            .unwrap()
+            .flatten()
+            .map(|f| f.path())
+            .find(|p| {
+                let n = p.file_stem().unwrap().to_string_lossy().to_string();
+                n.starts_with(&format!(
+                    "{}_{}_",
+                    e["primary_catalog_number"], e["secondary_catalog_number"]
+                )) && n.ends_with(&format!("_{}", k + 1))
+            })
+            .unwrap();
+        let name = stem.file_stem().unwrap().to_string_lossy().to_string();
+        let k = kvn.join(format!("{name}.cdm"));
+        let x = xml.join(format!("{name}.xml"));
+        assert!(std::fs::read_to_string(&x).unwrap().starts_with("<?xml"));
+        for file in [&k, &x] {
+            let a = ok_json(&["cdm", file.to_str().unwrap(), "--format", "json"]);
+            let (got, want) = (a["pc"].as_f64().unwrap(), e["pc"].as_f64().unwrap());
+            assert!(((got - want) / want).abs() < 1e-9, "{got} vs {want}");
+            assert_eq!(a["hard_body_radius_m"], e["hard_body_radius_m"]);
+            assert!(
+                a["hard_body_radius_source"]
+                    .as_str()
+                    .unwrap()
+                    .starts_with("recorded in the message")
+            );
+        }
+        // The table says which radius and from where; an override says so.
+        let out = passlane(&["cdm", k.to_str().unwrap(), "--hard-body-radius-m", "3"]);
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(
+            text.contains("hard-body radius   3.0 m, given by the user"),
+            "{text}"
+        );
+        // The two messages of this event: one trend with two rows.
+        let trend = ok_json(&[
+            "cdm",
+            k.to_str().unwrap(),
+            x.to_str().unwrap(),
+            "--format",
+            "json",
+        ]);
+        let groups = trend.as_array().unwrap();
+        assert_eq!(groups.len(), 1, "{trend}");
+        let rows = groups[0]["rows"].as_array().unwrap();
+        assert_eq!(rows.len(), 2);
+        assert!(rows[0]["creation_date"].as_str() <= rows[1]["creation_date"].as_str());
+        for r in rows {
+            has_fields(
+                r,
+                &[
+                    "creation_date",
+                    "tca",
+                    "miss_distance_m",
+                    "radial_m",
+                    "in_track_m",
+                    "cross_track_m",
+                    "pc",
+                    "object1_sigma_rtn_m",
+                    "object2_sigma_rtn_m",
+                ],
+            );
+        }
+    }
+}
+
+#[test]
+fn an_oem_from_the_plan_is_a_spacecrafts_motion_for_passes() {
+    // The plan's OEM of one spacecraft, given back with --ephemeris, gives
+    // the passes its element set gives (same count, AOS within 10 ms).
+    let dir = tmp("plan-oem");
+    let _ = passlane(&[
+        "plan",
+        "--scenario",
+        "scenarios/demo.json",
+        "--out",
+        dir.to_str().unwrap(),
+        "--quiet",
+        "--oem-format",
+        "xml",
+    ]);
+    let oem = std::fs::read_dir(dir.join("oem"))
+        .unwrap()
+        .flatten()
+        .map(|f| f.path())
+        .find(|p| {
+            p.file_name()
+                .unwrap()
+                .to_string_lossy()
+                .starts_with("90001_")
+        })
+        .unwrap();
+    assert_eq!(oem.extension().unwrap(), "xml");
+    let common = [
+        "passes",
+        "--station",
+        "Test,10,20,0",
+        "--start",
+        "2026-12-01T00:00:00Z",
+        "--end",
+        "2026-12-03T00:00:00Z",
+        "--format",
+        "json",
+        "--quiet",
+    ];
+    let spec = format!("90001={}", oem.display());
+    let mut with_oem = common.to_vec();
+    with_oem.extend(["--ephemeris", spec.as_str()]);
+    let mut with_tle = common.to_vec();
+    with_tle.extend(["--elements", "scenarios/demo-fleet.tle"]);
+    let a = ok_json(&with_oem);
+    let b: Vec<Value> = ok_json(&with_tle)
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["catalog_number"] == 90001)
+        .cloned()
+        .collect();
+    let a = a.as_array().unwrap();
+    assert!(!a.is_empty());
+    assert_eq!(a.len(), b.len());
+    let secs = |v: &Value| passlane_orbit::UtcTime::parse_iso(v.as_str().unwrap()).unwrap();
+    for (p, q) in a.iter().zip(&b) {
+        assert!(secs(&p["aos"]).s_since(secs(&q["aos"])).abs() < 0.010);
+        assert!(secs(&p["los"]).s_since(secs(&q["los"])).abs() < 0.010);
+    }
+    // A file that is not an OEM is named on stderr, with its line.
+    let bad = dir.join("bad.oem");
+    std::fs::write(&bad, "CCSDS_OEM_VERS = 3.0\nCREATION_DATE = soon\n").unwrap();
+    let mut args = common.to_vec();
+    let bad_spec = format!("90001={}", bad.display());
+    args.extend([
+        "--elements",
+        "scenarios/demo-fleet.tle",
+        "--ephemeris",
+        bad_spec.as_str(),
+    ]);
+    let out = passlane(&args);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("bad.oem:2: error: CREATION_DATE"), "{err}");
+    assert!(out.status.success(), "the element sets still load");
 }
