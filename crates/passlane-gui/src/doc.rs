@@ -37,6 +37,9 @@ pub struct LoadedFile {
     pub own_fleet: bool,
     pub sets_loaded: usize,
     pub diagnostics: Vec<Diagnostic>,
+    /// For an operator ephemeris (OEM): its usable spans and the gaps
+    /// between them, in words.
+    pub ephemeris_note: Option<String>,
 }
 
 /// The open scenario with its loaded element sets.
@@ -180,6 +183,7 @@ impl Document {
                             field: String::new(),
                             message: format!("could not read the file: {e}"),
                         }],
+                        ephemeris_note: None,
                     });
                     None
                 }
@@ -188,7 +192,87 @@ impl Document {
                 self.add_element_bytes(&bytes, name, own_fleet);
             }
         }
+        let ephemerides = self.scenario.ephemeris_files.clone();
+        for e in &ephemerides {
+            let resolved = match base {
+                Some(dir) if Path::new(&e.file).is_relative() => dir.join(&e.file),
+                _ => PathBuf::from(&e.file),
+            };
+            match passlane_files::read_limited(&resolved, MAX_ELEMENT_FILE_BYTES) {
+                Ok(bytes) => {
+                    self.add_ephemeris_bytes(&bytes, &e.file, e.catalog_number);
+                }
+                Err(err) => self.files.push(LoadedFile {
+                    name: e.file.clone(),
+                    own_fleet: true,
+                    sets_loaded: 0,
+                    diagnostics: vec![Diagnostic {
+                        severity: Severity::Error,
+                        file: e.file.clone(),
+                        line: 0,
+                        field: String::new(),
+                        message: format!("could not read the file: {err}"),
+                    }],
+                    ephemeris_note: None,
+                }),
+            }
+        }
         self.revision += 1;
+    }
+
+    /// Reads an operator ephemeris (CCSDS OEM, KVN or XML) and puts it into
+    /// the fleet (replacing, with a stated fallback, the element set of the
+    /// same spacecraft), recording what loaded and every diagnostic, as for
+    /// element files. Returns whether it loaded.
+    pub fn add_ephemeris_bytes(
+        &mut self,
+        bytes: &[u8],
+        name: &str,
+        catalog_number: Option<u32>,
+    ) -> bool {
+        use passlane_orbit::ephemeris::{EphemerisInput, attach_to_fleet, load_oem};
+        let (eph, mut diagnostics) = load_oem(bytes, name, &self.scenario.earth_orientation);
+        let mut note = None;
+        let mut loaded = false;
+        if let Some(ephemeris) = eph {
+            let spans = ephemeris.spans();
+            let mut words: Vec<String> = spans
+                .iter()
+                .map(|s| format!("{} to {}", time_words(s.start), time_words(s.stop)))
+                .collect();
+            let gaps: Vec<String> = spans
+                .windows(2)
+                .map(|w| {
+                    format!(
+                        "gap {} to {}",
+                        time_words(w[0].stop),
+                        time_words(w[1].start)
+                    )
+                })
+                .collect();
+            words.extend(gaps);
+            note = Some(format!("usable {}", words.join("; ")));
+            let before = diagnostics.len();
+            diagnostics.extend(attach_to_fleet(
+                &mut self.fleet,
+                vec![EphemerisInput {
+                    ephemeris,
+                    catalog_number,
+                }],
+            ));
+            loaded = !diagnostics[before..]
+                .iter()
+                .any(|d| d.severity == Severity::Error);
+        }
+        self.files.push(LoadedFile {
+            name: name.to_string(),
+            own_fleet: true,
+            sets_loaded: usize::from(loaded),
+            diagnostics,
+            ephemeris_note: note,
+        });
+        self.revision += 1;
+        loaded
     }
 
     /// Loads element sets from bytes into the fleet or the catalog, recording
@@ -201,12 +285,14 @@ impl Document {
         } else {
             &mut self.catalog
         };
-        // A newer set for a catalog number already loaded replaces it.
+        // A newer set for a catalog number already loaded replaces it (but
+        // not a spacecraft that moves by its own ephemeris).
         for set in report.sets {
             match target
                 .iter_mut()
                 .find(|s| s.catalog_number == set.catalog_number)
             {
+                Some(old) if old.ephemeris.is_some() => {}
                 Some(old) if old.epoch <= set.epoch => *old = set,
                 Some(_) => {}
                 None => target.push(set),
@@ -217,16 +303,32 @@ impl Document {
             own_fleet,
             sets_loaded: n,
             diagnostics: report.diagnostics,
+            ephemeris_note: None,
         });
         self.revision += 1;
         n
     }
 
-    /// Reads an element file chosen by the user and adds it to the scenario's list.
+    /// Reads an element file chosen by the user and adds it to the scenario's
+    /// list; an operator ephemeris (a CCSDS OEM, told by its content) goes
+    /// into the fleet and the scenario's `ephemeris_files`.
     pub fn add_element_file(&mut self, path: &Path, own_fleet: bool) -> anyhow::Result<usize> {
         let bytes = passlane_files::read_limited(path, MAX_ELEMENT_FILE_BYTES)
             .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
         let name = path.display().to_string();
+        if is_oem(&bytes) {
+            let n = usize::from(self.add_ephemeris_bytes(&bytes, &name, None));
+            if !self.scenario.ephemeris_files.iter().any(|e| e.file == name) {
+                self.scenario
+                    .ephemeris_files
+                    .push(passlane_plan::scenario::EphemerisFile {
+                        file: name,
+                        catalog_number: None,
+                    });
+            }
+            self.touch();
+            return Ok(n);
+        }
         let n = self.add_element_bytes(&bytes, &name, own_fleet);
         let list = if own_fleet {
             &mut self.scenario.element_files
@@ -257,6 +359,17 @@ impl Document {
     }
 }
 
+/// Whether bytes hold a CCSDS OEM (KVN version line, or an `<oem` root).
+fn is_oem(bytes: &[u8]) -> bool {
+    let head = String::from_utf8_lossy(&bytes[..bytes.len().min(4096)]);
+    let t = head.trim_start_matches('\u{feff}').trim_start();
+    t.starts_with("CCSDS_OEM_VERS") || (t.starts_with('<') && t.contains("<oem"))
+}
+
+fn time_words(t: UtcTime) -> String {
+    t.to_iso_s()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -273,5 +386,50 @@ mod tests {
             "{:?}",
             doc.files
         );
+    }
+
+    #[test]
+    fn an_operator_ephemeris_joins_the_fleet_with_its_diagnostics_and_spans() {
+        let mut doc = Document::demo();
+        let oem = include_str!("../../../tests/fixtures/oem-twin-teme.oem");
+        assert!(is_oem(oem.as_bytes()));
+        assert!(doc.add_ephemeris_bytes(oem.as_bytes(), "twin.oem", None));
+        // Found by its OBJECT_ID; the element set of 90001 stays as the fallback.
+        let set = doc.fleet.iter().find(|s| s.catalog_number == 90001);
+        assert!(set.is_some_and(|s| s.ephemeris.is_some()));
+        assert_eq!(doc.fleet.len(), 6);
+        let f = doc.files.last().map(|f| {
+            (
+                f.sets_loaded,
+                f.diagnostics.clone(),
+                f.ephemeris_note.clone(),
+            )
+        });
+        let Some((1, diags, Some(note))) = f else {
+            panic!("{:?}", doc.files.last())
+        };
+        assert!(
+            note.starts_with("usable 2026-12-01T00:00:00Z to 2026-12-01T12:00:00Z"),
+            "{note}"
+        );
+        assert_eq!(diags.len(), 1);
+        assert!(
+            diags[0].to_string().starts_with("twin.oem:"),
+            "{}",
+            diags[0]
+        );
+        assert!(diags[0].message.contains("falls back"));
+        // A bad one is reported like a bad element file, and nothing changes.
+        assert!(!doc.add_ephemeris_bytes(
+            b"CCSDS_OEM_VERS = 3.0\nORIGINATOR = X\n",
+            "bad.oem",
+            None
+        ));
+        let bad = doc
+            .files
+            .last()
+            .map(|f| f.diagnostics[0].to_string())
+            .unwrap_or_default();
+        assert!(bad.starts_with("bad.oem:0: error: CREATION_DATE"), "{bad}");
     }
 }

@@ -58,7 +58,7 @@ impl FleetView {
             let l = ui.label("or path:");
             ui.add(
                 egui::TextEdit::singleline(&mut self.typed_path)
-                    .hint_text("TLE or OMM file")
+                    .hint_text("TLE, OMM or OEM file")
                     .desired_width(240.0),
             )
             .labelled_by(l.id);
@@ -80,8 +80,15 @@ impl FleetView {
                 ui.end_row();
                 for f in &state.doc.files {
                     ui.label(&f.name);
-                    ui.label(if f.own_fleet { "fleet" } else { "catalog" });
-                    ui.label(f.sets_loaded.to_string());
+                    ui.label(match (&f.ephemeris_note, f.own_fleet) {
+                        (Some(_), _) => "ephemeris",
+                        (None, true) => "fleet",
+                        (None, false) => "catalog",
+                    });
+                    match &f.ephemeris_note {
+                        Some(note) => ui.label(format!("{}, {note}", f.sets_loaded)),
+                        None => ui.label(f.sets_loaded.to_string()),
+                    };
                     let errors = f
                         .diagnostics
                         .iter()
