@@ -272,3 +272,82 @@ fn tle_fields_with_words_and_overflow() {
         rejected(&format!("line {which} col {col} {text}"), &bytes);
     }
 }
+
+// ---------------------------------------------------------------------------
+// Operator ephemerides (CCSDS OEM)
+
+const OEM: &str = "CCSDS_OEM_VERS = 3.0
+CREATION_DATE = 2026-11-30T12:00:00
+ORIGINATOR = EXAMPLE
+META_START
+OBJECT_NAME = X
+OBJECT_ID = 2026-901A
+CENTER_NAME = EARTH
+REF_FRAME = TEME
+TIME_SYSTEM = UTC
+START_TIME = 2026-12-01T00:00:00
+STOP_TIME = 2026-12-01T00:04:00
+INTERPOLATION = LAGRANGE
+INTERPOLATION_DEGREE = 1
+META_STOP
+2026-12-01T00:00:00 7000 0 0 0 7.5 0
+2026-12-01T00:01:00 6996.8 449.9 0 -0.48 7.48 0
+2026-12-01T00:02:00 6987.1 899.0 0 -0.96 7.43 0
+2026-12-01T00:03:00 6971.0 1346.6 0 -1.44 7.36 0
+2026-12-01T00:04:00 6948.5 1791.9 0 -1.92 7.27 0
+";
+
+#[test]
+fn oem_non_numbers_in_every_state_field_skip_that_line_only() {
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    for bad in ["NaN", "inf", "-Infinity", "1e309", "-1e309", "x"] {
+        for field in 1..7 {
+            let text: String = OEM
+                .lines()
+                .enumerate()
+                .map(|(i, l)| {
+                    if i == 16 {
+                        let mut f: Vec<&str> = l.split_whitespace().collect();
+                        f[field] = bad;
+                        f.join(" ")
+                    } else {
+                        l.to_string()
+                    }
+                })
+                .collect::<Vec<_>>()
+                .join("\n");
+            let (eph, d) = load_oem(text.as_bytes(), "h.oem", &eop);
+            let errors: Vec<_> = d
+                .iter()
+                .filter(|x| x.severity == passlane_orbit::Severity::Error)
+                .collect();
+            assert_eq!(errors.len(), 1, "{bad} in field {field}: {d:?}");
+            assert_eq!(errors[0].line, 17);
+            assert_eq!(eph.map(|e| e.segments[0].node_count()), Some(4));
+        }
+    }
+}
+
+#[test]
+fn oem_giant_line_nul_bytes_and_deep_xml() {
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    // A 10 MB line inside the data: that line is refused, quoted short.
+    let giant = OEM.replace(
+        "2026-12-01T00:02:00 6987.1 899.0 0 -0.96 7.43 0",
+        &"9".repeat(10_000_000),
+    );
+    let (eph, d) = load_oem(giant.as_bytes(), "g.oem", &eop);
+    assert!(eph.is_some());
+    assert!(d.iter().all(|x| x.to_string().len() < 400), "{:?}", d.len());
+    // NUL bytes and invalid UTF-8: one error, nothing loaded, no panic.
+    let (eph, d) = load_oem(&[0u8; 1000], "nul.oem", &eop);
+    assert!(eph.is_none() && !d.is_empty());
+    let (eph, d) = load_oem(b"CCSDS_OEM_VERS = 3.0\n\xff\xfe", "utf.oem", &eop);
+    assert!(eph.is_none() && d[0].message.contains("UTF-8"));
+    // Deep nesting: a parse error, no stack overflow.
+    let deep = format!("{}{}", "<a>".repeat(100_000), "</a>".repeat(100_000));
+    let (eph, d) = load_oem(deep.as_bytes(), "deep.xml", &eop);
+    assert!(eph.is_none() && !d.is_empty());
+}

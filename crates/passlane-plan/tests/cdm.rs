@@ -353,3 +353,142 @@ fn unknown_and_misplaced_keywords_are_rejected() {
     let e = parse_err(&text, "late_header.kvn");
     assert_eq!(e.keyword, "ORIGINATOR");
 }
+
+#[test]
+fn keyword_tables_are_the_standards() {
+    // CCSDS 508.0-B-1 (June 2013, through Technical Corrigendum 2), keyword
+    // order of Tables 3-1 (header, after CCSDS_CDM_VERS), 3-2 (relative
+    // metadata/data), 3-3 (object metadata) and 3-4 (object data: OD
+    // parameters, additional parameters, state vector, covariance rows 1-9);
+    // M marks the keywords Annex A (ICS) lists as mandatory. The same order is
+    // checked against the NDM/XML schema's sequence as ccsds-ndm 3.1.1
+    // carries it, in tests/ccsds_reference.rs.
+    const M: bool = true;
+    const O: bool = false;
+    let header = vec![
+        ("CCSDS_CDM_VERS", M),
+        ("CREATION_DATE", M),
+        ("ORIGINATOR", M),
+        ("MESSAGE_FOR", O),
+        ("MESSAGE_ID", M),
+    ];
+    let relative = vec![
+        ("TCA", M),
+        ("MISS_DISTANCE", M),
+        ("RELATIVE_SPEED", O),
+        ("RELATIVE_POSITION_R", O),
+        ("RELATIVE_POSITION_T", O),
+        ("RELATIVE_POSITION_N", O),
+        ("RELATIVE_VELOCITY_R", O),
+        ("RELATIVE_VELOCITY_T", O),
+        ("RELATIVE_VELOCITY_N", O),
+        ("START_SCREEN_PERIOD", O),
+        ("STOP_SCREEN_PERIOD", O),
+        ("SCREEN_VOLUME_FRAME", O),
+        ("SCREEN_VOLUME_SHAPE", O),
+        ("SCREEN_VOLUME_X", O),
+        ("SCREEN_VOLUME_Y", O),
+        ("SCREEN_VOLUME_Z", O),
+        ("SCREEN_ENTRY_TIME", O),
+        ("SCREEN_EXIT_TIME", O),
+        ("COLLISION_PROBABILITY", O),
+        ("COLLISION_PROBABILITY_METHOD", O),
+    ];
+    let mut object: Vec<(&str, bool)> = vec![
+        ("OBJECT", M),
+        ("OBJECT_DESIGNATOR", M),
+        ("CATALOG_NAME", M),
+        ("OBJECT_NAME", M),
+        ("INTERNATIONAL_DESIGNATOR", M),
+        ("OBJECT_TYPE", O),
+        ("OPERATOR_CONTACT_POSITION", O),
+        ("OPERATOR_ORGANIZATION", O),
+        ("OPERATOR_PHONE", O),
+        ("OPERATOR_EMAIL", O),
+        ("EPHEMERIS_NAME", M),
+        ("COVARIANCE_METHOD", M),
+        ("MANEUVERABLE", M),
+        ("ORBIT_CENTER", O),
+        ("REF_FRAME", M),
+        ("GRAVITY_MODEL", O),
+        ("ATMOSPHERIC_MODEL", O),
+        ("N_BODY_PERTURBATIONS", O),
+        ("SOLAR_RAD_PRESSURE", O),
+        ("EARTH_TIDES", O),
+        ("INTRACK_THRUST", O),
+        ("TIME_LASTOB_START", O),
+        ("TIME_LASTOB_END", O),
+        ("RECOMMENDED_OD_SPAN", O),
+        ("ACTUAL_OD_SPAN", O),
+        ("OBS_AVAILABLE", O),
+        ("OBS_USED", O),
+        ("TRACKS_AVAILABLE", O),
+        ("TRACKS_USED", O),
+        ("RESIDUALS_ACCEPTED", O),
+        ("WEIGHTED_RMS", O),
+        ("AREA_PC", O),
+        ("AREA_DRG", O),
+        ("AREA_SRP", O),
+        ("MASS", O),
+        ("CD_AREA_OVER_MASS", O),
+        ("CR_AREA_OVER_MASS", O),
+        ("THRUST_ACCELERATION", O),
+        ("SEDR", O),
+        ("X", M),
+        ("Y", M),
+        ("Z", M),
+        ("X_DOT", M),
+        ("Y_DOT", M),
+        ("Z_DOT", M),
+    ];
+    // The covariance, lower triangle row by row (5.2.7): rows 1-6 mandatory,
+    // rows 7-9 (drag, SRP, thrust) optional.
+    let rows = ["R", "T", "N", "RDOT", "TDOT", "NDOT", "DRG", "SRP", "THR"];
+    for i in 0..9 {
+        for j in 0..=i {
+            let key: &'static str = Box::leak(format!("C{}_{}", rows[i], rows[j]).into_boxed_str());
+            object.push((key, i < 6));
+        }
+    }
+    let [h, r, o] = passlane_plan::cdm::keyword_tables();
+    assert_eq!(h, header);
+    assert_eq!(r, relative);
+    assert_eq!(o, object);
+}
+
+#[test]
+fn the_reader_enforces_the_standards_rules() {
+    let bad = |text: String, name: &str| parse_err(&text, name);
+    // 6.3.1.9: order fixed by the tables (Y before X in a state vector).
+    let x = "X                            = 7000.0 [km]";
+    let y = "Y                            = 0.0 [km]";
+    let swapped = GOOD.replacen(
+        &format!("{}\n{}\n", x.replace(".0", ""), y.replace(".0", "")),
+        &format!("{}\n{}\n", y, x),
+        1,
+    );
+    assert_ne!(swapped, GOOD);
+    let e = bad(swapped, "order.kvn");
+    assert_eq!(e.keyword, "X", "{e}");
+    assert!(e.reason.contains("6.3.1.9"), "{e}");
+    // Table 3-2: ELLIPSOID or BOX only.
+    let e = bad(GOOD.replace("= ELLIPSOID", "= SPHERE"), "shape.kvn");
+    assert_eq!(e.keyword, "SCREEN_VOLUME_SHAPE");
+    // Table 3-3: both objects in one frame.
+    let e = bad(GOOD.replacen("= EME2000", "= GCRF", 1), "frames.kvn");
+    assert_eq!(e.keyword, "REF_FRAME");
+    // 6.3.1.2: the version line first.
+    let e = bad(format!("COMMENT before\n{GOOD}"), "first.kvn");
+    assert_eq!((e.line, e.keyword.as_str()), (1, "COMMENT"));
+    // Table 3-2: a probability is within 0..1.
+    let e = bad(GOOD.replace("= 1.577E-05", "= 1.5"), "pc.kvn");
+    assert_eq!(e.keyword, "COLLISION_PROBABILITY");
+    // 5.2.8: a zero variance with a zero row is legal (the row is discounted).
+    let zero = GOOD.replacen(
+        "CR_R                         = 4.5E+06 [m**2]",
+        "CR_R = 0.0 [m**2]",
+        1,
+    );
+    assert_ne!(zero, GOOD);
+    assert!(Cdm::parse(&zero, "zero.kvn").is_ok());
+}
