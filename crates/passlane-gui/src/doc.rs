@@ -389,6 +389,7 @@ mod tests {
     }
 
     #[test]
+    #[allow(clippy::panic)] // a test reports its failure by panicking
     fn an_operator_ephemeris_joins_the_fleet_with_its_diagnostics_and_spans() {
         let mut doc = Document::demo();
         let oem = include_str!("../../../tests/fixtures/oem-twin-teme.oem");

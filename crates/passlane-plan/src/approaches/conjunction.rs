@@ -134,8 +134,9 @@ pub fn object_covariance_rtn_m2(
 ) -> (Mat3, CovarianceOrigin) {
     if let Some(src) = &set.ephemeris
         && let Some(c) = src.ephemeris.covariance_near(state.time)
+        && let Some(m) = oem_covariance_rtn_m2(c, state, eop)
     {
-        if let Some(m) = oem_covariance_rtn_m2(c, state, eop) {
+        {
             return (
                 m,
                 CovarianceOrigin::Ephemeris(format!(

@@ -179,11 +179,7 @@ fn fits(parent: &str, key: &str) -> bool {
         return true;
     };
     match parent {
-        "metadata" => {
-            p < block_range(OBJECT_BLOCKS[0].1, OBJECT_BLOCKS[0].2)
-                .start()
-                .to_owned()
-        }
+        "metadata" => p < *block_range(OBJECT_BLOCKS[0].1, OBJECT_BLOCKS[0].2).start(),
         "data" => false,
         tag => OBJECT_BLOCKS
             .iter()
