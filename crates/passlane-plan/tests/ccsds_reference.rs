@@ -227,6 +227,7 @@ fn every_cdm_the_tool_writes_is_read_by_ccsds_ndm_and_by_its_own_reader() {
         );
         assert!(a.covariance_note.is_some());
     }
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 fn demo_oems(dir: &Path, format: OemFormat, frame: OemFrame) -> Vec<(PathBuf, ElementSet)> {
@@ -308,6 +309,7 @@ fn every_oem_the_tool_writes_is_read_by_ccsds_ndm_and_by_its_own_reader() {
             assert!((back - want).abs() < 2e-9, "{}", path.display());
         }
     }
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 #[test]
@@ -348,6 +350,7 @@ fn oem_interpolation_reproduces_sgp4_to_a_millimetre() {
     }
     assert!(worst.0 < 1e-6, "worst position error {} m", worst.0 * 1e3);
     assert!(worst.1 < 1e-8, "worst velocity error {} m/s", worst.1 * 1e3);
+    let _ = std::fs::remove_dir_all(&dir);
     eprintln!(
         "worst interpolation error: {:.3e} m, {:.3e} m/s",
         worst.0 * 1e3,
