@@ -13,7 +13,7 @@ use egui_plot::{AxisHints, GridInput, GridMark, Plot};
 
 /// Smallest gap between two labelled ticks, points: y labels are one text
 /// line high, x labels a few characters wide.
-pub const Y_LABEL_GAP_PT: f32 = 26.0;
+pub const Y_LABEL_GAP_PT: f32 = 20.0;
 pub const X_LABEL_GAP_PT: f32 = 62.0;
 /// egui_plot's grid spacing lower bound, points (what `base_step_size` is scaled by).
 const GRID_MIN_PT: f32 = 8.0;
@@ -86,12 +86,10 @@ impl AxisTicks {
     /// A grid spacer whose major step leaves at least `gap_pt` points between labels.
     fn spacer(&self, gap_pt: f32) -> impl Fn(GridInput) -> Vec<GridMark> + use<> {
         let major = Rc::clone(&self.major);
-        let log = Rc::clone(&self.log);
         move |input: GridInput| {
             let value_per_pt = input.base_step_size / f64::from(GRID_MIN_PT);
             let step = nice_step(value_per_pt * f64::from(gap_pt));
             major.set(step);
-            log.borrow_mut().clear();
             marks(input.bounds, step)
         }
     }
@@ -130,6 +128,9 @@ pub fn readable<'a>(
     x: &AxisTicks,
     y: &AxisTicks,
 ) -> Plot<'a> {
+    // A new frame's numbers (egui_plot asks the spacer twice: grid and axis).
+    x.log.borrow_mut().clear();
+    y.log.borrow_mut().clear();
     plot.custom_x_axes(vec![
         AxisHints::new_x()
             .label(x_label.to_string())

@@ -16,7 +16,7 @@
 //! and marks it on the map; from it, the avoidance what-if ([`super::avoid`]).
 
 use eframe::egui;
-use egui_plot::{Arrows, Legend, Line, Plot, PlotPoints, Points, Polygon, Text};
+use egui_plot::{Arrows, Line, Plot, PlotPoints, Points, Polygon, Text};
 use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::{Propagator, UtcTime};
 use passlane_plan::conjunction::{AssumedCovariance, EventRisk};
@@ -109,6 +109,8 @@ pub struct ApproachesView {
     avoid: Option<AvoidPanel>,
     range_axes: (AxisTicks, AxisTicks),
     plane_axes: (AxisTicks, AxisTicks),
+    /// The selection the range, cursor and map were last updated for.
+    shown_selection: Option<usize>,
 }
 
 impl Default for ApproachesView {
@@ -129,6 +131,7 @@ impl Default for ApproachesView {
             avoid: None,
             range_axes: Default::default(),
             plane_axes: Default::default(),
+            shown_selection: None,
         }
     }
 }
@@ -211,7 +214,6 @@ impl ApproachesView {
     }
 
     fn contents(&mut self, ui: &mut egui::Ui, state: &mut AppState, avail_h: f32) {
-        let before = self.selected;
         widgets::caution(
             ui,
             "Element-set screening is advisory: defer to official conjunction messages and coordinate with the other operator.",
@@ -303,7 +305,8 @@ impl ApproachesView {
                 .max_height((avail_h * 0.35).max(120.0))
                 .show(ui, |ui| self.table(ui));
         }
-        if self.selected != before {
+        if self.selected != self.shown_selection {
+            self.shown_selection = self.selected;
             self.compute_range(state);
             if let Some(r) = self.selected.and_then(|i| self.rows.get(i))
                 && let Some(e) = self
@@ -709,8 +712,7 @@ pub fn encounter_plane_ui(
             .include_x(-extent)
             .include_x(extent)
             .include_y(-extent)
-            .include_y(extent)
-            .legend(Legend::default()),
+            .include_y(extent),
         "x: combined covariance's major axis (m)",
         "y: minor axis (m)",
         &axes_ticks.0,
@@ -763,7 +765,7 @@ pub fn encounter_plane_ui(
         );
         p.text(
             Text::new(
-                "miss label",
+                "",
                 egui_plot::PlotPoint::new(pic.miss_m[0] / 2.0, pic.miss_m[1] / 2.0),
                 format!("miss {miss:.0} m"),
             )

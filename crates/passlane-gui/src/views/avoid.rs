@@ -242,12 +242,31 @@ impl AvoidPanel {
                     move |p| trade_in_steps(&inputs, &TradeRequest::default(), p),
                 ));
             }
-            for job in [self.effect_job.as_ref().map(|j| (&j.label, &j.progress, j.started)), self.trade_job.as_ref().map(|j| (&j.label, &j.progress, j.started))]
-                .into_iter()
-                .flatten()
+            let mut cancel = false;
+            for job in [
+                self.effect_job
+                    .as_ref()
+                    .map(|j| (&j.label, &j.progress, j.started)),
+                self.trade_job
+                    .as_ref()
+                    .map(|j| (&j.label, &j.progress, j.started)),
+            ]
+            .into_iter()
+            .flatten()
             {
                 if progress_ui(ui, job.0, job.1, job.2) {
                     job.1.cancel();
+                    cancel = true;
+                }
+            }
+            if cancel {
+                // The worker stops at its next check (the trade between burn
+                // times); its answer is not waited for.
+                if self.effect_job.take().is_some() {
+                    self.effect = Some(Err("Cancelled.".into()));
+                }
+                if self.trade_job.take().is_some() {
+                    self.trade = Some(Err("Cancelled.".into()));
                 }
             }
         });

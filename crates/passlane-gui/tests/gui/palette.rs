@@ -8,7 +8,8 @@ use passlane_gui::palette::SERIES;
 #[test]
 fn the_palette_is_the_checked_one_and_stays_apart_under_colour_vision_deficiency() {
     let fixture: serde_json::Value =
-        serde_json::from_str(include_str!("fixtures/palette-cvd.json")).expect("fixture is JSON");
+        serde_json::from_str(include_str!("../fixtures/palette-cvd.json"))
+            .expect("fixture is JSON");
     let checked: Vec<String> = fixture["palette"]
         .as_array()
         .expect("palette list")
