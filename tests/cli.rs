@@ -44,6 +44,13 @@ fn has_fields(v: &Value, fields: &[&str]) {
     }
 }
 
+/// Instants a root finder produced (AOS, LOS, maximum, TCA, volume entry
+/// and exit) carry microseconds, so that re-evaluating at the printed time
+/// gives the printed figures: 2026-12-01T12:00:00.000000Z.
+fn is_iso_us(s: &str) -> bool {
+    s.len() == 27 && s.ends_with('Z') && &s[10..11] == "T" && &s[19..20] == "."
+}
+
 fn is_iso_ms(s: &str) -> bool {
     // 2026-12-01T12:00:00.000Z
     s.len() == 24 && s.ends_with('Z') && &s[10..11] == "T" && &s[19..20] == "."
@@ -207,7 +214,7 @@ fn passes_json_contract_sorted_by_aos() {
             ],
         );
         let aos = r["aos"].as_str().unwrap().to_string();
-        assert!(is_iso_ms(&aos));
+        assert!(is_iso_us(&aos));
         assert!(aos >= prev, "sorted by AOS");
         prev = aos;
     }
@@ -325,7 +332,7 @@ fn screen_json_contract_and_cdm_round_trip() {
             ],
         );
         let tca = e["tca"].as_str().unwrap().to_string();
-        assert!(is_iso_ms(&tca));
+        assert!(is_iso_us(&tca));
         assert!(tca >= prev);
         prev = tca;
         assert!(e["miss_distance_km"].as_f64().unwrap() <= 5.0);
@@ -461,7 +468,7 @@ fn plan_writes_every_hand_off_file() {
                 "volume_mb",
             ],
         );
-        assert!(is_iso_ms(c["aos"].as_str().unwrap()));
+        assert!(is_iso_us(c["aos"].as_str().unwrap()));
     }
     let csv = std::fs::read_to_string(dir.join("plan.csv")).unwrap();
     assert_eq!(csv.lines().count(), contacts.len() + 1);

@@ -118,6 +118,7 @@ pub fn run(args: &ElementsArgs, out: &mut dyn Write) -> Result<()> {
                 report.diagnostics.len() - errors,
                 at.to_iso_s()
             )?;
+            writeln!(out, "{}", passlane_orbit::summary::SEMI_MAJOR_AXIS_NOTE)?;
         }
     }
     Ok(())

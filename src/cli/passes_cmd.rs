@@ -86,9 +86,9 @@ fn write_csv(out: &mut dyn Write, passes: &[Pass]) -> Result<()> {
             csv_field(&p.satellite),
             p.catalog_number,
             csv_field(&p.station),
-            p.aos,
-            p.max_elevation_time,
-            p.los,
+            p.aos.to_iso_us(),
+            p.max_elevation_time.to_iso_us(),
+            p.los.to_iso_us(),
             p.max_elevation_deg,
             p.aos_azimuth_deg,
             p.los_azimuth_deg,
@@ -270,11 +270,17 @@ pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
             for r in &rows {
                 write!(
                     out,
-                    "{},{:.4},{:.4},{:.3},{:.6}",
-                    r.time, r.azimuth_deg, r.elevation_deg, r.range_km, r.range_rate_km_s
+                    // Microsecond times and mm, 0.01 mm/s figures: a row
+                    // re-evaluated at its printed time gives its printed values.
+                    "{},{:.6},{:.6},{:.6},{:.8}",
+                    r.time.to_iso_us(),
+                    r.azimuth_deg,
+                    r.elevation_deg,
+                    r.range_km,
+                    r.range_rate_km_s
                 )?;
                 for f in &r.frequencies_hz {
-                    write!(out, ",{f:.1}")?;
+                    write!(out, ",{f:.2}")?;
                 }
                 writeln!(out)?;
             }

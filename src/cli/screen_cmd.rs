@@ -241,15 +241,15 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                     e.primary_catalog_number,
                     csv_field(&e.secondary),
                     e.secondary_catalog_number,
-                    e.tca,
+                    e.tca.to_iso_us(),
                     e.miss_distance_km,
                     e.radial_km,
                     e.in_track_km,
                     e.cross_track_km,
                     e.relative_speed_km_s,
                     e.approach_angle_deg,
-                    e.volume_entry,
-                    e.volume_exit,
+                    e.volume_entry.to_iso_us(),
+                    e.volume_exit.to_iso_us(),
                     r.pc.map(|p| format!("{p:.3e}")).unwrap_or_default(),
                     r.pc_max.map(|p| format!("{p:.3e}")).unwrap_or_default()
                 )?;

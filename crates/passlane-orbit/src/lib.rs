@@ -28,5 +28,5 @@ pub use propagate::{
     propagate_grid_with,
 };
 pub use summary::{OrbitSummary, element_age_days};
-pub use sun::{Illumination, shadow, shadow_state, sun_position_teme_km};
+pub use sun::{Illumination, shadow, shadow_margins, shadow_state, sun_position_teme_km};
 pub use time::UtcTime;

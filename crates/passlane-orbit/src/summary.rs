@@ -3,9 +3,18 @@
 //! The semi-major axis comes from the mean motion alone (a = (μ/n²)^⅓ with the
 //! WGS-72 μ that SGP4 uses); perigee and apogee altitudes are measured from the
 //! WGS-72 equatorial radius. These are the usual "mean" figures an operator
-//! quotes, not osculating values.
+//! quotes, not osculating values. The mean motion of an element set is the
+//! Kozai form; SGP4 converts it to Brouwer's mean motion internally, so its own
+//! semi-major axis differs from this one by up to a few km in LEO (a J2
+//! effect of order J2·(R/a)²·a). [`SEMI_MAJOR_AXIS_NOTE`] says so where the
+//! figure is shown.
 
 use crate::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
+
+/// How the semi-major axis (and perigee/apogee altitudes from it) is made,
+/// for outputs that show it.
+pub const SEMI_MAJOR_AXIS_NOTE: &str = "Semi-major axis, perigee and apogee from the element set's \
+(Kozai) mean motion by Kepler's third law; SGP4's internal (Brouwer) value differs by up to a few km.";
 use crate::elements::ElementSet;
 use crate::time::UtcTime;
 use std::f64::consts::TAU;

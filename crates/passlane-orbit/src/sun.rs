@@ -69,6 +69,32 @@ pub fn shadow_state(sat_km: &Vec3, sun_km: &Vec3) -> Illumination {
     }
 }
 
+/// How deep a position is in the Earth's penumbra and umbra, as two
+/// continuous margins whose signs give [`shadow_state`]: the penumbra (or
+/// umbra) holds where the first is positive, the umbra where the second is
+/// not negative. Both are differences of cosines of the apparent angles
+/// (Sun–Earth separation against the sum and difference of their radii), so
+/// a scan can look for their extrema between samples and find a brush with
+/// the shadow shorter than its step.
+pub fn shadow_margins(sat_km: &Vec3, sun_km: &Vec3) -> (f64, f64) {
+    let to_sun = sub(sun_km, sat_km);
+    let d_sun = norm(&to_sun);
+    let d_earth = norm(sat_km);
+    if d_earth <= EARTH_RADIUS_WGS72_KM {
+        return (1.0, 1.0);
+    }
+    let (sin_a, sin_b) = (SUN_RADIUS_KM / d_sun, EARTH_RADIUS_WGS72_KM / d_earth);
+    let (cos_a, cos_b) = ((1.0 - sin_a * sin_a).sqrt(), (1.0 - sin_b * sin_b).sqrt());
+    let cos_c = (-dot(sat_km, &to_sun) / (d_earth * d_sun)).clamp(-1.0, 1.0);
+    let penumbra = cos_c - (cos_a * cos_b - sin_a * sin_b);
+    let umbra = if sin_b > sin_a {
+        cos_c - (cos_b * cos_a + sin_b * sin_a)
+    } else {
+        -2.0
+    };
+    (penumbra, umbra)
+}
+
 /// Shadow state and the fraction of the solar disk visible (1 sunlit, 0 umbra).
 pub fn shadow(sat_km: &Vec3, sun_km: &Vec3) -> (Illumination, f64) {
     let to_sun = sub(sun_km, sat_km);
@@ -138,6 +164,15 @@ mod tests {
                 ];
                 let full = shadow(&p, &sun).0;
                 assert_eq!(shadow_state(&p, &sun), full, "{p:?}");
+                let (pm, um) = shadow_margins(&p, &sun);
+                let from_margins = if um >= 0.0 {
+                    Illumination::Umbra
+                } else if pm > 0.0 {
+                    Illumination::Penumbra
+                } else {
+                    Illumination::Sunlit
+                };
+                assert_eq!(from_margins, full, "{p:?}");
                 seen.insert(full.label());
             }
         }

@@ -171,22 +171,46 @@ impl UtcTime {
 
     /// ISO 8601 UTC with milliseconds and `Z`, rounded to the nearest millisecond.
     pub fn to_iso_ms(self) -> String {
-        // Whole milliseconds since 2000-01-01T00:00:00, split into a day
+        self.iso_with_fraction(3)
+    }
+
+    /// ISO 8601 UTC with microseconds and `Z`, rounded to the nearest
+    /// microsecond: for instants a root finder produced (AOS, LOS, maximum,
+    /// TCA, volume entry and exit), so that a figure re-evaluated at the
+    /// printed time is the figure printed.
+    pub fn to_iso_us(self) -> String {
+        self.iso_with_fraction(6)
+    }
+
+    /// The nearest whole millisecond (times on a printed grid).
+    pub fn round_to_ms(self) -> Self {
+        UtcTime {
+            s_since_j2000: (self.s_since_j2000 * 1e3).round() / 1e3,
+        }
+    }
+
+    /// ISO 8601 with `digits` (3 or 6) of seconds' fraction.
+    fn iso_with_fraction(self, digits: u32) -> String {
+        // Whole units (ms or µs) since 2000-01-01T00:00:00, split into a day
         // number and a time of day, then the civil date by Hinnant's
         // days-to-civil algorithm: exact, and far cheaper than a general
         // formatter (outputs print thousands of these).
-        let ms = (self.s_since_j2000 * 1e3).round();
-        if !ms.is_finite() || ms.abs() > 1e16 {
+        let per_s = 10i64.pow(digits);
+        let units = (self.s_since_j2000 * per_s as f64).round();
+        // Far inside i64 for any date that means something (±3,000 years in µs).
+        if !units.is_finite() || units.abs() > 1e17 {
             return "invalid-time".to_string();
         }
-        let ms_since_midnight_2000 = ms as i64 + 43_200_000;
-        let day = ms_since_midnight_2000.div_euclid(86_400_000);
-        let ms_of_day = ms_since_midnight_2000.rem_euclid(86_400_000);
+        let per_day = 86_400 * per_s;
+        let since_midnight_2000 = units as i64 + 43_200 * per_s;
+        let day = since_midnight_2000.div_euclid(per_day);
+        let of_day = since_midnight_2000.rem_euclid(per_day);
         let (y, m, d) = civil_from_days(day + 10_957);
-        let (h, rest) = (ms_of_day / 3_600_000, ms_of_day % 3_600_000);
-        let (min, rest) = (rest / 60_000, rest % 60_000);
-        let (sec, milli) = (rest / 1000, rest % 1000);
-        format!("{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{milli:03}Z")
+        let (h, rest) = (of_day / (3_600 * per_s), of_day % (3_600 * per_s));
+        let (min, rest) = (rest / (60 * per_s), rest % (60 * per_s));
+        let (sec, frac) = (rest / per_s, rest % per_s);
+        let width = digits as usize;
+        format!("{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0width$}Z")
     }
 
     /// ISO 8601 UTC rounded to the second, without fraction (for tables).
@@ -236,6 +260,12 @@ impl std::str::FromStr for UtcTime {
     fn from_str(s: &str) -> Result<Self, Self::Err> {
         Self::parse_iso(s)
     }
+}
+
+/// Serialises an instant with microseconds, for fields a root finder
+/// produced: `#[serde(serialize_with = "passlane_orbit::time::iso_us")]`.
+pub fn iso_us<S: serde::Serializer>(t: &UtcTime, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(&t.to_iso_us())
 }
 
 impl serde::Serialize for UtcTime {
@@ -325,7 +355,13 @@ mod tests {
                 t.to_iso_ms(),
                 n.format("%Y-%m-%dT%H:%M:%S%.3fZ").to_string()
             );
-            t = t.add_s(7_777_777.777);
+            let us = (t.s_since_j2000() * 1e6).round() as i64;
+            let n = j2000_noon() + chrono::TimeDelta::microseconds(us);
+            assert_eq!(
+                t.to_iso_us(),
+                n.format("%Y-%m-%dT%H:%M:%S%.6fZ").to_string()
+            );
+            t = t.add_s(7_777_777.777_123);
         }
         for s in [
             "2000-02-29T23:59:59.999Z",
@@ -334,6 +370,9 @@ mod tests {
         ] {
             assert_eq!(UtcTime::parse_iso(s).unwrap().to_iso_ms(), s);
         }
+        let t = UtcTime::parse_iso("2026-12-01T10:20:30.123456Z").unwrap();
+        assert_eq!(t.to_iso_us(), "2026-12-01T10:20:30.123456Z");
+        assert_eq!(t.round_to_ms().to_iso_us(), "2026-12-01T10:20:30.123000Z");
     }
 
     #[test]

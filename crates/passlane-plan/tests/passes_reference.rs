@@ -367,16 +367,17 @@ fn pointing_table_agrees_with_look_angles_and_doppler() {
             let l = look_at(&prop, &st.site(), r.time, &eop).unwrap();
             assert!((l.azimuth_deg - r.azimuth_deg).abs() < 1e-9);
             assert!((l.elevation_deg - r.elevation_deg).abs() < 1e-9);
-            // Doppler: shift = −f·ṙ/c; the receiver tunes to f + shift, the
-            // transmitter pre-compensates to f − shift.
-            let shift_down = -2.2e9 * r.range_rate_km_s / SPEED_OF_LIGHT_KM_S;
-            let shift_up = -4.5e8 * r.range_rate_km_s / SPEED_OF_LIGHT_KM_S;
-            assert!((r.frequencies_hz[0] - (2.2e9 + shift_down)).abs() < 1e-6);
-            assert!((r.frequencies_hz[1] - (4.5e8 - shift_up)).abs() < 1e-6);
+            // Doppler (one-way, first order in ṙ/c): the receiver hears
+            // f·(1 − ṙ/c) and tunes to it; the transmitter sends f/(1 − ṙ/c)
+            // so that the spacecraft hears f exactly.
+            let beta = r.range_rate_km_s / SPEED_OF_LIGHT_KM_S;
+            assert!((r.frequencies_hz[0] - 2.2e9 * (1.0 - beta)).abs() < 1e-6);
+            assert!((r.frequencies_hz[1] - 4.5e8 / (1.0 - beta)).abs() < 1e-6);
+            assert!(((r.frequencies_hz[1] * (1.0 - beta)) - 4.5e8).abs() < 1e-6);
         }
         // Range-rate is the derivative of range (central difference over the table).
         for w in rows.windows(3) {
-            if w[2].time.s_since(w[0].time) == 2.0 {
+            if (w[2].time.s_since(w[0].time) - 2.0).abs() < 1e-6 {
                 let d = (w[2].range_km - w[0].range_km) / 2.0;
                 assert!((d - w[1].range_rate_km_s).abs() < 1e-3);
             }

@@ -15,6 +15,9 @@ use crate::station::Station;
 /// One row of a pointing table.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PointingRow {
+    /// Whole milliseconds, except the first and last rows (a root finder's
+    /// instants): printed with microseconds either way.
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub time: UtcTime,
     pub azimuth_deg: f64,
     pub elevation_deg: f64,
@@ -54,17 +57,25 @@ pub fn pointing_table_between(
         1.0
     };
     let duration = end.s_since(start);
-    let mut times: Vec<UtcTime> = Vec::new();
-    let mut k = 0usize;
+    // The first and last rows are at `start` and `end` exactly (instants a
+    // root finder produced, printed with microseconds); the rows between are
+    // on whole milliseconds, so that the printed time is the computed one.
+    let mut times: Vec<UtcTime> = vec![start];
+    let mut k = 1usize;
     loop {
         let dt = k as f64 * step_s;
         if dt >= duration - 1e-6 {
             break;
         }
-        times.push(start.add_s(dt));
+        let t = start.add_s(dt).round_to_ms();
+        if t > start && t < end {
+            times.push(t);
+        }
         k += 1;
     }
-    times.push(end);
+    if end > start {
+        times.push(end);
+    }
     let mut cursor = prop.cursor();
     times
         .into_iter()

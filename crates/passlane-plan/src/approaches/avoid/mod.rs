@@ -121,6 +121,7 @@ pub struct Conjunction<'a> {
 /// The figures of one encounter. The field names are a JSON contract.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct EncounterFigures {
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub tca: UtcTime,
     pub miss_distance_km: f64,
     pub radial_km: f64,

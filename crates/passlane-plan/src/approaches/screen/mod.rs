@@ -258,6 +258,7 @@ pub struct CloseApproach {
     pub primary_catalog_number: u32,
     pub secondary_catalog_number: u32,
     /// Time of closest approach (local minimum of the distance).
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub tca: UtcTime,
     pub miss_distance_km: f64,
     /// Components of secondary − primary in the primary's RIC frame at TCA.
@@ -268,8 +269,10 @@ pub struct CloseApproach {
     /// Angle between the two velocity vectors at TCA, degrees.
     pub approach_angle_deg: f64,
     /// When the secondary enters the volume around this TCA (clamped to the window start).
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub volume_entry: UtcTime,
     /// When it leaves the volume again (clamped to the window end).
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub volume_exit: UtcTime,
     /// TEME states at TCA, direct from SGP4.
     pub primary_state: StateTeme,

@@ -5,20 +5,21 @@
 use passlane_orbit::constants::SPEED_OF_LIGHT_KM_S;
 use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::{
-    EarthFixed, EarthOrientation, ElementSet, Illumination, TemeToEarthFixed, UtcTime,
-    shadow_state, sun_position_teme_km,
+    EarthFixed, EarthOrientation, ElementSet, Illumination, Propagator, TemeToEarthFixed, UtcTime,
+    shadow_margins, sun_position_teme_km,
 };
 
 use super::track::{PreparedStation, Track};
 use super::{
     ChannelDoppler, IlluminationSpan, MountWarning, Pass, PassDirection, PassOptions, SkyAtStation,
 };
-use crate::numeric::golden_extremum;
+use crate::numeric::{brent_root, golden_extremum};
 use crate::station::LinkDirection;
 
 #[allow(clippy::too_many_arguments)]
 pub(super) fn describe_pass(
     set: &ElementSet,
+    prop: &Propagator,
     st: &PreparedStation,
     track: &Track,
     options: &PassOptions,
@@ -28,7 +29,20 @@ pub(super) fn describe_pass(
     los_clipped: bool,
 ) -> Pass {
     let t0 = options.start;
-    let look = |t_s: f64| st.site.look(&track.at(t_s));
+    let eop = options.earth_orientation;
+    // The figures printed at an instant (AOS, maximum, LOS, Doppler) come
+    // from direct SGP4 at that instant, as `track` computes them, not from
+    // the interpolant the search ran on (metres off, a few Hz at S-band), so
+    // they do not depend on where the samples fell or on the window's length.
+    let look = |t_s: f64| {
+        let time = t0.add_s(t_s);
+        match prop.state_at(time) {
+            Ok(teme) => st.site.look(
+                &TemeToEarthFixed::at(time, &eop).state(&teme.position_km, &teme.velocity_km_s),
+            ),
+            Err(_) => st.site.look(&track.at(t_s)),
+        }
+    };
     let (tmax_s, _) = golden_extremum(
         |t| st.site.sin_elevation(&track.at(t).position_km),
         aos_s,
@@ -54,7 +68,6 @@ pub(super) fn describe_pass(
         v[2] * rho2 - r[2] * (r[0] * v[0] + r[1] * v[1]) > 0.0
     };
     let tmax = t0.add_s(tmax_s);
-    let eop = options.earth_orientation;
     let rot = TemeToEarthFixed::at(tmax, &eop);
     let sun_teme = sun_position_teme_km(tmax);
     let sun_ecef = rot.position(&sun_teme);
@@ -65,7 +78,8 @@ pub(super) fn describe_pass(
             velocity_km_s: [0.0; 3],
         })
         .elevation_deg;
-    // Range acceleration at closest approach gives the largest Doppler rate.
+    // Range acceleration at closest approach gives the largest Doppler rate
+    // (a central difference of direct SGP4 range rates over ±0.5 s).
     let dt = 0.5;
     let rr = |t: f64| look(t).range_rate_km_s;
     let lo = (tmin_range_s - dt).max(aos_s);
@@ -137,31 +151,37 @@ pub(super) fn describe_pass(
     }
 }
 
-/// Doppler shift of a link at rest frequency `f_hz` for range-rate `rr`:
-/// −f·ṙ/c (first order; the second-order term is below 1e-9·f in LEO).
+/// Doppler shift of a link at rest frequency `f_hz` seen by a receiver at
+/// range rate ṙ: the received frequency is f·(1 − ṙ/c) (one-way, first order
+/// in ṙ/c; the relativistic second-order term is below 1e-9·f in LEO), so the
+/// shift is −f·ṙ/c.
 pub fn doppler_shift_hz(f_hz: f64, range_rate_km_s: f64) -> f64 {
     -f_hz * range_rate_km_s / SPEED_OF_LIGHT_KM_S
 }
 
 /// Frequency the station should use on a channel: a receiver tunes to the
-/// shifted downlink; a transmitter pre-compensates the uplink so that the
-/// spacecraft hears the rest frequency.
+/// shifted downlink, f·(1 − ṙ/c); a transmitter pre-compensates the uplink
+/// so that the spacecraft receives the rest frequency f exactly, sending
+/// f / (1 − ṙ/c) (the first-order form f·(1 + ṙ/c) is 1 Hz off at S-band).
 pub fn tuned_frequency_hz(f_hz: f64, direction: LinkDirection, range_rate_km_s: f64) -> f64 {
-    let shift = doppler_shift_hz(f_hz, range_rate_km_s);
+    let beta = range_rate_km_s / SPEED_OF_LIGHT_KM_S;
     match direction {
-        LinkDirection::Downlink => f_hz + shift,
-        LinkDirection::Uplink => f_hz - shift,
+        LinkDirection::Downlink => f_hz * (1.0 - beta),
+        LinkDirection::Uplink => f_hz / (1.0 - beta),
     }
 }
 
-/// Sunlit/penumbra/umbra stretches over [aos, los], from the interpolated
-/// track every 20 s with each transition bisected to 10 ms; the scan resumes
-/// from each transition, so a penumbra shorter than the step is still found
-/// on the way into or out of the umbra. (A brush with the penumbra that starts
-/// and ends between two samples is not: the shadow's edge is ~10 s wide.) The Sun's
-/// direction is fixed over a pass (it moves 0.007° per 10 minutes) but is
-/// rotated into the Earth-fixed frame at each sample.
-fn illumination_spans(
+/// Sunlit/penumbra/umbra stretches over [aos, los].
+///
+/// The state follows from two continuous margins (`shadow_margins`: inside
+/// the penumbra, inside the umbra). Each is sampled on the interpolated track
+/// every 20 s; between samples, every local extremum of a margin that does
+/// not change sign at the samples is refined by Brent's minimiser, so a brush
+/// with the penumbra that starts and ends between two samples (the shadow's
+/// edge is only ~10 s wide) is still found; every sign change is then refined
+/// by Brent's root finder to 1 ms. The Sun's direction is fixed over a pass
+/// (it moves 0.007° per 10 minutes) but turns with the Earth-fixed frame.
+pub(super) fn illumination_spans(
     track: &Track,
     t0: UtcTime,
     aos_s: f64,
@@ -175,54 +195,128 @@ fn illumination_spans(
     let sun_a = TemeToEarthFixed::at(t0.add_s(aos_s), eop).position(&sun_teme);
     let sun_b = TemeToEarthFixed::at(t0.add_s(los_s), eop).position(&sun_teme);
     let span = (los_s - aos_s).max(1e-9);
-    let state_at = |t_s: f64| -> Illumination {
+    let margins = |t_s: f64| -> (f64, f64) {
         let u = ((t_s - aos_s) / span).clamp(0.0, 1.0);
         let sun = [
             sun_a[0] + u * (sun_b[0] - sun_a[0]),
             sun_a[1] + u * (sun_b[1] - sun_a[1]),
             sun_a[2] + u * (sun_b[2] - sun_a[2]),
         ];
-        shadow_state(&track.at(t_s).position_km, &sun)
+        shadow_margins(&track.at(t_s).position_km, &sun)
     };
-    let mut spans = Vec::new();
-    let mut current = state_at(aos_s);
-    let mut span_start = aos_s;
-    let step = 20.0;
-    let mut prev_t = aos_s;
-    loop {
-        let t_s = (prev_t + step).min(los_s);
-        let s = state_at(t_s);
-        if s != current {
-            let (mut lo, mut hi) = (prev_t, t_s);
-            while hi - lo > 0.01 {
-                let mid = 0.5 * (lo + hi);
-                if state_at(mid) == current {
-                    lo = mid;
-                } else {
-                    hi = mid;
-                }
-            }
-            spans.push(IlluminationSpan {
-                state: current,
-                start: t0.add_s(span_start),
-                end: t0.add_s(hi),
-            });
-            span_start = hi;
-            current = state_at(hi);
-            prev_t = hi;
+    let state_at = |t_s: f64| -> Illumination {
+        let (p, u) = margins(t_s);
+        if u >= 0.0 {
+            Illumination::Umbra
+        } else if p > 0.0 {
+            Illumination::Penumbra
+        } else {
+            Illumination::Sunlit
+        }
+    };
+    // Every instant where the penumbra margin or the umbra margin changes
+    // sign. Both margins are sampled together every 20 s. Between samples a
+    // margin (a cosine of the angle between the satellite's and the Sun's
+    // directions, less a constant) cannot rise above its samples by more than
+    // ½·f''·(step/2)² with |f''| ≤ 2ω², ω the satellite's angular rate about
+    // the Earth's centre (plus the Earth's, as the Sun turns in this frame);
+    // only extrema within that reach of zero are refined.
+    const STEP_S: f64 = 20.0;
+    let n = ((los_s - aos_s) / STEP_S).ceil().max(1.0) as usize;
+    let mut omega = 0.0f64;
+    let samples: Vec<(f64, f64, f64)> = (0..=n)
+        .map(|k| {
+            let t = (aos_s + k as f64 * STEP_S).min(los_s);
+            let s = track.at(t);
+            omega = omega.max(norm(&s.velocity_km_s) / norm(&s.position_km));
+            let (p, u) = margins(t);
+            (t, p, u)
+        })
+        .collect();
+    let omega = 1.5 * (omega + passlane_orbit::constants::EARTH_ROTATION_RAD_S);
+    let reach = 0.5 * 2.0 * omega * omega * (0.5 * STEP_S).powi(2);
+    let mut cuts: Vec<f64> = Vec::new();
+    for which in 0..2 {
+        let f = |t: f64| {
+            let m = margins(t);
+            if which == 0 { m.0 } else { m.1 }
+        };
+        let sampled: Vec<(f64, f64)> = samples
+            .iter()
+            .map(|&(t, p, u)| (t, if which == 0 { p } else { u }))
+            .collect();
+        cuts.extend(sign_changes(&f, &sampled, reach, 1e-3));
+    }
+    cuts.sort_by(f64::total_cmp);
+    cuts.dedup_by(|a, b| (*a - *b).abs() < 1e-6);
+    let mut spans: Vec<IlluminationSpan> = Vec::new();
+    let mut start = aos_s;
+    for end in cuts.into_iter().chain(std::iter::once(los_s)) {
+        if end <= start {
             continue;
         }
-        prev_t = t_s;
-        if t_s >= los_s {
-            break;
+        let state = state_at(0.5 * (start + end));
+        match spans.last_mut() {
+            Some(last) if last.state == state => last.end = t0.add_s(end),
+            _ => spans.push(IlluminationSpan {
+                state,
+                start: t0.add_s(start),
+                end: t0.add_s(end),
+            }),
+        }
+        start = end;
+    }
+    if spans.is_empty() {
+        spans.push(IlluminationSpan {
+            state: state_at(aos_s),
+            start: t0.add_s(aos_s),
+            end: t0.add_s(los_s),
+        });
+    }
+    spans
+}
+
+/// Every sign change of `f` given its samples (time, value): each local
+/// extremum of the samples that could cross zero between them (its value
+/// within `reach` of zero) is refined by Brent's minimiser over its two
+/// neighbouring intervals, so a brief excursion across zero between two
+/// samples is caught; then each sign change is refined by Brent's root
+/// finder to `tol_s`.
+fn sign_changes(
+    f: &dyn Fn(f64) -> f64,
+    samples: &[(f64, f64)],
+    reach: f64,
+    tol_s: f64,
+) -> Vec<f64> {
+    let n = samples.len();
+    let mut pts: Vec<(f64, f64)> = samples.to_vec();
+    for i in 0..n {
+        let (_, fm) = samples[i];
+        let left = if i > 0 { Some(samples[i - 1].1) } else { None };
+        let right = samples.get(i + 1).map(|x| x.1);
+        let ge = |o: Option<f64>| o.is_none_or(|v| fm >= v);
+        let le = |o: Option<f64>| o.is_none_or(|v| fm <= v);
+        let is_max = ge(left) && ge(right) && fm <= 0.0 && fm > -reach;
+        let is_min = le(left) && le(right) && fm > 0.0 && fm < reach;
+        if !(is_max || is_min) {
+            continue;
+        }
+        let lo = samples[i.saturating_sub(1)].0;
+        let hi = samples[(i + 1).min(n - 1)].0;
+        if hi <= lo {
+            continue;
+        }
+        let (t, v) = golden_extremum(f, lo, hi, is_max);
+        if (is_max && v > 0.0) || (is_min && v <= 0.0) {
+            pts.push((t, v));
         }
     }
-    spans.push(IlluminationSpan {
-        state: current,
-        start: t0.add_s(span_start),
-        end: t0.add_s(los_s),
-    });
-    spans
+    pts.sort_by(|x, y| x.0.total_cmp(&y.0));
+    pts.dedup_by(|x, y| x.0 == y.0);
+    pts.windows(2)
+        .filter(|w| (w[0].1 > 0.0) != (w[1].1 > 0.0))
+        .map(|w| brent_root(f, w[0].0, w[1].0, w[0].1, w[1].1, tol_s))
+        .collect()
 }
 
 /// Where the pass needs more azimuth or elevation rate than the mount has.
@@ -274,8 +368,18 @@ fn mount_warnings(
     let mut out = Vec::new();
     for (axis_index, axis) in ["azimuth", "elevation"].into_iter().enumerate() {
         let mut open: Option<(f64, f64)> = None; // (start, peak)
+        let rate_of = |t: f64| {
+            let r = rates(t);
+            if axis_index == 0 { r.0 } else { r.1 }
+        };
         let close = |open: &mut Option<(f64, f64)>, end: f64, out: &mut Vec<MountWarning>| {
-            if let Some((s, p)) = open.take() {
+            if let Some((s, sampled)) = open.take() {
+                // The peak between the 0.5 s samples, by Brent's maximiser
+                // over the stretch: near zenith the azimuth rate's peak is a
+                // fraction of a second wide and the samples miss most of it.
+                let (_, refined) =
+                    golden_extremum(rate_of, (s - 0.5).max(aos_s), (end + 0.5).min(los_s), true);
+                let p = sampled.max(refined);
                 out.push(MountWarning {
                     axis: axis.to_string(),
                     start: t0.add_s(s),
@@ -296,8 +400,7 @@ fn mount_warnings(
             let end = coarse.get(k + 1).copied().unwrap_or(los_s);
             let mut tf = coarse[k];
             while tf < end {
-                let r = rates(tf);
-                let rate = if axis_index == 0 { r.0 } else { r.1 };
+                let rate = rate_of(tf);
                 if rate > limit[axis_index] {
                     open = Some(match open {
                         None => (tf, rate),
@@ -312,4 +415,104 @@ fn mount_warnings(
         close(&mut open, los_s, &mut out);
     }
     out
+}
+
+#[cfg(test)]
+#[allow(clippy::unwrap_used)]
+mod tests {
+    use super::*;
+    use passlane_orbit::frames::{cross, scale, unit};
+
+    /// A designed case: a straight track behind the Earth that grazes the
+    /// penumbra for 10 s, centred between two 20 s scan samples.
+    #[test]
+    fn a_ten_second_brush_with_the_penumbra_is_found() {
+        let t0 = UtcTime::parse_iso("2026-12-01T00:00:00Z").unwrap();
+        let eop = EarthOrientation::default();
+        let (aos_s, los_s) = (0.0, 220.0);
+        // The Sun as `illumination_spans` blends it along the pass (it turns
+        // with the Earth-fixed frame by about a degree over these 220 s).
+        let sun_teme = sun_position_teme_km(t0.add_s(0.5 * (aos_s + los_s)));
+        let sa = TemeToEarthFixed::at(t0.add_s(aos_s), &eop).position(&sun_teme);
+        let sb = TemeToEarthFixed::at(t0.add_s(los_s), &eop).position(&sun_teme);
+        let sun_at = |t_s: f64| -> [f64; 3] {
+            let u = ((t_s - aos_s) / (los_s - aos_s)).clamp(0.0, 1.0);
+            std::array::from_fn(|k| sa[k] + u * (sb[k] - sa[k]))
+        };
+        let s_hat = unit(&sun_at(110.0));
+        let p_hat = unit(&cross(&s_hat, &[0.0, 0.0, 1.0]));
+        let q_hat = cross(&s_hat, &p_hat);
+        let v = 7.5;
+        // The track: 1,500 km behind the Earth, `rho` off the shadow axis,
+        // crossing it at `tm`.
+        let at = |rho: f64, tm: f64, t_s: f64| -> [f64; 3] {
+            std::array::from_fn(|k| {
+                -1_500.0 * s_hat[k] + rho * p_hat[k] + v * (t_s - tm) * q_hat[k]
+            })
+        };
+        let margin =
+            |rho: f64, tm: f64, t_s: f64| shadow_margins(&at(rho, tm, t_s), &sun_at(t_s)).0;
+        let bisect = |f: &dyn Fn(f64) -> bool, mut lo: f64, mut hi: f64| {
+            // f(lo) holds, f(hi) does not.
+            for _ in 0..100 {
+                let mid = 0.5 * (lo + hi);
+                if f(mid) {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            0.5 * (lo + hi)
+        };
+        // For a track, where its margin peaks and where it enters and leaves.
+        let brush = |rho: f64, tm: f64| -> (f64, f64, f64) {
+            let (peak, _) = golden_extremum(|t| margin(rho, tm, t), tm - 60.0, tm + 60.0, true);
+            let t_in = bisect(&|t| margin(rho, tm, t) > 0.0, peak, peak - 60.0);
+            let t_out = bisect(&|t| margin(rho, tm, t) > 0.0, peak, peak + 60.0);
+            (peak, t_in, t_out)
+        };
+        let design = |tm: f64| -> f64 {
+            bisect(
+                &|rho| {
+                    let (p, a, b) = brush(rho, tm);
+                    margin(rho, tm, p) > 0.0 && b - a > 10.0
+                },
+                5_000.0,
+                8_000.0,
+            )
+        };
+        // Place the peak at 110 s, midway between the samples at 100 and 120 s.
+        let mut tm = 110.0;
+        let mut rho = design(tm);
+        for _ in 0..3 {
+            let (peak, _, _) = brush(rho, tm);
+            tm += 110.0 - peak;
+            rho = design(tm);
+        }
+        let (peak, t_in, t_out) = brush(rho, tm);
+        assert!((peak - 110.0).abs() < 0.5 && (t_out - t_in - 10.0).abs() < 1e-3);
+        assert!(margin(rho, tm, 100.0) < 0.0 && margin(rho, tm, 120.0) < 0.0);
+        let mut track = Track::new(t0);
+        let mut t = aos_s;
+        while t <= los_s + 1e-9 {
+            track.push(
+                t0.add_s(t),
+                EarthFixed {
+                    position_km: at(rho, tm, t),
+                    velocity_km_s: scale(&q_hat, v),
+                },
+            );
+            t += 1.0;
+        }
+        let spans = illumination_spans(&track, t0, aos_s, los_s, &eop);
+        let pen: Vec<_> = spans
+            .iter()
+            .filter(|s| s.state == Illumination::Penumbra)
+            .collect();
+        assert_eq!(pen.len(), 1, "{spans:?}");
+        // The designed 10 s, entry and exit to the scan root finder's
+        // millisecond (the straight track is interpolated exactly).
+        assert!((pen[0].start.s_since(t0) - t_in).abs() < 2e-3, "{spans:?}");
+        assert!((pen[0].end.s_since(t0) - t_out).abs() < 2e-3, "{spans:?}");
+    }
 }

@@ -127,7 +127,9 @@ pub struct ChannelDoppler {
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct IlluminationSpan {
     pub state: Illumination,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub start: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub end: UtcTime,
 }
 
@@ -136,7 +138,9 @@ pub struct IlluminationSpan {
 pub struct MountWarning {
     /// Which axis: "azimuth" or "elevation".
     pub axis: String,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub start: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub end: UtcTime,
     pub required_rate_deg_s: f64,
     pub limit_deg_s: f64,
@@ -156,8 +160,11 @@ pub struct Pass {
     /// list, but looking up by index cannot pick the wrong one).
     #[serde(skip)]
     pub station_index: usize,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub aos: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub max_elevation_time: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub los: UtcTime,
     pub max_elevation_deg: f64,
     pub aos_azimuth_deg: f64,
@@ -411,7 +418,7 @@ fn scan_segment(
                 let t = crossing(ta, tb, fa, fb);
                 if let Some((aos, clipped)) = open.take() {
                     passes.push(describe_pass(
-                        set, st, track, options, aos, t, clipped, false,
+                        set, prop, st, track, options, aos, t, clipped, false,
                     ));
                 }
             }
@@ -421,6 +428,7 @@ fn scan_segment(
             let los_clipped = last >= total_s - 1e-9;
             passes.push(describe_pass(
                 set,
+                prop,
                 st,
                 track,
                 options,

@@ -24,15 +24,17 @@ pub fn write_pointing_csv(
     for r in rows {
         write!(
             w,
-            "{},{:.4},{:.4},{:.3},{:.6}",
-            r.time.to_iso_ms(),
+            // As `passlane track` prints them: a row re-evaluated at its
+            // printed time gives its printed values.
+            "{},{:.6},{:.6},{:.6},{:.8}",
+            r.time.to_iso_us(),
             r.azimuth_deg,
             r.elevation_deg,
             r.range_km,
             r.range_rate_km_s
         )?;
         for f in &r.frequencies_hz {
-            write!(w, ",{f:.1}")?;
+            write!(w, ",{f:.2}")?;
         }
         writeln!(w)?;
     }

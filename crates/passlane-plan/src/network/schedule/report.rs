@@ -29,7 +29,9 @@ pub struct PlannedContact {
     #[serde(skip)]
     pub station_index: usize,
     pub antenna: String,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub aos: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub los: UtcTime,
     pub duration_s: f64,
     pub max_elevation_deg: f64,
@@ -75,12 +77,15 @@ pub struct ResolvedConflict {
     pub loser_catalog_number: u32,
     pub station: String,
     pub antenna: String,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub aos: UtcTime,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub los: UtcTime,
     pub winner_spacecraft: String,
     pub winner_catalog_number: u32,
     pub winner_station: String,
     pub winner_antenna: String,
+    #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub winner_aos: UtcTime,
     pub kind: ConflictKind,
     /// Why the winner was kept, in words.
