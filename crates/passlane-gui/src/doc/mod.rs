@@ -223,7 +223,6 @@ impl Document {
     ) -> usize {
         let options = LoadOptions {
             lenient: self.lenient,
-            ..LoadOptions::default()
         };
         let report = passlane_orbit::elements::load(bytes, name, options);
         let n = report.sets.len();
@@ -491,6 +490,7 @@ impl Document {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

@@ -226,6 +226,7 @@ fn free_name(base: &str, dir: &Path, from: &CopyFrom, taken: &[String]) -> Strin
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

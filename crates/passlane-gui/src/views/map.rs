@@ -39,6 +39,9 @@ struct CircleCache {
     circles: Vec<Vec<Vec<LonLat>>>,
 }
 
+/// Which pass a cached track belongs to: (pass-search revision, pass index).
+type PassKey = (Option<u64>, usize);
+
 pub struct MapView {
     coastlines: Vec<coast::Polyline>,
     /// Ground-track span ahead of the cursor, minutes.
@@ -56,7 +59,7 @@ pub struct MapView {
     center: LonLat,
     zoom: f64,
     /// The selected pass's ground track: (key, strips).
-    pass_track: (Option<(Option<u64>, usize)>, Vec<Vec<LonLat>>),
+    pass_track: (Option<PassKey>, Vec<Vec<LonLat>>),
     list: PassList,
 }
 

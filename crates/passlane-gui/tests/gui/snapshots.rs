@@ -17,7 +17,7 @@ fn views_at(w: f32, h: f32) {
     let start = hs.state().state.doc.window().0;
     hs.state_mut().state.cursor = start.add_s(5.0 * 3600.0);
     hs.run_steps(2);
-    hs.snapshot_options(&format!("map_{size}"), &snapshot_options());
+    hs.snapshot_options(format!("map_{size}"), &snapshot_options());
 
     let i = hs
         .state()
@@ -30,7 +30,7 @@ fn views_at(w: f32, h: f32) {
     hs.state_mut().state.select_pass(i);
     hs.state_mut().tab = Tab::Sky;
     hs.run_steps(3);
-    hs.snapshot_options(&format!("sky_view_{size}"), &snapshot_options());
+    hs.snapshot_options(format!("sky_view_{size}"), &snapshot_options());
 
     hs.state_mut().tab = Tab::Approaches;
     hs.run_steps(2);
@@ -41,7 +41,7 @@ fn views_at(w: f32, h: f32) {
     });
     hs.state_mut().approaches_mut().select(0);
     hs.run_steps(3);
-    hs.snapshot_options(&format!("close_approaches_{size}"), &snapshot_options());
+    hs.snapshot_options(format!("close_approaches_{size}"), &snapshot_options());
 
     hs.state_mut().tab = Tab::Plan;
     hs.run_steps(2);
@@ -54,13 +54,13 @@ fn views_at(w: f32, h: f32) {
         hs.step();
     }
     hs.run_steps(2);
-    hs.snapshot_options(&format!("plan_{size}"), &snapshot_options());
+    hs.snapshot_options(format!("plan_{size}"), &snapshot_options());
 
     hs.state_mut().tab = Tab::Fleet;
     hs.run_steps(2);
     hs.get_by_label("Stations").click();
     hs.run_steps(2);
-    hs.snapshot_options(&format!("stations_{size}"), &snapshot_options());
+    hs.snapshot_options(format!("stations_{size}"), &snapshot_options());
 }
 
 #[test]
