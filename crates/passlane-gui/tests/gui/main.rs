@@ -236,6 +236,24 @@ fn plan_view_shows_the_plan_and_exports_its_hand_off_files() {
         .map(|d| d.count())
         .unwrap_or(0);
     assert_eq!(oem, direct.demand.len(), "one OEM per spacecraft");
+
+    // Exporting again into the same folder says which files it replaced.
+    h.get_by_label("Export to folder").click();
+    h.run_steps(1);
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while h.state_mut().plan_view().running() {
+        assert!(Instant::now() < deadline, "export did not finish");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    let status = h.state_mut().plan_view().export_status().to_string();
+    // plan.csv, plan.json, plan.ics, a pointing table per contact, an OEM per spacecraft.
+    let written = 3 + direct.contacts.len() + direct.demand.len();
+    assert!(
+        status.contains(&format!("Replaced {written} files of an earlier export")),
+        "{status}"
+    );
+    assert!(!status.contains("not part of this plan"), "{status}");
     let _ = std::fs::remove_dir_all(&dir);
 }
 
