@@ -397,3 +397,45 @@ fn the_avoidance_what_if_shows_a_burns_effect_with_its_caution() {
     assert!(panel.is_some_and(|p| !p.running()), "cancelled at once");
     assert!(h.query_by_label_contains("Cancelled").is_some());
 }
+
+#[test]
+fn two_files_with_the_same_problems_each_open_their_own_diagnostics() {
+    let dir = scratch("diagnostics");
+    // Two files, each with one bad record (the same count of problems).
+    let good = std::fs::read_to_string(repo().join("scenarios/demo-debris.tle")).expect("demo");
+    let mut paths = Vec::new();
+    for name in ["a.tle", "b.tle"] {
+        let p = dir.join(name);
+        std::fs::write(&p, format!("{good}BROKEN\n1 nonsense\n2 nonsense\n")).expect("write");
+        paths.push(p);
+    }
+    let mut doc = Document::new_empty();
+    for p in &paths {
+        doc.add_element_file(p, false)
+            .expect("loads the good records");
+    }
+    let mut h = harness(app_with(doc));
+    h.run_steps(2);
+    h.get_by_label("Fleet and stations").click();
+    h.run_steps(2);
+    let headers: Vec<String> = h
+        .state()
+        .state
+        .doc
+        .files
+        .iter()
+        .map(|f| format!("{} errors, 0 warnings", f.diagnostics.len()))
+        .collect();
+    assert_eq!(headers[0], headers[1], "the same summary text");
+    h.get_all_by_label(&headers[0])
+        .next()
+        .expect("first expander")
+        .click();
+    h.run_steps(2);
+    // The first file's messages show, the second's do not.
+    assert!(h.query_all_by_label_contains("a.tle:").count() > 0);
+    assert_eq!(h.query_all_by_label_contains("b.tle:").count(), 0);
+    // No lenient mode is mentioned that the window does not offer: it offers one.
+    assert!(h.query_by_label_contains("Lenient mode").is_some());
+    let _ = std::fs::remove_dir_all(&dir);
+}
