@@ -84,36 +84,58 @@ impl Default for MapView {
     }
 }
 
-/// Draws `text` next to `p`, on whichever side keeps it inside `rect`.
-fn label_inside(painter: &Painter, rect: Rect, p: Pos2, text: &str, size: f32, colour: Color32) {
+/// Labels already drawn this frame, so the next one can avoid them.
+type Placed = std::cell::RefCell<Vec<Rect>>;
+
+/// Draws `text` next to `p`, on a side that keeps it inside `rect` and off
+/// the labels already placed (above-right, above-left, below-right,
+/// below-left; the first free one, else the first that fits).
+fn label_inside(
+    painter: &Painter,
+    rect: Rect,
+    placed: &Placed,
+    p: Pos2,
+    text: &str,
+    size: f32,
+    colour: Color32,
+) {
     let galley = painter.layout_no_wrap(text.to_string(), FontId::proportional(size), colour);
-    let w = galley.size().x;
-    let h = galley.size().y;
-    let x = if p.x + 8.0 + w > rect.right() - 2.0 {
-        p.x - 8.0 - w
-    } else {
-        p.x + 8.0
+    let (w, h) = (galley.size().x, galley.size().y);
+    let clamp = |pos: Pos2| {
+        Pos2::new(
+            pos.x.clamp(
+                rect.left() + 2.0,
+                (rect.right() - w - 2.0).max(rect.left() + 2.0),
+            ),
+            pos.y.clamp(
+                rect.top() + 2.0,
+                (rect.bottom() - h - 2.0).max(rect.top() + 2.0),
+            ),
+        )
     };
-    let y = if p.y - 4.0 - h < rect.top() + 2.0 {
-        p.y + 4.0
-    } else {
-        p.y - 4.0 - h
+    let candidates = [
+        Pos2::new(p.x + 8.0, p.y - 4.0 - h),
+        Pos2::new(p.x - 8.0 - w, p.y - 4.0 - h),
+        Pos2::new(p.x + 8.0, p.y + 4.0),
+        Pos2::new(p.x - 8.0 - w, p.y + 4.0),
+    ];
+    let fits = |c: &Pos2| {
+        rect.shrink(2.0)
+            .contains_rect(Rect::from_min_size(*c, galley.size()))
     };
-    let pos = Pos2::new(
-        x.clamp(
-            rect.left() + 2.0,
-            (rect.right() - w - 2.0).max(rect.left() + 2.0),
-        ),
-        y.clamp(
-            rect.top() + 2.0,
-            (rect.bottom() - h - 2.0).max(rect.top() + 2.0),
-        ),
-    );
-    painter.rect_filled(
-        Rect::from_min_size(pos, galley.size()).expand(1.0),
-        2.0,
-        Color32::from_black_alpha(140),
-    );
+    let free = |c: &Pos2| {
+        let r = Rect::from_min_size(*c, galley.size()).expand(1.0);
+        !placed.borrow().iter().any(|q| q.intersects(r))
+    };
+    let pos = candidates
+        .iter()
+        .find(|c| fits(c) && free(c))
+        .or_else(|| candidates.iter().find(|c| fits(c)))
+        .copied()
+        .map_or_else(|| clamp(candidates[0]), clamp);
+    let r = Rect::from_min_size(pos, galley.size()).expand(1.0);
+    placed.borrow_mut().push(r);
+    painter.rect_filled(r, 2.0, Color32::from_black_alpha(140));
     painter.galley(pos, galley, colour);
 }
 
@@ -276,6 +298,7 @@ impl MapView {
             )
         };
         let painter = ui.painter_at(rect);
+        let placed = Placed::default();
         painter.rect_filled(rect, 0.0, ui.visuals().extreme_bg_color);
         painter.rect_filled(
             Rect::from_two_pos(to_screen(-180.0, 90.0), to_screen(180.0, -90.0)),
@@ -368,6 +391,7 @@ impl MapView {
                 label_inside(
                     &painter,
                     rect,
+                    &placed,
                     a,
                     &format!(
                         "selected pass: {} over {} from {}",
@@ -390,7 +414,7 @@ impl MapView {
                 0.0,
                 palette::STATION,
             );
-            label_inside(&painter, rect, p, &st.name, 12.0, text_colour);
+            label_inside(&painter, rect, &placed, p, &st.name, 12.0, text_colour);
             if pointer.is_some_and(|q| q.distance(p) < 9.0) {
                 let next = state.next_contact_at_station(k);
                 hover_text = Some(format!(
@@ -410,7 +434,7 @@ impl MapView {
             }
             let q = to_screen(pos.lon_lat[0], pos.lon_lat[1]);
             painter.add(palette::marker(q, 5.5, i, Stroke::new(1.5, Color32::BLACK)));
-            label_inside(&painter, rect, q, &set.name, 11.0, text_colour);
+            label_inside(&painter, rect, &placed, q, &set.name, 11.0, text_colour);
             if pointer.is_some_and(|h| h.distance(q) < 9.0) {
                 let next = state.next_contact_of_spacecraft(set.catalog_number);
                 hover_text = Some(format!(
@@ -449,6 +473,7 @@ impl MapView {
             label_inside(
                 &painter,
                 rect,
+                &placed,
                 q + vec2(0.0, 14.0),
                 &format!("close approach with {other} at {} (TCA)", hm_label(tca)),
                 12.0,
