@@ -10,13 +10,17 @@ use std::time::{Duration, Instant};
 use eframe::egui;
 use passlane_plan::{PassReport, find_passes};
 
-use crate::doc::Document;
+use crate::doc::{Document, SaveMode};
 use crate::jobs::{Job, Poll, progress_ui};
 use crate::state::{AppState, time_label};
+use crate::views::fleet::BrowseRequest;
 use crate::views::{
     approaches::ApproachesView, fleet::FleetView, map::MapView, plan::PlanView, sky::SkyView,
     timeline::TimelineView,
 };
+
+#[path = "app_keys.rs"]
+mod keys;
 
 /// The central view being shown.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -41,7 +45,7 @@ enum Pending {
 enum DialogPurpose {
     OpenScenario,
     SaveScenario,
-    ElementFile { own_fleet: bool },
+    ElementFile(BrowseRequest),
 }
 
 /// Options fixed at start-up.
@@ -77,6 +81,10 @@ pub struct PasslaneApp {
     frame_times_ms: Vec<f32>,
     frame_stats_since: Instant,
     quit_confirmed: bool,
+    /// A save into another folder, waiting for "rewrite paths" or "copy files".
+    save_question: Option<PathBuf>,
+    /// The keyboard help (F1) is open.
+    pub help_open: bool,
 }
 
 impl PasslaneApp {
@@ -106,6 +114,8 @@ impl PasslaneApp {
             frame_times_ms: Vec::new(),
             frame_stats_since: Instant::now(),
             quit_confirmed: false,
+            save_question: None,
+            help_open: false,
         }
     }
 
@@ -124,6 +134,21 @@ impl PasslaneApp {
         &mut self.plan
     }
 
+    /// The contact timeline (tests find where a pass's bar is).
+    pub fn timeline(&self) -> &TimelineView {
+        &self.timeline
+    }
+
+    /// The sky view (tests read its plot axes).
+    pub fn sky(&self) -> &SkyView {
+        &self.sky
+    }
+
+    /// The close-approach view, to drive (tests).
+    pub fn approaches_mut(&mut self) -> &mut ApproachesView {
+        &mut self.approaches
+    }
+
     /// Whether the shown passes belong to the current document revision.
     pub fn passes_current(&self) -> bool {
         self.state.passes_revision == Some(self.state.doc.revision)
@@ -134,8 +159,18 @@ impl PasslaneApp {
         if let Some(old) = self.pass_job.take() {
             old.progress.cancel();
         }
+        // The planners get the scenario checked with the file loader's rules
+        // (and masks sorted); while it has a problem the old passes stay.
+        let scenario = match self.state.doc.checked_scenario() {
+            Ok(s) => s,
+            Err(e) => {
+                self.state.passes_blocked = Some(e);
+                return;
+            }
+        };
+        self.state.passes_blocked = None;
         let sets = self.state.doc.fleet.clone();
-        let stations = self.state.doc.scenario.stations.clone();
+        let stations = scenario.stations;
         let options = self.state.pass_options();
         self.pass_job = Some(Job::spawn(
             "Finding passes",
@@ -175,9 +210,16 @@ impl PasslaneApp {
         let frame_start = Instant::now();
         self.poll_jobs();
         self.poll_dialog();
-        if self.options.auto_passes && !self.passes_current() && self.pass_job.is_none() {
+        let blocked_here =
+            self.state.passes_blocked.is_some() && self.state.doc.checked_scenario().is_err();
+        if self.options.auto_passes
+            && !self.passes_current()
+            && self.pass_job.is_none()
+            && !blocked_here
+        {
             self.start_pass_search(Some(ui.ctx().clone()));
         }
+        self.keyboard(ui);
         self.advance_play(ui);
         self.handle_close_request(ui);
 
@@ -212,9 +254,15 @@ impl PasslaneApp {
             self.tab = Tab::Sky;
         }
         if let Some(request) = self.fleet.take_browse_request() {
-            self.open_dialog(DialogPurpose::ElementFile { own_fleet: request });
+            self.open_dialog(DialogPurpose::ElementFile(request));
+        }
+        if let Some(tca) = self.approaches.take_cursor_request() {
+            self.state.cursor = tca;
+            self.state.clamp_cursor();
         }
         self.guard_modal(ui);
+        self.save_question_modal(ui);
+        self.help_window(ui);
         if self.pass_job.is_some() {
             ui.ctx().request_repaint_after(Duration::from_millis(100));
         }
@@ -234,16 +282,13 @@ impl PasslaneApp {
             }
             if ui
                 .button("Open…")
-                .on_hover_text("Choose a scenario file")
+                .on_hover_text("Choose a scenario file (Ctrl+O)")
                 .clicked()
             {
                 self.open_dialog(DialogPurpose::OpenScenario);
             }
-            if ui.button("Save").clicked() {
-                match self.state.doc.path.clone() {
-                    Some(p) => self.save_to(&p),
-                    None => self.open_dialog(DialogPurpose::SaveScenario),
-                }
+            if ui.button("Save").on_hover_text("Ctrl+S").clicked() {
+                self.save();
             }
             if ui.button("Save as…").clicked() {
                 self.open_dialog(DialogPurpose::SaveScenario);
@@ -275,6 +320,13 @@ impl PasslaneApp {
                 let p = PathBuf::from(self.typed_path.trim());
                 self.save_to(&p);
             }
+            if ui
+                .button("Help")
+                .on_hover_text("Keys and views (F1)")
+                .clicked()
+            {
+                self.help_open = true;
+            }
             ui.separator();
             ui.label(self.state.doc.title());
             if let Some(job) = &self.pass_job {
@@ -285,10 +337,18 @@ impl PasslaneApp {
             }
         });
         if !self.state.status.is_empty() {
-            ui.horizontal(|ui| {
+            ui.horizontal_wrapped(|ui| {
                 ui.colored_label(crate::palette::VERMILLION, &self.state.status);
                 if ui.small_button("Dismiss").clicked() {
                     self.state.status.clear();
+                }
+            });
+        }
+        if !self.state.info.is_empty() {
+            ui.horizontal_wrapped(|ui| {
+                ui.label(&self.state.info);
+                if ui.small_button("OK").clicked() {
+                    self.state.info.clear();
                 }
             });
         }
@@ -300,7 +360,7 @@ impl PasslaneApp {
         let span_h = (end.s_since(start) / 3600.0).max(1e-3);
         ui.horizontal(|ui| {
             let play_label = if self.playing { "Pause" } else { "Play" };
-            if ui.button(play_label).clicked() {
+            if ui.button(play_label).on_hover_text("Space").clicked() {
                 self.playing = !self.playing;
             }
             let speed_label = ui.label("Speed");
@@ -377,13 +437,86 @@ impl PasslaneApp {
         self.replace(doc);
     }
 
-    fn save_to(&mut self, path: &Path) {
-        match self.state.doc.save_to(path) {
-            Ok(()) => {
+    /// Save: to the scenario's own file, or ask where.
+    fn save(&mut self) {
+        match self.state.doc.path.clone() {
+            Some(p) => self.save_to(&p),
+            None => self.open_dialog(DialogPurpose::SaveScenario),
+        }
+    }
+
+    /// Saves to `path`; when that moves the scenario away from the folder
+    /// its element files are named against, asks first how to keep them.
+    pub fn save_to(&mut self, path: &Path) {
+        if self.state.doc.save_moves_files(path) {
+            self.save_question = Some(path.to_path_buf());
+        } else {
+            self.save_with(path, SaveMode::KeepPaths);
+        }
+    }
+
+    fn save_with(&mut self, path: &Path, mode: SaveMode) {
+        match self.state.doc.save_as(path, mode) {
+            Ok(report) => {
                 self.remember(path);
                 self.state.status.clear();
+                self.state.info = report.lines.join("\n");
             }
             Err(e) => self.state.status = format!("{e:#}"),
+        }
+    }
+
+    /// "Save into another folder": rewrite the element files' paths or copy them.
+    fn save_question_modal(&mut self, ui: &egui::Ui) {
+        let Some(path) = self.save_question.clone() else {
+            return;
+        };
+        let mut answer = None;
+        let names: Vec<String> = self
+            .state
+            .doc
+            .scenario
+            .element_files
+            .iter()
+            .chain(&self.state.doc.scenario.catalog_files)
+            .cloned()
+            .collect();
+        egui::Modal::new(egui::Id::unique("save-elsewhere")).show(ui.ctx(), |ui| {
+            ui.heading("Saving into another folder");
+            ui.label(format!(
+                "{} names its element files relative to its folder:",
+                path.file_name().map(|f| f.to_string_lossy().into_owned()).unwrap_or_default()
+            ));
+            for n in names.iter().take(12) {
+                ui.monospace(n);
+            }
+            ui.label("So that the saved scenario still finds them:");
+            ui.horizontal_wrapped(|ui| {
+                if ui
+                    .button("Rewrite the paths")
+                    .on_hover_text("Name the same files from the new folder (built-in demo files are written beside it)")
+                    .clicked()
+                {
+                    answer = Some(SaveMode::RewritePaths);
+                }
+                if ui
+                    .button("Copy the element files beside it")
+                    .on_hover_text("Copy every element file into the new folder (never over a different file)")
+                    .clicked()
+                {
+                    answer = Some(SaveMode::CopyBeside);
+                }
+                if ui.button("Cancel saving").clicked() {
+                    self.save_question = None;
+                }
+            });
+        });
+        if ui.input(|i| i.key_pressed(egui::Key::Escape)) {
+            self.save_question = None;
+        }
+        if let Some(mode) = answer {
+            self.save_question = None;
+            self.save_with(&path, mode);
         }
     }
 
@@ -403,7 +536,7 @@ impl PasslaneApp {
         }
         let (tx, rx) = channel();
         let saving = matches!(purpose, DialogPurpose::SaveScenario);
-        let scenario = !matches!(purpose, DialogPurpose::ElementFile { .. });
+        let scenario = !matches!(purpose, DialogPurpose::ElementFile(_));
         let spawned = std::thread::Builder::new()
             .name("passlane file dialog".into())
             .spawn(move || {
@@ -445,8 +578,13 @@ impl PasslaneApp {
         match purpose {
             DialogPurpose::OpenScenario => self.request(Pending::Open(path)),
             DialogPurpose::SaveScenario => self.save_to(&path),
-            DialogPurpose::ElementFile { own_fleet } => {
+            DialogPurpose::ElementFile(BrowseRequest::Add { own_fleet }) => {
                 if let Err(e) = self.state.doc.add_element_file(&path, own_fleet) {
+                    self.state.status = format!("{e:#}");
+                }
+            }
+            DialogPurpose::ElementFile(BrowseRequest::Locate { index }) => {
+                if let Err(e) = self.state.doc.relocate_file(index, &path) {
                     self.state.status = format!("{e:#}");
                 }
             }

@@ -63,6 +63,27 @@ pub fn sub_satellite_point(
     Some([wrap_lon_deg(g.longitude_deg), g.latitude_deg])
 }
 
+/// Where a spacecraft is at one time, for the map's hover: sub-satellite
+/// point, height above the ellipsoid and whether it sees the Sun.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Position {
+    pub lon_lat: LonLat,
+    pub height_km: f64,
+    pub illumination: passlane_orbit::Illumination,
+}
+
+/// [`Position`] of one spacecraft at `t`, or `None` when SGP4 fails there.
+pub fn position(prop: &Propagator, t: UtcTime, eop: &EarthOrientation) -> Option<Position> {
+    let s = prop.state_at(t).ok()?;
+    let ef = TemeToEarthFixed::at(t, eop).position(&s.position_km);
+    let g = earth_fixed_to_geodetic(&ef);
+    Some(Position {
+        lon_lat: [wrap_lon_deg(g.longitude_deg), g.latitude_deg],
+        height_km: g.height_km,
+        illumination: passlane_orbit::shadow_state(&s.position_km, &sun_position_teme_km(t)),
+    })
+}
+
 /// The ground track of one spacecraft from `start` over `span_s`, sampled every
 /// `step_s`, as antimeridian-split strips. Samples that fail to propagate end a strip.
 pub fn ground_track(

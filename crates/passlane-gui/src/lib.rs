@@ -14,6 +14,7 @@
 //! `passlane_plan::find_passes` and pointing from `passlane_plan::pointing_table`.
 
 pub mod app;
+pub mod axes;
 pub mod coast;
 pub mod doc;
 pub mod geo;
@@ -21,6 +22,7 @@ pub mod jobs;
 pub mod palette;
 pub mod state;
 pub mod views;
+pub mod widgets;
 
 use std::path::PathBuf;
 

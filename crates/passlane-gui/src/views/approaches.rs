@@ -12,19 +12,35 @@
 //! Element sets carry no covariance, so the Pc column uses the covariance the
 //! scenario *assumes* (its label says which); "Pc max" is the largest
 //! probability over the covariance's size and does not depend on that
-//! assumption's scale.
+//! assumption's scale. Selecting an event moves the time cursor to its TCA
+//! and marks it on the map; from it, the avoidance what-if ([`super::avoid`]).
 
-use eframe::egui::{self, Align2, FontId, Pos2, Sense, Shape, Stroke, vec2};
-use egui_plot::{Line, Plot, PlotPoints};
+use eframe::egui;
+use egui_plot::{Arrows, Line, Plot, PlotPoints, Points, Polygon, Text};
 use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::{Propagator, UtcTime};
 use passlane_plan::conjunction::{AssumedCovariance, EventRisk};
 use passlane_plan::job::{ScreeningJob, ScreeningOutcome, screen_and_assess};
 use passlane_plan::screen::{CloseApproach, ScreeningVolume};
 
+use crate::axes::{self, AxisTicks};
 use crate::jobs::{Job, Poll, progress_ui};
 use crate::palette;
 use crate::state::{AppState, time_label};
+use crate::views::avoid::{AvoidInputs, AvoidPanel};
+use crate::views::fleet::STALE_AFTER_DAYS;
+use crate::widgets;
+
+/// What "Pc max" is, where it is shown.
+pub const PC_MAX_EXPLAINED: &str = "Pc max: the largest collision probability over every size of the covariance (its shape kept). Element sets carry no covariance, so the Pc beside it rests on an assumed one; Pc max does not depend on that assumption's size, which makes it the honest upper figure here.";
+
+/// The screening volume's shape for a run.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum VolumeShape {
+    Sphere,
+    Box,
+    Ellipsoid,
+}
 
 /// One close-approach row as the table shows it.
 #[derive(Debug, Clone, PartialEq)]
@@ -86,6 +102,15 @@ pub struct ApproachesView {
     diagnostics: Vec<String>,
     /// Range over ±10 min around the selected event's TCA: (minutes from TCA, km).
     range_series: Vec<[f64; 2]>,
+    shape: VolumeShape,
+    /// Box half-sizes or ellipsoid semi-axes: radial, in-track, cross-track, km.
+    volume_ric_km: [f64; 3],
+    cursor_request: Option<UtcTime>,
+    avoid: Option<AvoidPanel>,
+    range_axes: (AxisTicks, AxisTicks),
+    plane_axes: (AxisTicks, AxisTicks),
+    /// The selection the range, cursor and map were last updated for.
+    shown_selection: Option<usize>,
 }
 
 impl Default for ApproachesView {
@@ -100,6 +125,13 @@ impl Default for ApproachesView {
             screened_revision: None,
             diagnostics: Vec::new(),
             range_series: Vec::new(),
+            shape: VolumeShape::Sphere,
+            volume_ric_km: [2.0, 25.0, 25.0],
+            cursor_request: None,
+            avoid: None,
+            range_axes: Default::default(),
+            plane_axes: Default::default(),
+            shown_selection: None,
         }
     }
 }
@@ -134,27 +166,104 @@ impl ApproachesView {
         self.job.is_some()
     }
 
+    /// A new TCA to move the time cursor to (once, after a selection).
+    pub fn take_cursor_request(&mut self) -> Option<UtcTime> {
+        self.cursor_request.take()
+    }
+
+    /// The avoidance panel of the selected event, when open (tests).
+    pub fn avoid_panel(&self) -> Option<&AvoidPanel> {
+        self.avoid.as_ref()
+    }
+
+    /// Selects row `i` (as a click on its TCA does).
+    pub fn select(&mut self, i: usize) {
+        self.selected = Some(i);
+    }
+
+    /// The tick labels of the encounter plane's axes on the last frame.
+    pub fn plane_tick_labels(&self) -> (Vec<String>, Vec<String>) {
+        (self.plane_axes.0.labels(), self.plane_axes.1.labels())
+    }
+
+    fn volume(&self, threshold_km: f64) -> ScreeningVolume {
+        let [r, i, c] = self.volume_ric_km;
+        match self.shape {
+            VolumeShape::Sphere => ScreeningVolume::Sphere {
+                radius_km: threshold_km,
+            },
+            VolumeShape::Box => ScreeningVolume::Box {
+                radial_km: r,
+                in_track_km: i,
+                cross_track_km: c,
+            },
+            VolumeShape::Ellipsoid => ScreeningVolume::Ellipsoid {
+                radial_km: r,
+                in_track_km: i,
+                cross_track_km: c,
+            },
+        }
+    }
+
     pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
-        let before = self.selected;
-        ui.colored_label(
-            palette::YELLOW,
+        let avail_h = ui.available_height();
+        egui::ScrollArea::vertical()
+            .id_salt("approaches-scroll")
+            .auto_shrink([false, false])
+            .show(ui, |ui| self.contents(ui, state, avail_h));
+    }
+
+    fn contents(&mut self, ui: &mut egui::Ui, state: &mut AppState, avail_h: f32) {
+        widgets::caution(
+            ui,
             "Element-set screening is advisory: defer to official conjunction messages and coordinate with the other operator.",
         );
         let screening = &state.doc.scenario.screening;
         ui.label(format!(
-            "Screening {} spacecraft against {} catalog objects (and each other), sphere of {:.1} km. \
+            "Screening {} spacecraft against {} catalog objects (and each other). \
              Pc uses the covariance {}; hard-body radius per object from the scenario, else {:.1} m.",
             state.doc.fleet.len(),
             state.doc.catalog.len(),
-            screening.threshold_km,
             AssumedCovariance::from_scenario(&state.doc.scenario).label(),
             screening.default_hard_body_radius_m,
         ));
+        let threshold_km = screening.threshold_km;
+        ui.horizontal_wrapped(|ui| {
+            ui.label("Volume:");
+            ui.selectable_value(
+                &mut self.shape,
+                VolumeShape::Sphere,
+                format!("sphere of {threshold_km} km (scenario)"),
+            );
+            ui.selectable_value(&mut self.shape, VolumeShape::Box, "box");
+            ui.selectable_value(&mut self.shape, VolumeShape::Ellipsoid, "ellipsoid");
+            if self.shape != VolumeShape::Sphere {
+                let what = if self.shape == VolumeShape::Box {
+                    "half-size"
+                } else {
+                    "semi-axis"
+                };
+                for (k, axis) in ["radial", "in-track", "cross-track"].iter().enumerate() {
+                    widgets::number(
+                        ui,
+                        &format!("{axis} {what} (km)"),
+                        ("vol", k),
+                        &mut self.volume_ric_km[k],
+                        50.0,
+                    );
+                }
+            }
+        });
         self.poll();
-        ui.horizontal(|ui| {
+        let checked = state.doc.checked_scenario();
+        ui.horizontal_wrapped(|ui| {
             let running = self.job.is_some();
+            let volume_ok = self.volume_ric_km.iter().all(|v| *v > 0.0);
             if ui
-                .add_enabled(!running, egui::Button::new("Run screening"))
+                .add_enabled(
+                    !running && checked.is_ok() && volume_ok,
+                    egui::Button::new("Run screening"),
+                )
                 .clicked()
             {
                 self.start(state, ui.ctx().clone());
@@ -163,6 +272,9 @@ impl ApproachesView {
                 && progress_ui(ui, &job.label, &job.progress, job.started)
             {
                 job.progress.cancel();
+            }
+            if let Err(e) = &checked {
+                ui.colored_label(palette::VERMILLION, format!("Fix the scenario first: {e}"));
             }
             if self.screened_revision.is_some()
                 && self.screened_revision != Some(state.doc.revision)
@@ -178,25 +290,39 @@ impl ApproachesView {
         }
         if self.rows.is_empty() {
             ui.label(if self.screened_revision.is_some() {
-                "No close approaches inside the threshold in this window."
+                "No close approaches inside the volume in this window."
             } else {
                 "Not screened yet: press Run screening."
             });
+        } else {
+            stale_badge(ui, self.outcome.as_ref());
+            ui.small(PC_MAX_EXPLAINED);
         }
         ui.add_space(4.0);
         if !self.rows.is_empty() {
             egui::ScrollArea::vertical()
                 .id_salt("approach-scroll")
-                .max_height(ui.available_height() * 0.42)
+                .max_height((avail_h * 0.35).max(120.0))
                 .show(ui, |ui| self.table(ui));
         }
-        if self.selected != before {
+        if self.selected != self.shown_selection {
+            self.shown_selection = self.selected;
             self.compute_range(state);
+            if let Some(r) = self.selected.and_then(|i| self.rows.get(i))
+                && let Some(e) = self
+                    .outcome
+                    .as_ref()
+                    .and_then(|o| o.result.events.get(r.event))
+            {
+                self.cursor_request = Some(r.tca);
+                state.focus_approach =
+                    Some((e.primary_catalog_number, e.secondary_catalog_number, r.tca));
+            }
         }
         let Some(row) = self.selected.and_then(|i| self.rows.get(i)).cloned() else {
             if !self.rows.is_empty() {
                 ui.label(
-                    "Select an event (its TCA) for the range around TCA and the encounter plane.",
+                    "Select an event (its TCA) for the range around TCA, the encounter plane and the avoidance what-if; the map marks where it happens.",
                 );
             }
             return;
@@ -215,44 +341,129 @@ impl ApproachesView {
             .as_ref()
             .and_then(|o| o.risks.get(row.event))
             .cloned();
-        let height = ui.available_height().max(160.0);
-        ui.horizontal_top(|ui| {
-            let plot_width = (ui.available_width() - height - 16.0).max(200.0);
-            ui.vertical(|ui| {
-                ui.set_width(plot_width);
-                ui.label("Range (km) against minutes from TCA");
-                let series = self.range_series.clone();
-                Plot::new("approach-range")
-                    .height(height - 24.0)
-                    .width(plot_width)
-                    .x_axis_label("minutes from TCA")
-                    .y_axis_label("range (km)")
-                    .show(ui, |p| {
-                        p.line(
-                            Line::new("range", PlotPoints::from(series)).color(palette::SKY_BLUE),
-                        );
-                    });
+        let height = (avail_h * 0.55).clamp(220.0, 420.0);
+        let range_series = self.range_series.clone();
+        let wide = ui.available_width() >= 900.0;
+        let draw_range = |ui: &mut egui::Ui, w: f32, axes: &(AxisTicks, AxisTicks)| {
+            axes::readable(
+                Plot::new("approach-range").height(height).width(w),
+                "minutes from TCA",
+                "range (km)",
+                &axes.0,
+                &axes.1,
+            )
+            .label_formatter(|h| {
+                let p = match h {
+                    egui_plot::HoverPosition::NearDataPoint { position, .. } => *position,
+                    egui_plot::HoverPosition::Elsewhere { position } => *position,
+                };
+                Some(format!("{:+.2} min from TCA\nrange {:.3} km", p.x, p.y))
+            })
+            .show(ui, |p| {
+                p.line(
+                    Line::new("range", PlotPoints::from(range_series.clone()))
+                        .color(palette::SKY_BLUE),
+                );
             });
-            ui.vertical(|ui| match &risk {
-                Some(Ok(r)) => {
-                    ui.label(format!(
-                        "Encounter plane: Pc {:.2e} (assumed covariance), Pc max {:.2e}",
-                        r.pc, r.pc_max
-                    ));
-                    encounter_plane_ui(ui, &EncounterPicture::of(r), height - 24.0);
-                }
-                Some(Err(why)) => {
-                    ui.label(format!("No encounter plane: {why}"));
-                }
-                None => {}
+        };
+        if wide {
+            ui.horizontal_top(|ui| {
+                let w = (ui.available_width() - height - 40.0).max(260.0);
+                ui.vertical(|ui| draw_range(ui, w, &self.range_axes));
+                ui.vertical(|ui| self.plane(ui, &risk, height));
             });
-        });
+        } else {
+            draw_range(ui, ui.available_width(), &self.range_axes);
+            self.plane(ui, &risk, height);
+        }
+        self.avoid_ui(ui, state, &row, &risk);
+    }
+
+    fn plane(&self, ui: &mut egui::Ui, risk: &Option<Result<EventRisk, String>>, size: f32) {
+        match risk {
+            Some(Ok(r)) => {
+                ui.label(format!(
+                    "Encounter plane: Pc {:.2e} (assumed covariance), Pc max {:.2e}",
+                    r.pc, r.pc_max
+                ))
+                .on_hover_text(PC_MAX_EXPLAINED);
+                encounter_plane_ui(ui, &EncounterPicture::of(r), size, &self.plane_axes);
+            }
+            Some(Err(why)) => {
+                ui.label(format!("No encounter plane: {why}"));
+            }
+            None => {}
+        }
+    }
+
+    fn avoid_ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        state: &AppState,
+        row: &ApproachRow,
+        risk: &Option<Result<EventRisk, String>>,
+    ) {
+        let Some(e) = self
+            .outcome
+            .as_ref()
+            .and_then(|o| o.result.events.get(row.event))
+        else {
+            return;
+        };
+        let (p, s) = (e.primary_catalog_number, e.secondary_catalog_number);
+        if self
+            .avoid
+            .as_ref()
+            .is_some_and(|a| !a.is_for(p, s, row.tca))
+        {
+            self.avoid = None;
+        }
+        ui.add_space(6.0);
+        if self.avoid.is_none() {
+            let find = |n: u32| {
+                state
+                    .doc
+                    .fleet
+                    .iter()
+                    .chain(&state.doc.catalog)
+                    .find(|x| x.catalog_number == n)
+                    .cloned()
+            };
+            let hbr = match risk {
+                Some(Ok(r)) => Some(r.hard_body_radius_m),
+                _ => None,
+            };
+            if let (Some(primary), Some(secondary), Some(hbr)) = (find(p), find(s), hbr) {
+                if ui
+                    .button("Avoidance what-if…")
+                    .on_hover_text("What a burn of the primary does to this close approach")
+                    .clicked()
+                {
+                    self.avoid = Some(AvoidPanel::new(AvoidInputs {
+                        primary,
+                        secondary,
+                        tca: row.tca,
+                        assumed: AssumedCovariance::from_scenario(&state.doc.scenario),
+                        hard_body_radius_m: hbr,
+                    }));
+                }
+            } else {
+                ui.label("No avoidance what-if for this event (no Pc, or an object is no longer loaded).");
+            }
+        }
+        if let Some(panel) = &mut self.avoid {
+            ui.separator();
+            panel.ui(ui);
+        }
     }
 
     fn start(&mut self, state: &AppState, ctx: egui::Context) {
         let fleet = state.doc.fleet.clone();
         let catalog = state.doc.catalog.clone();
-        let scenario = state.doc.scenario.clone();
+        let Ok(scenario) = state.doc.checked_scenario() else {
+            return;
+        };
+        let volume = self.volume(scenario.screening.threshold_km);
         let (start, end) = state.doc.window();
         self.job = Some(Job::spawn(
             "Screening",
@@ -266,9 +477,7 @@ impl ApproachesView {
                         all_vs_all: false,
                         start,
                         end,
-                        volume: ScreeningVolume::Sphere {
-                            radius_km: scenario.screening.threshold_km,
-                        },
+                        volume,
                         scenario: &scenario,
                         hard_body_radius_override_m: None,
                     },
@@ -442,92 +651,126 @@ impl ApproachesView {
     }
 }
 
-/// Draws the encounter plane to scale in the combined covariance's principal
-/// axes: the 1-sigma and 3-sigma ellipses centred on the primary, the
-/// secondary's miss point with the miss vector, and the hard-body circle
-/// around the miss point. A hard-body circle too small to see at this scale
-/// gets a ring so it can be found; the legend says so.
-pub fn encounter_plane_ui(ui: &mut egui::Ui, pic: &EncounterPicture, size: f32) {
-    let size = size.clamp(160.0, 420.0);
-    let (rect, _) = ui.allocate_exact_size(vec2(size, size), Sense::hover());
-    let painter = ui.painter_at(rect);
-    painter.rect_filled(rect, 0.0, palette::SEA);
-    let [sx, sy] = pic.sigma_m;
-    let miss = pic.miss_m[0].hypot(pic.miss_m[1]);
-    let extent_m = (miss + pic.hard_body_radius_m)
-        .max(3.0 * sx.max(sy))
-        .max(pic.hard_body_radius_m * 4.0)
-        .max(1.0)
-        * 1.1;
-    let scale = (size / 2.0 - 8.0) / extent_m as f32;
-    let c = rect.center();
-    let at = |x: f64, y: f64| Pos2::new(c.x + x as f32 * scale, c.y - y as f32 * scale);
-    // Axes through the origin.
-    let axis = Stroke::new(1.0, palette::GRATICULE);
-    painter.line_segment(
-        [Pos2::new(rect.left(), c.y), Pos2::new(rect.right(), c.y)],
-        axis,
-    );
-    painter.line_segment(
-        [Pos2::new(c.x, rect.top()), Pos2::new(c.x, rect.bottom())],
-        axis,
-    );
-    for (k, colour) in [(1.0, palette::ORANGE), (3.0, palette::SKY_BLUE)] {
-        let pts: Vec<Pos2> = (0..=96)
-            .map(|i| {
-                let t = f64::from(i) * std::f64::consts::TAU / 96.0;
-                at(k * sx * t.cos(), k * sy * t.sin())
-            })
-            .collect();
-        painter.add(Shape::line(pts, Stroke::new(1.5, colour)));
-    }
-    let tip = at(pic.miss_m[0], pic.miss_m[1]);
-    painter.arrow(c, tip - c, Stroke::new(1.5, palette::CURSOR));
-    let hbr_px = pic.hard_body_radius_m as f32 * scale;
-    painter.circle_filled(tip, hbr_px.max(1.0), palette::VERMILLION);
-    if hbr_px < 3.0 {
-        painter.circle_stroke(tip, 6.0, Stroke::new(1.0, palette::VERMILLION));
-    }
-    let text = ui.visuals().text_color();
-    let small = FontId::proportional(11.0);
-    painter.text(
-        rect.left_top() + vec2(4.0, 4.0),
-        Align2::LEFT_TOP,
-        format!("edge: {:.0} m from the primary", extent_m),
-        small.clone(),
-        text,
-    );
-    let legend = [
-        (
-            palette::ORANGE,
-            format!("1-sigma ellipse ({sx:.0} m x {sy:.0} m)"),
-        ),
-        (palette::SKY_BLUE, "3-sigma ellipse".to_string()),
-        (palette::CURSOR, format!("miss vector ({miss:.0} m)")),
-        (
+/// Element sets far from the TCA: a badge above the table.
+fn stale_badge(ui: &mut egui::Ui, outcome: Option<&ScreeningOutcome>) {
+    let Some(o) = outcome else { return };
+    let oldest = o
+        .risks
+        .iter()
+        .flatten()
+        .map(|r| {
+            r.primary_element_age_days
+                .abs()
+                .max(r.secondary_element_age_days.abs())
+        })
+        .fold(0.0, f64::max);
+    if oldest > STALE_AFTER_DAYS {
+        ui.colored_label(
             palette::VERMILLION,
             format!(
-                "hard-body circle, {:.1} m, to scale{}",
-                pic.hard_body_radius_m,
-                if hbr_px < 3.0 { " (ringed)" } else { "" }
+                "Stale elements: some events rest on element sets {oldest:.1} days from their TCA (common practice: \
+                 element sets degrade by about 1-3 km a day in LEO). Get newer element sets before acting."
             ),
-        ),
-    ];
-    for (i, (colour, label)) in legend.iter().enumerate() {
-        let y = rect.bottom() - 8.0 - 14.0 * (legend.len() - 1 - i) as f32;
-        painter.line_segment(
-            [
-                Pos2::new(rect.left() + 6.0, y),
-                Pos2::new(rect.left() + 20.0, y),
-            ],
-            Stroke::new(2.0, *colour),
-        );
-        painter.text(
-            Pos2::new(rect.left() + 24.0, y),
-            Align2::LEFT_CENTER,
-            label,
-            small.clone(),
-            text,
         );
     }
+}
+
+/// The encounter plane to scale in the combined covariance's principal axes
+/// (metres): the 1-sigma and 3-sigma ellipses centred on the primary, the
+/// secondary's miss point with the miss vector, and the hard-body circle
+/// around it. A plot, so it zooms (scroll), pans (drag) and resets
+/// (double-click), with labelled axes.
+pub fn encounter_plane_ui(
+    ui: &mut egui::Ui,
+    pic: &EncounterPicture,
+    size: f32,
+    axes_ticks: &(AxisTicks, AxisTicks),
+) {
+    let [sx, sy] = pic.sigma_m;
+    let miss = pic.miss_m[0].hypot(pic.miss_m[1]);
+    let ellipse = |k: f64| -> PlotPoints {
+        (0..=96)
+            .map(|i| {
+                let t = f64::from(i) * std::f64::consts::TAU / 96.0;
+                [k * sx * t.cos(), k * sy * t.sin()]
+            })
+            .collect()
+    };
+    let hbr = pic.hard_body_radius_m;
+    let circle: PlotPoints = (0..48)
+        .map(|i| {
+            let t = f64::from(i) * std::f64::consts::TAU / 48.0;
+            [pic.miss_m[0] + hbr * t.cos(), pic.miss_m[1] + hbr * t.sin()]
+        })
+        .collect();
+    let extent = (miss + hbr).max(3.0 * sx.max(sy)).max(hbr * 4.0).max(1.0) * 1.15;
+    axes::readable(
+        Plot::new("encounter-plane")
+            .width(size)
+            .height(size)
+            .data_aspect(1.0)
+            .include_x(-extent)
+            .include_x(extent)
+            .include_y(-extent)
+            .include_y(extent),
+        "x: combined covariance's major axis (m)",
+        "y: minor axis (m)",
+        &axes_ticks.0,
+        &axes_ticks.1,
+    )
+    .label_formatter(|h| {
+        let p = match h {
+            egui_plot::HoverPosition::NearDataPoint { position, .. } => *position,
+            egui_plot::HoverPosition::Elsewhere { position } => *position,
+        };
+        Some(format!(
+            "x {:.0} m, y {:.0} m\n{:.0} m from the primary",
+            p.x,
+            p.y,
+            p.x.hypot(p.y)
+        ))
+    })
+    .show(ui, |p| {
+        p.line(
+            Line::new(
+                format!("1-sigma ellipse ({sx:.0} m x {sy:.0} m)"),
+                ellipse(1.0),
+            )
+            .color(palette::ORANGE),
+        );
+        p.line(Line::new("3-sigma ellipse", ellipse(3.0)).color(palette::SKY_BLUE));
+        p.polygon(
+            Polygon::new(format!("hard-body circle, {hbr:.1} m, to scale"), circle)
+                .fill_color(palette::VERMILLION.gamma_multiply(0.6))
+                .stroke(egui::Stroke::new(1.5, palette::VERMILLION)),
+        );
+        p.arrows(
+            Arrows::new(
+                format!("miss vector ({miss:.0} m)"),
+                vec![[0.0, 0.0]],
+                vec![pic.miss_m],
+            )
+            .color(palette::CURSOR),
+        );
+        p.points(
+            Points::new("primary", vec![[0.0, 0.0]])
+                .radius(3.0)
+                .color(palette::CURSOR),
+        );
+        p.points(
+            Points::new("secondary at TCA", vec![pic.miss_m])
+                .radius(4.0)
+                .shape(egui_plot::MarkerShape::Diamond)
+                .color(palette::VERMILLION),
+        );
+        p.text(
+            Text::new(
+                "",
+                egui_plot::PlotPoint::new(pic.miss_m[0] / 2.0, pic.miss_m[1] / 2.0),
+                format!("miss {miss:.0} m"),
+            )
+            .color(palette::CURSOR)
+            .anchor(egui::Align2::LEFT_BOTTOM),
+        );
+    });
 }

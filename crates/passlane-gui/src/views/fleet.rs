@@ -1,51 +1,91 @@
-//! Fleet and stations: load element files (file dialog or typed path), see
-//! what loaded and every diagnostic, read each spacecraft's orbit summary, and
-//! edit the ground stations. Every edit marks the document changed, which
-//! re-runs the pass search on a worker thread.
+//! The network editor ("Fleet and stations"): element files and their
+//! diagnostics, the spacecraft (orbit summary, demands, priorities,
+//! hard-body radii), the stations, the scenario's settings (window, Earth
+//! orientation, screening), and the pins and exclusions of the plan.
+//!
+//! Every field is validated as it is typed with the file loader's rules and
+//! wording ([`crate::doc::Document::checked_scenario`]); every edit marks the
+//! document changed, which re-runs the pass search on a worker thread.
 
 use std::path::PathBuf;
 
-use eframe::egui;
-use passlane_orbit::{OrbitSummary, Severity, element_age_days};
-use passlane_plan::Station;
-use passlane_plan::station::{Channel, LinkDirection, MaskPoint, MountLimits, unused_station_name};
+use eframe::egui::{self, CollapsingHeader, Grid, Ui};
+use passlane_orbit::{OrbitSummary, Severity, UtcTime, element_age_days};
+use passlane_plan::scenario::SatelliteNeeds;
 
 use crate::palette;
 use crate::state::{AppState, time_label};
+use crate::views::settings::SettingsEditor;
+use crate::views::stations::StationsEditor;
+use crate::widgets::{self, Edit};
+
+/// The part of the editor on show.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Section {
+    #[default]
+    Files,
+    Spacecraft,
+    Stations,
+    Settings,
+    Pins,
+}
+
+/// A request to the shell for a native file dialog.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum BrowseRequest {
+    /// Add a file to the fleet (true) or the catalog (false).
+    Add { own_fleet: bool },
+    /// Point entry `index` of the loaded files at another file.
+    Locate { index: usize },
+}
 
 #[derive(Default)]
 pub struct FleetView {
+    pub section: Section,
     typed_path: String,
     load_as_catalog: bool,
-    browse: Option<bool>,
-    selected_station: usize,
+    browse: Option<BrowseRequest>,
+    /// Typed replacement paths for missing files, by file index.
+    locate_paths: Vec<String>,
+    stations: StationsEditor,
+    settings: SettingsEditor,
 }
 
 impl FleetView {
-    /// A pending "Browse…" click: Some(own_fleet).
-    pub fn take_browse_request(&mut self) -> Option<bool> {
+    /// A pending "Browse…" or "Locate…" click.
+    pub fn take_browse_request(&mut self) -> Option<BrowseRequest> {
         self.browse.take()
     }
 
-    pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
-        egui::Panel::right("station-editor")
-            .resizable(true)
-            .default_size(430.0)
-            .show(ui, |ui| {
-                egui::ScrollArea::vertical()
-                    .id_salt("stations-scroll")
-                    .show(ui, |ui| self.stations(ui, state));
-            });
-        egui::ScrollArea::vertical()
-            .id_salt("fleet-scroll")
-            .show(ui, |ui| {
-                self.loader(ui, state);
-                ui.separator();
-                self.summaries(ui, state);
-            });
+    pub fn ui(&mut self, ui: &mut Ui, state: &mut AppState) {
+        ui.horizontal_wrapped(|ui| {
+            for (s, label) in [
+                (Section::Files, "Element files"),
+                (Section::Spacecraft, "Spacecraft"),
+                (Section::Stations, "Stations"),
+                (Section::Settings, "Scenario settings"),
+                (Section::Pins, "Pins and exclusions"),
+            ] {
+                ui.selectable_value(&mut self.section, s, label);
+            }
+        });
+        if let Err(e) = state.doc.checked_scenario() {
+            ui.colored_label(
+                palette::VERMILLION,
+                format!("The scenario has a problem: {e}. Passes, the plan and screening wait until it is fixed."),
+            );
+        }
+        ui.separator();
+        widgets::scroll(ui, "fleet-section-scroll", |ui| match self.section {
+            Section::Files => self.files(ui, state),
+            Section::Spacecraft => spacecraft(ui, state),
+            Section::Stations => self.stations.ui(ui, state),
+            Section::Settings => self.settings.settings(ui, state),
+            Section::Pins => self.settings.pins(ui, state),
+        });
     }
 
-    fn loader(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
+    fn files(&mut self, ui: &mut Ui, state: &mut AppState) {
         ui.heading("Element files");
         ui.horizontal_wrapped(|ui| {
             ui.checkbox(
@@ -53,7 +93,9 @@ impl FleetView {
                 "Load as catalog (objects to screen against)",
             );
             if ui.button("Browse…").clicked() {
-                self.browse = Some(!self.load_as_catalog);
+                self.browse = Some(BrowseRequest::Add {
+                    own_fleet: !self.load_as_catalog,
+                });
             }
             let l = ui.label("or path:");
             ui.add(
@@ -69,331 +111,324 @@ impl FleetView {
                 }
             }
         });
-        egui::Grid::new("loaded-files")
+        let mut lenient = state.doc.lenient;
+        if ui
+            .checkbox(
+                &mut lenient,
+                "Lenient mode: accept TLE lines with extra columns or a wrong checksum, with a warning",
+            )
+            .changed()
+        {
+            state.doc.set_lenient(lenient);
+        }
+        self.locate_paths
+            .resize(state.doc.files.len(), String::new());
+        let mut locate: Option<(usize, PathBuf)> = None;
+        let mut remove = None;
+        Grid::new("loaded-files")
             .striped(true)
-            .num_columns(4)
+            .num_columns(5)
             .show(ui, |ui| {
-                ui.strong("File");
-                ui.strong("Role");
-                ui.strong("Loaded");
-                ui.strong("Problems");
+                for h in ["File", "Role", "Loaded", "Problems", ""] {
+                    ui.strong(h);
+                }
                 ui.end_row();
-                for f in &state.doc.files {
-                    ui.label(&f.name);
-                    ui.label(match (&f.ephemeris_note, f.own_fleet) {
-                        (Some(_), _) => "ephemeris",
-                        (None, true) => "fleet",
-                        (None, false) => "catalog",
+                for (i, f) in state.doc.files.iter().enumerate() {
+                    ui.label(&f.name).on_hover_text(
+                        f.path
+                            .as_ref()
+                            .map(|p| p.display().to_string())
+                            .unwrap_or_else(|| "built into the app (bundled demo)".into()),
+                    );
+                    ui.label(match (f.is_ephemeris, f.own_fleet) {
+                        (true, _) => "ephemeris",
+                        (false, true) => "fleet",
+                        (false, false) => "catalog",
                     });
                     match &f.ephemeris_note {
                         Some(note) => ui.label(format!("{}, {note}", f.sets_loaded)),
                         None => ui.label(f.sets_loaded.to_string()),
                     };
-                    let errors = f
-                        .diagnostics
-                        .iter()
-                        .filter(|d| d.severity == Severity::Error)
-                        .count();
-                    let warnings = f.diagnostics.len() - errors;
-                    if f.diagnostics.is_empty() {
-                        ui.label("none");
-                    } else {
-                        ui.collapsing(format!("{errors} errors, {warnings} warnings"), |ui| {
-                            for d in f.diagnostics.iter().take(200) {
-                                let colour = if d.severity == Severity::Error {
-                                    palette::VERMILLION
-                                } else {
-                                    palette::YELLOW
-                                };
-                                ui.colored_label(colour, d.to_string());
-                            }
+                    if let Some(e) = &f.read_error {
+                        ui.vertical(|ui| {
+                            ui.colored_label(palette::VERMILLION, e);
+                            ui.label("Nothing was loaded from it. Point to the file:");
+                            ui.horizontal(|ui| {
+                                if ui.button(format!("Locate {}…", f.name)).clicked() {
+                                    self.browse = Some(BrowseRequest::Locate { index: i });
+                                }
+                                let l = ui.label("path");
+                                ui.add(
+                                    egui::TextEdit::singleline(&mut self.locate_paths[i])
+                                        .desired_width(200.0),
+                                )
+                                .labelled_by(l.id);
+                                if ui.button(format!("Use this file for {}", f.name)).clicked()
+                                    && !self.locate_paths[i].trim().is_empty()
+                                {
+                                    locate = Some((i, PathBuf::from(self.locate_paths[i].trim())));
+                                }
+                            });
                         });
+                    } else {
+                        diagnostics_ui(ui, i, f);
+                    }
+                    if ui.small_button(format!("Remove {}", f.name)).clicked() {
+                        remove = Some(i);
                     }
                     ui.end_row();
                 }
             });
+        if let Some((i, p)) = locate
+            && let Err(e) = state.doc.relocate_file(i, &p)
+        {
+            state.status = format!("{e:#}");
+        }
+        if let Some(i) = remove {
+            state.doc.remove_file(i);
+        }
         ui.label(format!(
             "{} spacecraft in the fleet, {} catalog objects.",
             state.doc.fleet.len(),
             state.doc.catalog.len()
         ));
     }
+}
 
-    fn summaries(&mut self, ui: &mut egui::Ui, state: &AppState) {
-        ui.heading("Orbit summary");
-        egui::Grid::new("orbit-summary")
-            .striped(true)
-            .num_columns(8)
-            .show(ui, |ui| {
-                for h in [
-                    "Spacecraft",
-                    "Catalog",
-                    "Epoch",
-                    "Age (d)",
-                    "Period (min)",
-                    "Perigee (km)",
-                    "Apogee (km)",
-                    "Incl. (deg)",
-                ] {
-                    ui.strong(h);
-                }
-                ui.end_row();
-                for (i, set) in state.doc.fleet.iter().enumerate() {
-                    let s = OrbitSummary::of(set);
-                    ui.colored_label(palette::series(i), &set.name);
-                    ui.label(set.catalog_number.to_string());
-                    ui.label(time_label(set.epoch));
-                    ui.label(format!("{:.1}", element_age_days(set, state.cursor)));
-                    ui.label(format!("{:.2}", s.period_min));
-                    ui.label(format!("{:.0}", s.perigee_altitude_km));
-                    ui.label(format!("{:.0}", s.apogee_altitude_km));
-                    ui.label(format!("{:.2}", set.inclination_deg));
-                    ui.end_row();
-                }
-            });
+fn diagnostics_ui(ui: &mut Ui, index: usize, f: &crate::doc::LoadedFile) {
+    let errors = f
+        .diagnostics
+        .iter()
+        .filter(|d| d.severity == Severity::Error)
+        .count();
+    let warnings = f.diagnostics.len() - errors;
+    if f.diagnostics.is_empty() {
+        ui.label("none");
+        return;
     }
-
-    fn stations(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
-        ui.heading("Stations");
-        let mut changed = false;
-        ui.horizontal_wrapped(|ui| {
-            for (i, s) in state.doc.scenario.stations.iter().enumerate() {
-                ui.selectable_value(&mut self.selected_station, i, &s.name);
+    // The id names the file's row: two files with the same counts must not share one.
+    CollapsingHeader::new(format!("{errors} errors, {warnings} warnings"))
+        .id_salt(("diagnostics", index))
+        .show(ui, |ui| {
+            for d in f.diagnostics.iter().take(200) {
+                let colour = if d.severity == Severity::Error {
+                    palette::VERMILLION
+                } else {
+                    palette::YELLOW
+                };
+                ui.colored_label(colour, d.to_string());
             }
-            if ui.button("Add station").clicked() {
-                // A name no station has yet: passes and plans identify
-                // stations by index, but people read names.
-                let name = unused_station_name(&state.doc.scenario.stations, "Station");
-                state
-                    .doc
-                    .scenario
-                    .stations
-                    .push(Station::new(&name, 0.0, 0.0, 0.0));
-                self.selected_station = state.doc.scenario.stations.len() - 1;
-                changed = true;
+            if f.diagnostics.len() > 200 {
+                ui.label(format!("… and {} more", f.diagnostics.len() - 200));
             }
         });
-        let count = state.doc.scenario.stations.len();
-        if count == 0 {
-            ui.label("No stations: add one to find passes.");
-            return;
-        }
-        self.selected_station = self.selected_station.min(count - 1);
-        let mut remove = false;
-        if let Some(st) = state.doc.scenario.stations.get_mut(self.selected_station) {
-            changed |= station_editor(ui, st, &mut remove);
-        }
-        if remove {
-            state.doc.scenario.stations.remove(self.selected_station);
-            self.selected_station = self.selected_station.saturating_sub(1);
-            changed = true;
-        }
-        if changed {
-            if let Some(st) = state.doc.scenario.stations.get_mut(self.selected_station) {
-                st.normalise();
-            }
-            state.doc.touch();
-        }
+}
+
+/// Element sets more than this many days from the window are flagged (common
+/// practice: SGP4 element sets degrade by about 1–3 km a day in LEO).
+pub const STALE_AFTER_DAYS: f64 = 3.0;
+
+/// Days from an element set's epoch to the nearest instant of the window
+/// (0 when the epoch is inside it).
+pub fn days_outside_window(epoch: UtcTime, start: UtcTime, end: UtcTime) -> f64 {
+    if epoch < start {
+        start.s_since(epoch) / 86_400.0
+    } else if epoch > end {
+        epoch.s_since(end) / 86_400.0
+    } else {
+        0.0
     }
 }
 
-/// The fields of one station; returns true when anything changed.
-fn station_editor(ui: &mut egui::Ui, st: &mut Station, remove: &mut bool) -> bool {
-    let mut changed = false;
-    egui::Grid::new("station-fields")
-        .num_columns(2)
+/// The fleet's element sets whose epoch is more than [`STALE_AFTER_DAYS`]
+/// from the window: (name, days).
+pub fn stale_sets(state: &AppState) -> Vec<(String, f64)> {
+    let (start, end) = state.doc.window();
+    state
+        .doc
+        .fleet
+        .iter()
+        .map(|s| (s.name.clone(), days_outside_window(s.epoch, start, end)))
+        .filter(|(_, d)| *d > STALE_AFTER_DAYS)
+        .collect()
+}
+
+/// A badge where passes or a plan rest on stale element sets.
+pub fn stale_warning(ui: &mut Ui, state: &AppState) {
+    let stale = stale_sets(state);
+    if stale.is_empty() {
+        return;
+    }
+    let worst = stale.iter().map(|(_, d)| *d).fold(0.0, f64::max);
+    ui.colored_label(
+        palette::VERMILLION,
+        format!(
+            "Stale elements: {} spacecraft have element sets up to {worst:.1} days from the window; their passes can be minutes off.",
+            stale.len()
+        ),
+    )
+    .on_hover_text(format!(
+        "{}\nCommon practice: element sets degrade by about 1-3 km a day in LEO. Load newer ones in Fleet and stations.",
+        stale
+            .iter()
+            .map(|(n, d)| format!("{n}: {d:.1} days"))
+            .collect::<Vec<_>>()
+            .join("\n")
+    ));
+}
+
+fn spacecraft(ui: &mut Ui, state: &mut AppState) {
+    ui.heading("Spacecraft");
+    let (start, end) = state.doc.window();
+    let now = UtcTime::now();
+    ui.label(format!(
+        "Element age is counted from now ({} UTC, the computer's clock) and from the window's start; \
+         sets more than {STALE_AFTER_DAYS:.0} days from the window are flagged (common practice: \
+         element sets degrade by about 1–3 km a day in LEO).",
+        time_label(now)
+    ));
+    Grid::new("orbit-summary")
+        .striped(true)
+        .num_columns(9)
         .show(ui, |ui| {
-            let l = ui.label("Name");
-            changed |= ui
-                .text_edit_singleline(&mut st.name)
-                .labelled_by(l.id)
-                .changed();
+            for h in [
+                "Spacecraft",
+                "Catalog",
+                "Epoch (UTC)",
+                "Age now (d)",
+                "Age at window start (d)",
+                "Period (min)",
+                "Perigee (km)",
+                "Apogee (km)",
+                "Incl. (deg)",
+            ] {
+                ui.strong(h);
+            }
             ui.end_row();
-            let l = ui.label("Latitude (deg)");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut st.latitude_deg)
-                        .range(-90.0..=90.0)
-                        .speed(0.01),
-                )
-                .labelled_by(l.id)
-                .changed();
-            ui.end_row();
-            let l = ui.label("Longitude (deg)");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut st.longitude_deg)
-                        .range(-180.0..=180.0)
-                        .speed(0.01),
-                )
-                .labelled_by(l.id)
-                .changed();
-            ui.end_row();
-            let l = ui.label("Height (m)");
-            changed |= ui
-                .add(egui::DragValue::new(&mut st.height_m).range(-500.0..=9000.0))
-                .labelled_by(l.id)
-                .changed();
-            ui.end_row();
-            let l = ui.label("Minimum elevation (deg)");
-            changed |= ui
-                .add(
-                    egui::DragValue::new(&mut st.min_elevation_deg)
-                        .range(-5.0..=89.0)
-                        .speed(0.1),
-                )
-                .labelled_by(l.id)
-                .changed();
-            ui.end_row();
+            for (i, set) in state.doc.fleet.iter().enumerate() {
+                let s = OrbitSummary::of(set);
+                ui.colored_label(palette::series(i), &set.name);
+                ui.label(set.catalog_number.to_string());
+                ui.label(time_label(set.epoch));
+                ui.label(format!("{:.1}", element_age_days(set, now)));
+                let off = days_outside_window(set.epoch, start, end);
+                let at_start = element_age_days(set, start);
+                if off > STALE_AFTER_DAYS {
+                    ui.colored_label(palette::VERMILLION, format!("{at_start:.1} (stale)"))
+                        .on_hover_text(format!("The epoch is {off:.1} days from the window."));
+                } else {
+                    ui.label(format!("{at_start:.1}"))
+                        .on_hover_text("Negative: the epoch is after the window's start (SGP4 runs backwards there).");
+                }
+                ui.label(format!("{:.2}", s.period_min));
+                ui.label(format!("{:.0}", s.perigee_altitude_km));
+                ui.label(format!("{:.0}", s.apogee_altitude_km));
+                ui.label(format!("{:.2}", set.inclination_deg));
+                ui.end_row();
+            }
         });
-    ui.collapsing(
-        format!("Horizon mask ({} points)", st.horizon_mask.len()),
-        |ui| {
-            let mut drop = None;
-            for (i, p) in st.horizon_mask.iter_mut().enumerate() {
-                ui.horizontal(|ui| {
-                    let l = ui.label("az");
-                    changed |= ui
-                        .add(egui::DragValue::new(&mut p.azimuth_deg).range(0.0..=359.9))
-                        .labelled_by(l.id)
-                        .changed();
-                    let l = ui.label("el");
-                    changed |= ui
-                        .add(
-                            egui::DragValue::new(&mut p.elevation_deg)
-                                .range(-5.0..=90.0)
-                                .speed(0.1),
-                        )
-                        .labelled_by(l.id)
-                        .changed();
-                    if ui.small_button("Remove").clicked() {
-                        drop = Some(i);
-                    }
+    ui.add_space(8.0);
+    ui.heading("Demands, priorities and hard-body radii");
+    ui.label("What each spacecraft needs from the network each day (the plan), and its size for collision probability.");
+    let mut edit = Edit::default();
+    let fleet: Vec<(u32, String)> = state
+        .doc
+        .fleet
+        .iter()
+        .map(|s| (s.catalog_number, s.name.clone()))
+        .collect();
+    for (i, (number, name)) in fleet.iter().enumerate() {
+        let sats = &mut state.doc.scenario.satellites;
+        let mut e = Edit::default();
+        let existing = sats.iter().position(|n| n.catalog_number == *number);
+        let k = match existing {
+            Some(k) => k,
+            None => {
+                sats.push(SatelliteNeeds {
+                    catalog_number: *number,
+                    priority: 1.0,
+                    min_contact_s: 0.0,
+                    contacts_per_day: None,
+                    downlink_mb_per_day: None,
+                    allow_simultaneous: false,
+                    hard_body_radius_m: None,
                 });
+                // Only an edit keeps it: see the clean-up below.
+                sats.len() - 1
             }
-            if let Some(i) = drop {
-                st.horizon_mask.remove(i);
-                changed = true;
-            }
-            if ui.button("Add mask point").clicked() {
-                st.horizon_mask.push(MaskPoint {
-                    azimuth_deg: 0.0,
-                    elevation_deg: st.min_elevation_deg,
-                });
-                changed = true;
-            }
-        },
-    );
-    ui.collapsing(format!("Channels ({})", st.channels.len()), |ui| {
-        let mut drop = None;
-        for (i, ch) in st.channels.iter_mut().enumerate() {
-            ui.horizontal(|ui| {
-                changed |= ui
-                    .add(egui::TextEdit::singleline(&mut ch.name).desired_width(90.0))
-                    .changed();
-                let mut mhz = ch.frequency_hz / 1e6;
-                if ui
-                    .add(
-                        egui::DragValue::new(&mut mhz)
-                            .range(1.0..=100_000.0)
-                            .suffix(" MHz")
-                            .speed(0.01),
-                    )
-                    .changed()
-                {
-                    ch.frequency_hz = mhz * 1e6;
-                    changed = true;
-                }
-                changed |= ui
-                    .selectable_value(&mut ch.direction, LinkDirection::Downlink, "down")
-                    .changed();
-                changed |= ui
-                    .selectable_value(&mut ch.direction, LinkDirection::Uplink, "up")
-                    .changed();
-                if ui.small_button("Remove").clicked() {
-                    drop = Some(i);
-                }
-            });
-        }
-        if let Some(i) = drop {
-            st.channels.remove(i);
-            changed = true;
-        }
-        if ui.button("Add channel").clicked() {
-            st.channels.push(Channel {
-                name: "new".into(),
-                direction: LinkDirection::Downlink,
-                frequency_hz: 437e6,
-            });
-            changed = true;
-        }
-    });
-    ui.collapsing("Mount limits", |ui| {
-        let mut has = st.mount.is_some();
-        if ui
-            .checkbox(&mut has, "This mount has rate or elevation limits")
-            .changed()
-        {
-            st.mount = has.then_some(MountLimits {
-                min_elevation_deg: 0.0,
-                max_elevation_deg: 90.0,
-                max_azimuth_rate_deg_s: 5.0,
-                max_elevation_rate_deg_s: 3.0,
-            });
-            changed = true;
-        }
-        if let Some(m) = &mut st.mount {
-            egui::Grid::new("mount-fields")
-                .num_columns(2)
-                .show(ui, |ui| {
-                    ui.label("Elevation range (deg)");
-                    ui.horizontal(|ui| {
-                        changed |= ui
-                            .add(egui::DragValue::new(&mut m.min_elevation_deg).range(-5.0..=90.0))
-                            .changed();
-                        changed |= ui
-                            .add(egui::DragValue::new(&mut m.max_elevation_deg).range(0.0..=180.0))
-                            .changed();
+        };
+        let n = &mut sats[k];
+        CollapsingHeader::new(format!("{name} ({number})"))
+            .id_salt(("needs", *number))
+            .default_open(i == 0)
+            .show(ui, |ui| {
+                Grid::new(("needs-grid", *number))
+                    .num_columns(2)
+                    .show(ui, |ui| {
+                        e |= widgets::number(
+                            ui,
+                            &format!("{name} priority"),
+                            (*number, "prio"),
+                            &mut n.priority,
+                            70.0,
+                        );
+                        ui.end_row();
+                        e |= widgets::number(
+                            ui,
+                            &format!("{name} shortest useful contact (s)"),
+                            (*number, "minc"),
+                            &mut n.min_contact_s,
+                            70.0,
+                        );
+                        ui.end_row();
                     });
-                    ui.end_row();
-                    let l = ui.label("Max azimuth rate (deg/s)");
-                    changed |= ui
-                        .add(
-                            egui::DragValue::new(&mut m.max_azimuth_rate_deg_s)
-                                .range(0.01..=90.0)
-                                .speed(0.1),
-                        )
-                        .labelled_by(l.id)
-                        .changed();
-                    ui.end_row();
-                    let l = ui.label("Max elevation rate (deg/s)");
-                    changed |= ui
-                        .add(
-                            egui::DragValue::new(&mut m.max_elevation_rate_deg_s)
-                                .range(0.01..=90.0)
-                                .speed(0.1),
-                        )
-                        .labelled_by(l.id)
-                        .changed();
-                    ui.end_row();
+                ui.horizontal_wrapped(|ui| {
+                    e |= widgets::optional_number(
+                        ui,
+                        &format!("{name} contacts per day"),
+                        (*number, "cpd"),
+                        &mut n.contacts_per_day,
+                        4.0,
+                        60.0,
+                    );
                 });
+                ui.horizontal_wrapped(|ui| {
+                    e |= widgets::optional_number(
+                        ui,
+                        &format!("{name} downlink per day (MB)"),
+                        (*number, "mbpd"),
+                        &mut n.downlink_mb_per_day,
+                        100.0,
+                        70.0,
+                    );
+                });
+                e.changed |= ui
+                    .checkbox(
+                        &mut n.allow_simultaneous,
+                        format!("{name} may use two antennas at once"),
+                    )
+                    .changed();
+                ui.horizontal_wrapped(|ui| {
+                    e |= widgets::optional_number(
+                        ui,
+                        &format!("{name} hard-body radius (m)"),
+                        (*number, "hbr"),
+                        &mut n.hard_body_radius_m,
+                        1.0,
+                        60.0,
+                    );
+                });
+            });
+        // An entry added only to show its fields, and not edited, is not kept.
+        if existing.is_none() && !e.changed {
+            sats.remove(k);
         }
-    });
-    if !st.antennas.is_empty() {
-        ui.label(format!(
-            "Antennas: {}",
-            st.antennas
-                .iter()
-                .map(|a| a.name.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ));
+        edit |= e;
     }
-    if let Err(e) = st.validate() {
-        ui.colored_label(palette::VERMILLION, e.to_string());
+    if fleet.is_empty() {
+        ui.label("No spacecraft loaded: add an element file first.");
     }
-    if ui.button("Remove this station").clicked() {
-        *remove = true;
+    if edit.changed {
+        state.doc.touch();
     }
-    changed
 }

@@ -3,8 +3,12 @@
 //! cache was made from change (document revision, cursor bucket, settings).
 
 pub mod approaches;
+pub mod avoid;
 pub mod fleet;
 pub mod map;
+pub mod passlist;
 pub mod plan;
+pub mod settings;
 pub mod sky;
+pub mod stations;
 pub mod timeline;

@@ -21,7 +21,8 @@ use passlane_plan::schedule::{Method, Plan, plan_network};
 
 use crate::jobs::{Job, JobProgress, Poll, progress_ui};
 use crate::palette;
-use crate::state::{AppState, hm_label, time_label};
+use crate::state::{AppState, PinKind, hm_label, time_label};
+use crate::views::timeline::contact_pin_menu;
 
 /// Sampling step of the exported pointing tables, s (the command line's default).
 pub const POINTING_STEP_S: f64 = 1.0;
@@ -36,6 +37,41 @@ pub struct ExportSummary {
     pub dir: PathBuf,
     pub files: usize,
     pub warnings: Vec<String>,
+    /// Files of an earlier export that this one replaced (same names).
+    pub replaced: Vec<String>,
+    /// Files that were in the folder before and are not part of this plan.
+    pub left_over: Vec<String>,
+}
+
+/// Every file under `dir`, as relative paths with `/` (sorted); empty when
+/// the folder does not exist yet.
+fn files_under(dir: &Path) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut stack = vec![(dir.to_path_buf(), String::new())];
+    while let Some((d, prefix)) = stack.pop() {
+        let Ok(entries) = std::fs::read_dir(&d) else {
+            continue;
+        };
+        for e in entries.flatten() {
+            let name = e.file_name().to_string_lossy().into_owned();
+            // Temporaries of an interrupted write are not part of any plan.
+            if name.contains(passlane_files::TEMP_MARKER) {
+                continue;
+            }
+            let rel = if prefix.is_empty() {
+                name
+            } else {
+                format!("{prefix}/{name}")
+            };
+            match e.file_type() {
+                Ok(t) if t.is_dir() => stack.push((e.path(), rel)),
+                Ok(_) => out.push(rel),
+                Err(_) => {}
+            }
+        }
+    }
+    out.sort();
+    out
 }
 
 /// Writes the plan's hand-off files into `dir`, exactly as
@@ -61,6 +97,7 @@ pub fn export_plan(
             oem_frame: passlane_plan::export::OemFrame::Eme2000,
         },
     );
+    let before = files_under(dir);
     let written = passlane_files::folder::write_folder(
         dir,
         hand_off
@@ -68,10 +105,25 @@ pub fn export_plan(
             .iter()
             .map(|f| (f.relative_path.as_str(), f.contents.as_slice())),
     )?;
+    let new: std::collections::HashSet<&str> = hand_off
+        .files
+        .iter()
+        .map(|f| f.relative_path.as_str())
+        .collect();
+    let after = files_under(dir);
     Ok(ExportSummary {
         dir: written.dir,
         files: written.files,
         warnings: hand_off.warnings,
+        replaced: before
+            .iter()
+            .filter(|f| new.contains(f.as_str()))
+            .cloned()
+            .collect(),
+        left_over: after
+            .into_iter()
+            .filter(|f| !new.contains(f.as_str()))
+            .collect(),
     })
 }
 
@@ -85,6 +137,9 @@ pub struct PlanView {
     export_dir: String,
     folder_dialog: Option<Receiver<Option<PathBuf>>>,
     export_status: String,
+    /// Kept contacts as drawn on the last frame: (index into the plan's contacts, bar).
+    bars: Vec<(usize, Rect)>,
+    context_contact: Option<usize>,
 }
 
 impl PlanView {
@@ -104,6 +159,13 @@ impl PlanView {
     }
 
     pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
+        egui::ScrollArea::vertical()
+            .id_salt("plan-scroll")
+            .auto_shrink([false, false])
+            .show(ui, |ui| self.contents(ui, state));
+    }
+
+    fn contents(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
         self.poll();
         ui.horizontal_wrapped(|ui| {
             if ui
@@ -150,6 +212,7 @@ impl PlanView {
         for w in plan.warnings.iter().take(8) {
             ui.colored_label(palette::YELLOW, w);
         }
+        crate::views::fleet::stale_warning(ui, state);
         ui.add_space(4.0);
         self.antenna_timeline(ui, state, &plan);
         ui.add_space(6.0);
@@ -168,7 +231,7 @@ impl PlanView {
                 ui.set_width(half);
                 ui.strong(format!("Conflicts resolved ({})", plan.conflicts.len()));
                 ui.label("Who lost which window to whom, and why.");
-                egui::ScrollArea::vertical().id_salt("plan-conflicts").max_height((rest - 40.0).max(80.0)).show(ui, |ui| {
+                egui::ScrollArea::vertical().id_salt("plan-conflicts").max_height(rest.clamp(120.0, 360.0)).show(ui, |ui| {
                     if plan.conflicts.is_empty() {
                         ui.label("None: every candidate that met the minimum length was kept or not needed.");
                     }
@@ -182,7 +245,13 @@ impl PlanView {
 
     fn start(&mut self, state: &AppState, ctx: egui::Context) {
         let fleet = state.doc.fleet.clone();
-        let scenario = state.doc.scenario.clone();
+        let scenario = match state.doc.checked_scenario() {
+            Ok(s) => s,
+            Err(e) => {
+                self.plan = Some(Err(format!("the scenario has a problem: {e}")));
+                return;
+            }
+        };
         let (start, end) = state.doc.window();
         self.job = Some(Job::spawn(
             "Planning",
@@ -218,6 +287,20 @@ impl PlanView {
                         summary.files,
                         summary.dir.display()
                     );
+                    if !summary.replaced.is_empty() {
+                        self.export_status.push_str(&format!(
+                            "\nReplaced {} files of an earlier export: {}.",
+                            summary.replaced.len(),
+                            short_list(&summary.replaced)
+                        ));
+                    }
+                    if !summary.left_over.is_empty() {
+                        self.export_status.push_str(&format!(
+                            "\n{} files in the folder are not part of this plan: {}.",
+                            summary.left_over.len(),
+                            short_list(&summary.left_over)
+                        ));
+                    }
                     for w in summary.warnings.iter().take(5) {
                         self.export_status.push_str(&format!("\n{w}"));
                     }
@@ -248,8 +331,14 @@ impl PlanView {
         }
     }
 
-    /// Kept contacts as bars, one row per antenna, coloured by spacecraft.
-    fn antenna_timeline(&self, ui: &mut egui::Ui, state: &AppState, plan: &Plan) {
+    /// Where kept contact `index` was drawn on the last frame (tests right-click it).
+    pub fn contact_rect(&self, index: usize) -> Option<Rect> {
+        self.bars.iter().find(|(i, _)| *i == index).map(|(_, r)| *r)
+    }
+
+    /// Kept contacts as bars, one row per antenna, coloured by spacecraft;
+    /// right-click one to keep it (pin) or never use it (exclusion).
+    fn antenna_timeline(&mut self, ui: &mut egui::Ui, state: &mut AppState, plan: &Plan) {
         // Rows: (station index, station name, antenna name).
         let mut antennas: Vec<(usize, String, String)> = plan
             .contacts
@@ -279,13 +368,15 @@ impl PlanView {
             for (i, set) in state.doc.fleet.iter().enumerate() {
                 ui.colored_label(palette::series(i), &set.name);
             }
-            ui.label("| pinned contacts are outlined");
+            ui.label(
+                "| pinned contacts are outlined; right-click a contact to keep it or never use it",
+            );
         });
         let row_h = 20.0;
         let label_w = 170.0;
         let height = 18.0 + row_h * antennas.len() as f32;
         let (rect, response) =
-            ui.allocate_exact_size(vec2(ui.available_width(), height), Sense::hover());
+            ui.allocate_exact_size(vec2(ui.available_width(), height), Sense::click());
         let painter = ui.painter_at(rect);
         painter.rect_filled(rect, 0.0, ui.visuals().extreme_bg_color);
         let span_s = plan.end.s_since(plan.start).max(1.0);
@@ -315,6 +406,7 @@ impl PlanView {
             day += 86_400.0;
         }
         let mut hovered = None;
+        self.bars.clear();
         for (row, (station_index, station, antenna)) in antennas.iter().enumerate() {
             let y = bars.top() + row_h * row as f32;
             painter.text(
@@ -324,10 +416,11 @@ impl PlanView {
                 FontId::proportional(12.0),
                 text,
             );
-            for c in plan
+            for (ci, c) in plan
                 .contacts
                 .iter()
-                .filter(|c| c.station_index == *station_index && &c.antenna == antenna)
+                .enumerate()
+                .filter(|(_, c)| c.station_index == *station_index && &c.antenna == antenna)
             {
                 let x0 = x_of(c.aos);
                 let x1 = x_of(c.los).max(x0 + 2.0);
@@ -339,19 +432,15 @@ impl PlanView {
                     palette::series(state.fleet_index(c.catalog_number)),
                 );
                 if c.pinned {
-                    painter.rect_stroke(
-                        bar.expand(1.0),
-                        1.0,
-                        Stroke::new(1.0, palette::CURSOR),
-                        egui::StrokeKind::Outside,
-                    );
+                    crate::views::timeline::pin_outline(&painter, bar, PinKind::Keep);
                 }
+                self.bars.push((ci, bar));
                 if response.hovered()
                     && response
                         .hover_pos()
                         .is_some_and(|p| bar.expand(1.0).contains(p))
                 {
-                    hovered = Some(c.clone());
+                    hovered = Some((ci, c.clone()));
                 }
             }
         }
@@ -360,7 +449,32 @@ impl PlanView {
             [Pos2::new(cx, bars.top()), Pos2::new(cx, bars.bottom())],
             Stroke::new(1.0, palette::CURSOR),
         );
-        if let Some(c) = hovered {
+        if response.secondary_clicked() {
+            self.context_contact = hovered.as_ref().map(|(i, _)| *i);
+        }
+        if let Some(ci) = self.context_contact
+            && let Some(c) = plan.contacts.get(ci)
+        {
+            let label = format!(
+                "{} on {}/{} at {}",
+                c.spacecraft,
+                c.station,
+                c.antenna,
+                hm_label(c.aos)
+            );
+            response.context_menu(|ui| {
+                contact_pin_menu(
+                    ui,
+                    state,
+                    c.catalog_number,
+                    c.station_index,
+                    Some(c.antenna.clone()),
+                    c.aos,
+                    &label,
+                );
+            });
+        }
+        if let Some((_, c)) = hovered {
             response.on_hover_text(format!(
                 "{} on {}/{}\nAOS {}  LOS {}  ({:.1} min, max elevation {:.0} deg)\n{:.0} MB{}",
                 c.spacecraft,
@@ -511,4 +625,13 @@ fn demand_table(ui: &mut egui::Ui, state: &AppState, plan: &Plan) {
     ui.label(
         "Met: green all, yellow at least 75%, vermillion less (the figure is always written).",
     );
+}
+
+/// The first few names of a list, and how many more.
+fn short_list(names: &[String]) -> String {
+    let mut s = names.iter().take(4).cloned().collect::<Vec<_>>().join(", ");
+    if names.len() > 4 {
+        s.push_str(&format!(" and {} more", names.len() - 4));
+    }
+    s
 }

@@ -6,6 +6,9 @@
 
 use eframe::egui::{self, Align2, Color32, FontId, Pos2, Sense, Shape, Stroke, vec2};
 use egui_plot::{Legend, Line, Plot, PlotPoints, VLine};
+
+use crate::axes::{self, AxisTicks};
+use crate::views::passlist::PassList;
 use passlane_orbit::{Illumination, UtcTime};
 use passlane_plan::pointing::PointingRow;
 use passlane_plan::{Pass, Station, pointing_table};
@@ -21,7 +24,17 @@ pub struct SkyView {
     key: Option<(Option<u64>, usize)>,
     rows: Vec<PointingRow>,
     error: Option<String>,
-    filter: String,
+    list: PassList,
+    /// Axes of the elevation, range and Doppler plots: (time, value).
+    ticks: [(AxisTicks, AxisTicks); 3],
+}
+
+/// Which plot of the sky view.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum SkyPlot {
+    Elevation = 0,
+    Range = 1,
+    Doppler = 2,
 }
 
 fn illumination_at(pass: &Pass, t: UtcTime) -> Illumination {
@@ -33,6 +46,12 @@ fn illumination_at(pass: &Pass, t: UtcTime) -> Illumination {
 }
 
 impl SkyView {
+    /// The tick labels a plot drew on the last frame: (time axis, value axis).
+    pub fn tick_labels(&self, plot: SkyPlot) -> (Vec<String>, Vec<String>) {
+        let (x, y) = &self.ticks[plot as usize];
+        (x.labels(), y.labels())
+    }
+
     fn prepare(&mut self, state: &AppState) {
         let Some(i) = state.selected_pass else {
             self.key = None;
@@ -75,7 +94,7 @@ impl SkyView {
             .resizable(true)
             .default_size(270.0)
             .show(ui, |ui| {
-                self.pass_list(ui, state);
+                self.list.ui(ui, state);
             });
         let Some(pass) = state.selected().cloned() else {
             ui.label("Select a pass in the list or on the contact timeline.");
@@ -84,6 +103,21 @@ impl SkyView {
         let Some(station) = state.doc.scenario.stations.get(pass.station_index).cloned() else {
             return;
         };
+        let avail_h = ui.available_height();
+        egui::ScrollArea::vertical()
+            .id_salt("sky-scroll")
+            .auto_shrink([false, false])
+            .show(ui, |ui| self.pass_ui(ui, state, &pass, &station, avail_h));
+    }
+
+    fn pass_ui(
+        &mut self,
+        ui: &mut egui::Ui,
+        state: &mut AppState,
+        pass: &Pass,
+        station: &Station,
+        avail_h: f32,
+    ) {
         ui.horizontal_wrapped(|ui| {
             ui.heading(format!("{} over {}", pass.satellite, pass.station));
             ui.label(format!(
@@ -114,53 +148,42 @@ impl SkyView {
                 ),
             );
         }
+        if let Some(i) = state.selected_pass {
+            ui.horizontal_wrapped(|ui| {
+                ui.menu_button("Keep or never use this contact…", |ui| {
+                    crate::views::timeline::pin_menu(ui, state, i, None)
+                });
+                if ui
+                    .button("Cursor to AOS")
+                    .on_hover_text("Move the time cursor to the start of this pass")
+                    .clicked()
+                {
+                    state.cursor = pass.aos;
+                }
+                if ui.button("Cursor to maximum").clicked() {
+                    state.cursor = pass.max_elevation_time;
+                }
+            });
+        }
         if let Some(e) = &self.error {
             ui.colored_label(palette::VERMILLION, e);
         }
-        ui.columns(2, |cols| {
-            self.polar(&mut cols[0], &station, &pass, state.cursor);
-            self.series(&mut cols[1], &station, &pass, state.cursor);
-        });
-    }
-
-    fn pass_list(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
-        ui.strong("Passes");
-        let filter_label = ui.label("Filter");
-        ui.add(egui::TextEdit::singleline(&mut self.filter).hint_text("spacecraft or station"))
-            .labelled_by(filter_label.id);
-        let needle = self.filter.to_lowercase();
-        egui::ScrollArea::vertical()
-            .auto_shrink([false, false])
-            .show(ui, |ui| {
-                for (i, p) in state.passes.passes.iter().enumerate() {
-                    if !needle.is_empty()
-                        && !p.satellite.to_lowercase().contains(&needle)
-                        && !p.station.to_lowercase().contains(&needle)
-                    {
-                        continue;
-                    }
-                    let text = format!(
-                        "{} · {} · {} · {:.0}°",
-                        hm_label(p.aos),
-                        p.satellite,
-                        p.station,
-                        p.max_elevation_deg
-                    );
-                    let r = ui
-                        .selectable_label(state.selected_pass == Some(i), text)
-                        .on_hover_text(format!("AOS {}", time_label(p.aos)));
-                    if r.clicked() {
-                        state.selected_pass = Some(i);
-                    }
-                }
+        let h = avail_h.max(420.0);
+        let cursor = state.cursor;
+        if ui.available_width() >= 760.0 {
+            ui.columns(2, |cols| {
+                self.polar(&mut cols[0], station, pass, cursor, h);
+                self.series(&mut cols[1], station, pass, cursor, h);
             });
+        } else {
+            // Narrow window: one above the other, scrolled.
+            self.polar(ui, station, pass, cursor, h);
+            self.series(ui, station, pass, cursor, h);
+        }
     }
 
-    fn polar(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime) {
-        let size = ui
-            .available_width()
-            .min(ui.available_height() - 30.0)
-            .clamp(160.0, 520.0);
+    fn polar(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime, h: f32) {
+        let size = ui.available_width().min(h - 90.0).clamp(160.0, 520.0);
         let (rect, _) = ui.allocate_exact_size(vec2(size, size), Sense::hover());
         let painter = ui.painter_at(rect);
         let c = rect.center();
@@ -212,43 +235,62 @@ impl SkyView {
                 text,
             );
         }
-        // Track, one segment at a time so its colour follows the illumination.
-        for w in self.rows.windows(2) {
-            let lit = illumination_at(pass, w[0].time) == Illumination::Sunlit;
-            let (colour, width) = if lit {
-                (palette::ORANGE, 2.5)
-            } else {
-                (palette::BLUE, 2.5)
-            };
-            let a = at(w[0].azimuth_deg, w[0].elevation_deg);
-            let b = at(w[1].azimuth_deg, w[1].elevation_deg);
+        // Track in runs of one illumination: sunlit solid, shadowed dashed
+        // (a run is dashed as a whole, so the dashes show on short steps too).
+        let mut k = 0;
+        while k + 1 < self.rows.len() {
+            let lit = illumination_at(pass, self.rows[k].time) == Illumination::Sunlit;
+            let mut run = vec![at(self.rows[k].azimuth_deg, self.rows[k].elevation_deg)];
+            let mut j = k + 1;
+            while j < self.rows.len() {
+                run.push(at(self.rows[j].azimuth_deg, self.rows[j].elevation_deg));
+                if (illumination_at(pass, self.rows[j].time) == Illumination::Sunlit) != lit {
+                    break;
+                }
+                j += 1;
+            }
             if lit {
-                painter.line_segment([a, b], Stroke::new(width, colour));
+                painter.add(Shape::line(run, Stroke::new(2.5, palette::ORANGE)));
             } else {
-                painter.add(Shape::dashed_line(
-                    &[a, b],
-                    Stroke::new(width, colour),
-                    4.0,
-                    3.0,
+                painter.extend(Shape::dashed_line(
+                    &run,
+                    Stroke::new(2.5, palette::SKY_BLUE),
+                    7.0,
+                    5.0,
                 ));
             }
+            k = j.min(self.rows.len() - 1).max(k + 1);
         }
-        // Time labels every two minutes, plus AOS and LOS.
-        let mut next_label = f64::NEG_INFINITY;
-        for (k, r) in self.rows.iter().enumerate() {
-            let dt = r.time.s_since(pass.aos);
-            if dt >= next_label || k + 1 == self.rows.len() {
-                let p = at(r.azimuth_deg, r.elevation_deg);
-                painter.circle_filled(p, 2.5, text);
-                painter.text(
-                    p + vec2(5.0, 0.0),
-                    Align2::LEFT_CENTER,
-                    hm_label(r.time),
-                    FontId::proportional(10.0),
-                    text,
-                );
-                next_label = dt + 120.0;
+        // Time labels at AOS, LOS and every two minutes between, each kept
+        // only where it does not crowd one already placed (AOS and LOS first).
+        let mut candidates: Vec<usize> = Vec::new();
+        if !self.rows.is_empty() {
+            candidates.push(0);
+            candidates.push(self.rows.len() - 1);
+            let mut next_label = 120.0;
+            for (k, r) in self.rows.iter().enumerate() {
+                if r.time.s_since(pass.aos) >= next_label {
+                    candidates.push(k);
+                    next_label += 120.0;
+                }
             }
+        }
+        let mut placed: Vec<Pos2> = Vec::new();
+        for k in candidates {
+            let r = &self.rows[k];
+            let p = at(r.azimuth_deg, r.elevation_deg);
+            if placed.iter().any(|q| q.distance(p) < 34.0) {
+                continue;
+            }
+            placed.push(p);
+            painter.circle_filled(p, 2.5, text);
+            painter.text(
+                p + vec2(5.0, 0.0),
+                Align2::LEFT_CENTER,
+                hm_label(r.time),
+                FontId::proportional(11.0),
+                text,
+            );
         }
         if let Some(r) = self.rows.iter().min_by(|a, b| {
             a.time
@@ -266,30 +308,65 @@ impl SkyView {
         }
         ui.horizontal_wrapped(|ui| {
             ui.colored_label(palette::ORANGE, "solid: sunlit");
-            ui.colored_label(palette::BLUE, "dashed: in Earth shadow");
-            ui.label("grey band: below mask / minimum elevation");
+            ui.colored_label(palette::SKY_BLUE, "dashed: in Earth shadow");
+            ui.label("grey band: below mask / minimum elevation; rings at 0°, 30°, 60° elevation");
         });
     }
 
-    fn series(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime) {
+    fn series(&self, ui: &mut egui::Ui, station: &Station, pass: &Pass, cursor: UtcTime, h: f32) {
         let t0 = pass.aos;
         let minutes = |t: UtcTime| t.s_since(t0) / 60.0;
-        // Three titles, the caution line and the spacing between them take about 120 px.
-        let h = ((ui.available_height() - 120.0) / 3.0).max(90.0);
+        // Three plots with their axis labels, and the caution line.
+        let plot_h = ((h - 90.0) / 3.0).max(120.0);
         let group = egui::Id::unique("sky-series-x");
         let cursor_min = minutes(cursor);
         // The cursor is marked only while it is inside the pass: a line far outside
         // would stretch the time axis and squeeze the pass into a corner.
         let cursor_in_pass = (pass.aos..=pass.los).contains(&cursor);
         let cursor_line = || VLine::new("cursor", cursor_min).color(palette::CURSOR);
-
-        ui.label("Elevation (deg) vs minutes after AOS");
-        Plot::new("sky-elevation")
-            .height(h)
-            // One y-axis width for all three keeps their time axes lined up.
-            .y_axis_min_width(44.0)
-            .link_axis(group, [true, false])
+        let x_label = format!("minutes after AOS ({} UTC)", hm_label(t0));
+        // Hover: the time (UTC and after AOS) and the value with its unit.
+        let hover = |unit: &'static str| {
+            move |h: &egui_plot::HoverPosition<'_>| {
+                let (name, p) = match h {
+                    egui_plot::HoverPosition::NearDataPoint {
+                        plot_name,
+                        position,
+                        ..
+                    } => (*plot_name, *position),
+                    egui_plot::HoverPosition::Elsewhere { position } => ("", *position),
+                };
+                let t = t0.add_s(p.x * 60.0);
+                let who = if name.is_empty() {
+                    String::new()
+                } else {
+                    format!("{name}: ")
+                };
+                Some(format!(
+                    "{} UTC ({:.2} min after AOS)\n{who}{:.3} {unit}",
+                    t.to_iso_ms().get(11..23).unwrap_or(""),
+                    p.x,
+                    p.y
+                ))
+            }
+        };
+        let plot = |id: &str, k: usize, y_label: &str| {
+            axes::readable(
+                Plot::new(id.to_string())
+                    .height(plot_h)
+                    // One y-axis width for all three keeps their time axes lined up.
+                    .y_axis_min_width(52.0)
+                    .link_axis(group, [true, false])
+                    .link_cursor(group, [true, false]),
+                &x_label,
+                y_label,
+                &self.ticks[k].0,
+                &self.ticks[k].1,
+            )
+        };
+        plot("sky-elevation", 0, "elevation (deg)")
             .legend(Legend::default())
+            .label_formatter(hover("deg"))
             .show(ui, |p| {
                 let pts: PlotPoints = self
                     .rows
@@ -307,12 +384,8 @@ impl SkyView {
                     p.vline(cursor_line());
                 }
             });
-        ui.label("Range (km)");
-        Plot::new("sky-range")
-            .height(h)
-            // One y-axis width for all three keeps their time axes lined up.
-            .y_axis_min_width(44.0)
-            .link_axis(group, [true, false])
+        plot("sky-range", 1, "range (km)")
+            .label_formatter(hover("km"))
             .show(ui, |p| {
                 let pts: PlotPoints = self
                     .rows
@@ -324,13 +397,9 @@ impl SkyView {
                     p.vline(cursor_line());
                 }
             });
-        ui.label("Doppler shift (kHz) per channel");
-        Plot::new("sky-doppler")
-            .height(h)
-            // One y-axis width for all three keeps their time axes lined up.
-            .y_axis_min_width(44.0)
-            .link_axis(group, [true, false])
+        plot("sky-doppler", 2, "Doppler shift (kHz)")
             .legend(Legend::default())
+            .label_formatter(hover("kHz"))
             .show(ui, |p| {
                 for (k, ch) in station.channels.iter().enumerate() {
                     let pts: PlotPoints = self
@@ -342,15 +411,37 @@ impl SkyView {
                                 .map(|f| [minutes(r.time), (f - ch.frequency_hz) / 1e3])
                         })
                         .collect();
-                    p.line(Line::new(ch.name.clone(), pts).color(palette::series(k + 2)));
+                    let colour = [
+                        palette::YELLOW,
+                        palette::REDDISH_PURPLE,
+                        palette::BLUISH_GREEN,
+                        palette::SKY_BLUE,
+                    ][k % 4];
+                    p.line(
+                        Line::new(
+                            format!("{} ({})", ch.name, direction_label(ch.direction)),
+                            pts,
+                        )
+                        .color(colour),
+                    );
                 }
                 if cursor_in_pass {
                     p.vline(cursor_line());
                 }
             });
-        ui.colored_label(
-            palette::YELLOW,
+        if station.channels.is_empty() {
+            ui.label("No channels at this station: add one in Fleet and stations for Doppler.");
+        }
+        crate::widgets::caution(
+            ui,
             "Transmitting needs a licence and follows local rules: check yours before using these frequencies.",
         );
+    }
+}
+
+fn direction_label(d: passlane_plan::station::LinkDirection) -> &'static str {
+    match d {
+        passlane_plan::station::LinkDirection::Downlink => "downlink: receiver tunes",
+        passlane_plan::station::LinkDirection::Uplink => "uplink: transmitter pre-compensates",
     }
 }

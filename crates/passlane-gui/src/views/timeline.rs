@@ -1,12 +1,15 @@
 //! Contact timeline: one row per station, each pass a bar coloured by
-//! spacecraft. Hovering a bar describes the pass, clicking selects it, and
-//! clicking or dragging elsewhere moves the shared time cursor.
+//! spacecraft. Hovering a bar describes the pass, clicking selects it (and
+//! moves the time cursor to it), right-clicking offers "keep this contact" /
+//! "never use this contact" for the plan; clicking or dragging elsewhere
+//! moves the shared time cursor. Pinned passes are outlined solid, excluded
+//! ones dashed.
 
 use eframe::egui::{self, Align2, FontId, Pos2, Rect, Sense, Stroke, StrokeKind, vec2};
 use passlane_orbit::UtcTime;
 
 use crate::palette;
-use crate::state::{AppState, hm_label, time_label};
+use crate::state::{AppState, PinKind, hm_label, time_label};
 
 /// Visible span of the timeline.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -18,6 +21,10 @@ enum Zoom {
 pub struct TimelineView {
     zoom: Zoom,
     selection_event: bool,
+    /// The pass whose context menu is open.
+    context_pass: Option<usize>,
+    /// Where each drawn pass's bar was on the last frame (pass index, rect).
+    bars: Vec<(usize, Rect)>,
 }
 
 impl Default for TimelineView {
@@ -25,6 +32,86 @@ impl Default for TimelineView {
         TimelineView {
             zoom: Zoom::Hours(24.0),
             selection_event: false,
+            context_pass: None,
+            bars: Vec::new(),
+        }
+    }
+}
+
+/// The pin menu of one pass: keep, never use, or clear.
+pub fn pin_menu(ui: &mut egui::Ui, state: &mut AppState, pass: usize, antenna: Option<String>) {
+    let Some(p) = state.passes.passes.get(pass).cloned() else {
+        return;
+    };
+    let label = format!("{} over {} at {}", p.satellite, p.station, hm_label(p.aos));
+    contact_pin_menu(
+        ui,
+        state,
+        p.catalog_number,
+        p.station_index,
+        antenna,
+        p.aos,
+        &label,
+    );
+}
+
+/// The pin menu of one contact (a pass, or a contact of the plan on one antenna).
+pub fn contact_pin_menu(
+    ui: &mut egui::Ui,
+    state: &mut AppState,
+    catalog_number: u32,
+    station_index: usize,
+    antenna: Option<String>,
+    aos: UtcTime,
+    label: &str,
+) {
+    let current = state
+        .pin_of(catalog_number, station_index, antenna.as_deref(), aos)
+        .map(|(k, _)| k);
+    ui.label(label);
+    if current != Some(PinKind::Keep) && ui.button("Keep this contact").clicked() {
+        state.set_pin(
+            catalog_number,
+            station_index,
+            antenna.clone(),
+            aos,
+            Some(PinKind::Keep),
+        );
+        ui.close();
+    }
+    if current != Some(PinKind::Never) && ui.button("Never use this contact").clicked() {
+        state.set_pin(
+            catalog_number,
+            station_index,
+            antenna.clone(),
+            aos,
+            Some(PinKind::Never),
+        );
+        ui.close();
+    }
+    if current.is_some() && ui.button("Remove the pin or exclusion").clicked() {
+        state.set_pin(catalog_number, station_index, antenna, aos, None);
+        ui.close();
+    }
+}
+
+/// Outlines a bar: solid for a kept (pinned) contact, dashed for an excluded one.
+pub fn pin_outline(painter: &egui::Painter, r: Rect, kind: PinKind) {
+    let stroke = Stroke::new(2.0, palette::CURSOR);
+    match kind {
+        PinKind::Keep => {
+            painter.rect_stroke(r.expand(2.0), 2.0, stroke, StrokeKind::Outside);
+        }
+        PinKind::Never => {
+            let r = r.expand(2.0);
+            let pts = [
+                r.left_top(),
+                r.right_top(),
+                r.right_bottom(),
+                r.left_bottom(),
+                r.left_top(),
+            ];
+            painter.extend(egui::Shape::dashed_line(&pts, stroke, 3.0, 3.0));
         }
     }
 }
@@ -33,6 +120,11 @@ const ROW_H: f32 = 22.0;
 const LABEL_W: f32 = 130.0;
 
 impl TimelineView {
+    /// Where pass `index`'s bar was drawn on the last frame (tests click it).
+    pub fn bar_rect(&self, index: usize) -> Option<Rect> {
+        self.bars.iter().find(|(i, _)| *i == index).map(|(_, r)| *r)
+    }
+
     /// True once after the user picked a pass on the timeline.
     pub fn take_selection_event(&mut self) -> bool {
         std::mem::take(&mut self.selection_event)
@@ -55,7 +147,7 @@ impl TimelineView {
     }
 
     pub fn ui(&mut self, ui: &mut egui::Ui, state: &mut AppState) {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             ui.strong("Contact timeline");
             ui.label("span:");
             ui.selectable_value(&mut self.zoom, Zoom::Hours(6.0), "6 h");
@@ -64,6 +156,16 @@ impl TimelineView {
             ui.separator();
             let n = state.passes.passes.len();
             ui.label(format!("{n} passes"));
+            if let Some(why) = &state.passes_blocked {
+                ui.colored_label(palette::VERMILLION, "passes not updated")
+                    .on_hover_text(format!("The scenario has a problem: {why}"));
+            }
+            crate::views::fleet::stale_warning(ui, state);
+            if let Some(i) = state.selected_pass {
+                ui.menu_button("Selected contact…", |ui| pin_menu(ui, state, i, None))
+                    .response
+                    .on_hover_text("Keep or never use the selected pass in the plan");
+            }
             if !state.passes.failures.is_empty() {
                 ui.colored_label(
                     palette::VERMILLION,
@@ -83,10 +185,9 @@ impl TimelineView {
                 );
             }
             ui.separator();
-            // Legend: spacecraft colours.
-            for (i, set) in state.doc.fleet.iter().enumerate().take(12) {
-                let (r, _) = ui.allocate_exact_size(vec2(10.0, 10.0), Sense::hover());
-                ui.painter().rect_filled(r, 2.0, palette::series(i));
+            // Legend: spacecraft colours (and the marker that follows a colour past the twelfth).
+            for (i, set) in state.doc.fleet.iter().enumerate() {
+                palette::legend_swatch(ui, i);
                 ui.small(&set.name);
             }
         });
@@ -161,6 +262,7 @@ impl TimelineView {
         // Bars; remember which one is under the pointer.
         let pointer = response.hover_pos();
         let mut hovered: Option<usize> = None;
+        self.bars.clear();
         for (i, p) in state.passes.passes.iter().enumerate() {
             if p.los < t0 || p.aos > t1 {
                 continue;
@@ -177,14 +279,18 @@ impl TimelineView {
             let r = Rect::from_min_max(Pos2::new(x0, y + 3.0), Pos2::new(x1, y + ROW_H - 3.0));
             let colour = palette::series(state.fleet_index(p.catalog_number));
             painter.rect_filled(r, 2.0, colour);
+            if let Some((kind, _)) = state.pin_of(p.catalog_number, p.station_index, None, p.aos) {
+                pin_outline(&painter, r, kind);
+            }
             if state.selected_pass == Some(i) {
                 painter.rect_stroke(
-                    r.expand(2.0),
+                    r.expand(4.0),
                     3.0,
-                    Stroke::new(2.0, palette::CURSOR),
+                    Stroke::new(1.5, palette::YELLOW),
                     StrokeKind::Outside,
                 );
             }
+            self.bars.push((i, r));
             if pointer.is_some_and(|q| r.expand2(vec2(2.0, 0.0)).contains(q)) {
                 hovered = Some(i);
             }
@@ -202,8 +308,13 @@ impl TimelineView {
         if let Some(i) = hovered
             && let Some(p) = state.passes.passes.get(i)
         {
+            let pin = match state.pin_of(p.catalog_number, p.station_index, None, p.aos) {
+                Some((PinKind::Keep, _)) => "\nkept for the plan (pinned)",
+                Some((PinKind::Never, _)) => "\nnever used by the plan (excluded)",
+                None => "\nright-click: keep or never use this contact",
+            };
             let text = format!(
-                "{} over {}\nAOS {}  az {:.0}°\nmax elevation {:.1}° at {}\nLOS {}  az {:.0}°\n{:.1} min, {}",
+                "{} over {}\nAOS {}  az {:.0}°\nmax elevation {:.1}° at {}\nLOS {}  az {:.0}°\n{:.1} min, {}{pin}",
                 p.satellite,
                 p.station,
                 time_label(p.aos),
@@ -217,10 +328,20 @@ impl TimelineView {
             );
             response.clone().on_hover_text_at_pointer(text);
         }
+        if response.secondary_clicked() {
+            self.context_pass = hovered;
+        }
+        if self.context_pass.is_some() {
+            response.context_menu(|ui| {
+                if let Some(i) = self.context_pass {
+                    pin_menu(ui, state, i, None);
+                }
+            });
+        }
         if response.clicked() {
             match hovered {
                 Some(i) => {
-                    state.selected_pass = Some(i);
+                    state.select_pass(i);
                     self.selection_event = true;
                 }
                 None => {
