@@ -396,6 +396,32 @@ fn the_avoidance_what_if_shows_a_burns_effect_with_its_caution() {
     let panel = h.state().approaches().avoid_panel();
     assert!(panel.is_some_and(|p| !p.running()), "cancelled at once");
     assert!(h.query_by_label_contains("Cancelled").is_some());
+    // One burn (the default: 0.1 m/s in-track one orbit ahead) is computed
+    // and its before/after figures shown.
+    h.get_by_label("Compute this burn").scroll_to_me();
+    h.run_steps(30);
+    h.get_by_label("Compute this burn").click();
+    h.run_steps(1);
+    let deadline = Instant::now() + Duration::from_secs(120);
+    while h
+        .state()
+        .approaches()
+        .avoid_panel()
+        .is_some_and(|p| p.running() || p.effect().is_none())
+    {
+        assert!(Instant::now() < deadline, "the burn's effect did not come");
+        std::thread::sleep(Duration::from_millis(20));
+        h.step();
+    }
+    h.run_steps(3);
+    let ok = h
+        .state()
+        .approaches()
+        .avoid_panel()
+        .and_then(|p| p.effect())
+        .is_some_and(|e| e.is_ok());
+    assert!(ok, "the burn's effect is computed");
+    assert!(h.query_by_label_contains("after").is_some());
 }
 
 #[test]
