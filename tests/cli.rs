@@ -912,6 +912,15 @@ fn avoid_json_contract_and_refusals() {
         );
     }
     assert_eq!(v["dv_ric_m_s"][1].as_f64(), Some(0.05));
+    // What else the burn changes: looked for, and said.
+    assert!(v["new_events"].is_array(), "{v}");
+    assert!(v["new_events_until"].is_string());
+    let shifts = v["contact_shifts"].as_array().unwrap();
+    assert!(!shifts.is_empty());
+    has_fields(
+        &shifts[0],
+        &["station", "aos_before", "aos_after", "aos_shift_s"],
+    );
     assert!(v["after"]["miss_distance_km"].as_f64() > v["before"]["miss_distance_km"].as_f64());
 
     let mut tr: Vec<&str> = base.to_vec();

@@ -498,9 +498,17 @@ pub struct AvoidArgs {
     /// Combined hard-body radius, metres [default: the scenario's radii of the two objects, else 5 m each]
     #[arg(long, value_name = "M", value_parser = finite_f64, help_heading = "Probability", allow_hyphen_values = true)]
     pub hard_body_radius_m: Option<f64>,
+    /// How far after the burn to look for close approaches it creates or worsens, days
+    #[arg(long, value_name = "DAYS", value_parser = finite_f64, default_value_t = 7.0, help_heading = "Consequences", allow_hyphen_values = true)]
+    pub horizon_days: f64,
+    /// How far after the burn to compare contact windows, hours
+    #[arg(long, value_name = "H", value_parser = finite_f64, default_value_t = 24.0, help_heading = "Consequences", allow_hyphen_values = true)]
+    pub contact_hours: f64,
     /// Output format on standard output
     #[arg(long, value_enum, default_value_t = TableJson::Table, help_heading = "Output", allow_hyphen_values = true)]
     pub format: TableJson,
+    #[command(flatten)]
+    pub quiet: QuietArgs,
 }
 
 #[derive(Debug, Args)]

@@ -8,16 +8,20 @@ use anyhow::{Context, Result, bail};
 use passlane_orbit::numerical::Drag;
 use passlane_orbit::{ElementSet, Propagator, StateTeme, UtcTime};
 use passlane_plan::avoid::{
-    Burn, BurnEffect, Conjunction, CovarianceModel, EncounterFigures, FromState, Motion, Trade,
-    TradeRequest, burn_effect, trade,
+    Burn, BurnEffect, Conjunction, ConsequenceRequest, ContactShift, CovarianceModel,
+    EncounterFigures, FromState, Manoeuvred, Motion, NewEvent, Trade, TradeRequest, burn_effect,
+    consequences, manoeuvred_entry, trade,
 };
 use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{AssumedCovariance, hard_body_radius_m};
 use passlane_plan::encounter::{Mat3, earth_fixed_to_aligned_inertial};
+use passlane_plan::job::EventRow;
+use passlane_plan::screen::ScreeningVolume;
 use serde::Serialize;
 
 use super::args::AvoidArgs;
 use super::common::{self, Format, Sources};
+use super::progress::Bar;
 
 const CAUTION: &str = "Caution: advisory only, from published elements (or the CDM's states). Coordinate any \
 manoeuvre with the other operator and the responsible screening service first; this tool plans, it does not \
@@ -35,6 +39,26 @@ struct BurnJson<'a> {
     covariance_source: String,
     hard_body_radius_m: f64,
     hard_body_radius_source: String,
+    /// Close approaches the burn creates or worsens up to the horizon, as
+    /// `passlane screen` rows with what changed; absent (with a note) when
+    /// they could not be looked for.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    new_events: Option<Vec<NewEventJson<'a>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    new_events_until: Option<UtcTime>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    contact_shifts: Option<&'a [ContactShift]>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<String>,
+}
+
+#[derive(Serialize)]
+struct NewEventJson<'a> {
+    change: &'static str,
+    #[serde(flatten)]
+    row: EventRow<'a>,
+    before_miss_distance_km: Option<f64>,
+    before_pc: Option<f64>,
 }
 
 /// The trade's answer.
@@ -82,6 +106,10 @@ struct Setup {
     assumed: AssumedCovariance,
     hbr_m: f64,
     hbr_source: String,
+    /// From element sets: everything else loaded (catalog and the rest of
+    /// the fleet) and the scenario, for the burn's consequences.
+    others: Vec<ElementSet>,
+    scenario: passlane_plan::Scenario,
 }
 
 fn from_cdm(args: &AvoidArgs, path: &Path) -> Result<Setup> {
@@ -151,6 +179,8 @@ fn from_cdm(args: &AvoidArgs, path: &Path) -> Result<Setup> {
         assumed: AssumedCovariance::from_scenario(&passlane_plan::Scenario::default()),
         hbr_m,
         hbr_source,
+        others: Vec::new(),
+        scenario: passlane_plan::Scenario::default(),
     })
 }
 
@@ -224,6 +254,13 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
     };
     let primary = Propagator::new(&ps).map_err(|e| anyhow::anyhow!("--primary {p}: {e}"))?;
     let secondary = Propagator::new(&ss).map_err(|e| anyhow::anyhow!("--secondary {s}: {e}"))?;
+    let others: Vec<ElementSet> = inputs
+        .sets
+        .iter()
+        .chain(&catalog)
+        .filter(|x| x.catalog_number != p)
+        .cloned()
+        .collect();
     Ok(Setup {
         primary: Box::new(primary),
         secondary: Box::new(secondary),
@@ -235,6 +272,8 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
         assumed: AssumedCovariance::from_scenario(&scenario),
         hbr_m,
         hbr_source,
+        others,
+        scenario,
     })
 }
 
@@ -309,6 +348,54 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
         dv_ric_m_s: three("--dv-ric-m-s", dv)?,
     };
     let e = burn_effect(&conj, setup.tca, burn)?;
+    // What else the burn changes, over the days after it (element sets only:
+    // a CDM carries no catalog to screen against).
+    let horizon = burn.time.add_s(args.horizon_days * 86_400.0);
+    let contacts_until = burn.time.add_s(args.contact_hours * 3_600.0).min(horizon);
+    let consequences_of = |ps: &ElementSet| -> Result<(Vec<NewEvent>, Vec<ContactShift>)> {
+        let prop = Propagator::new(ps)?;
+        let moved = Manoeuvred::new(&prop, burn, conj.primary_drag, horizon)
+            .map_err(|err| anyhow::anyhow!("--horizon-days: {err}"))?;
+        let entry = manoeuvred_entry(ps, &moved, burn.time, horizon)
+            .map_err(|err| anyhow::anyhow!("--horizon-days: {err}"))?;
+        let bar = Bar::new("new close approaches", args.quiet.quiet);
+        let out = consequences(
+            &ConsequenceRequest {
+                primary: ps,
+                others: &setup.others,
+                scenario: &setup.scenario,
+                volume: ScreeningVolume::Sphere {
+                    radius_km: setup.scenario.screening.threshold_km,
+                },
+                from: burn.time,
+                to: horizon,
+                avoided: Some((setup.secondary_catalog_number, e.before.tca)),
+                stations: &setup.scenario.stations,
+                contacts_until,
+            },
+            &entry,
+            &bar,
+        );
+        bar.finish();
+        Ok(out)
+    };
+    if !(args.horizon_days.is_finite() && args.horizon_days > 0.0 && args.horizon_days <= 30.0) {
+        bail!("--horizon-days must be above 0 and at most 30");
+    }
+    if !(args.contact_hours.is_finite() && args.contact_hours >= 0.0) {
+        bail!("--contact-hours must not be negative");
+    }
+    let (found, note) = match &setup.sets {
+        Some((ps, _)) => (Some(consequences_of(ps)?), None),
+        None => (
+            None,
+            Some(
+                "new close approaches and contact shifts need the primary's element set and a \
+                 catalog: give --elements/--catalog or --scenario with --primary/--secondary/--tca"
+                    .to_string(),
+            ),
+        ),
+    };
     match format {
         Format::Json => {
             serde_json::to_writer_pretty(
@@ -322,12 +409,28 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
                     after: &e.after,
                     covariance_source: label,
                     hard_body_radius_m: setup.hbr_m,
-                    hard_body_radius_source: setup.hbr_source,
+                    hard_body_radius_source: setup.hbr_source.clone(),
+                    new_events: found.as_ref().map(|(n, _)| {
+                        n.iter()
+                            .map(|x| NewEventJson {
+                                change: x.change,
+                                row: EventRow::new(&x.event, &x.risk),
+                                before_miss_distance_km: x.before_miss_distance_km,
+                                before_pc: x.before_pc,
+                            })
+                            .collect()
+                    }),
+                    new_events_until: found.as_ref().map(|_| horizon),
+                    contact_shifts: found.as_ref().map(|(_, c)| c.as_slice()),
+                    note: note.clone(),
                 },
             )?;
             writeln!(out)?;
         }
-        _ => write_burn_table(out, &setup, &e, &label)?,
+        _ => {
+            write_burn_table(out, &setup, &e, &label)?;
+            write_consequences(out, found.as_ref(), note.as_deref(), horizon)?;
+        }
     }
     Ok(())
 }
@@ -389,6 +492,64 @@ fn write_burn_table(out: &mut dyn Write, s: &Setup, e: &BurnEffect, label: &str)
         "The burn's effect: numerical propagation (J2-J4, drag from B*) added to the usual trajectory."
     )?;
     writeln!(out, "{CAUTION}")?;
+    Ok(())
+}
+
+fn write_consequences(
+    out: &mut dyn Write,
+    found: Option<&(Vec<NewEvent>, Vec<ContactShift>)>,
+    note: Option<&str>,
+    horizon: UtcTime,
+) -> Result<()> {
+    let Some((events, shifts)) = found else {
+        if let Some(n) = note {
+            writeln!(out, "\nNot looked for: {n}.")?;
+        }
+        return Ok(());
+    };
+    writeln!(
+        out,
+        "\nClose approaches the burn creates or worsens until {}: {}",
+        horizon.to_iso_s(),
+        if events.is_empty() { "none found" } else { "" }
+    )?;
+    for x in events {
+        let e = &x.event;
+        writeln!(
+            out,
+            "  {:<9} {} / {} at {}: miss {:.3} km{}, Pc {}",
+            x.change,
+            e.primary,
+            e.secondary,
+            e.tca.to_iso_ms(),
+            e.miss_distance_km,
+            x.before_miss_distance_km
+                .map(|m| format!(" (was {m:.3} km)"))
+                .unwrap_or_default(),
+            pc_text(x.risk.as_ref().ok().map(|r| r.pc))
+        )?;
+    }
+    writeln!(
+        out,
+        "\nContact windows after the burn (shift of AOS / LOS):"
+    )?;
+    for c in shifts {
+        match (c.aos_before, c.aos_after) {
+            (Some(b), Some(_)) => writeln!(
+                out,
+                "  {:<14} {}  AOS {:+.1} s, LOS {:+.1} s, max elevation {:.1} -> {:.1} deg",
+                c.station,
+                b.to_iso_s(),
+                c.aos_shift_s.unwrap_or(0.0),
+                c.los_shift_s.unwrap_or(0.0),
+                c.max_elevation_before_deg.unwrap_or(f64::NAN),
+                c.max_elevation_after_deg.unwrap_or(f64::NAN)
+            )?,
+            (Some(b), None) => writeln!(out, "  {:<14} {}  gone", c.station, b.to_iso_s())?,
+            (None, Some(a)) => writeln!(out, "  {:<14} {}  new", c.station, a.to_iso_s())?,
+            (None, None) => {}
+        }
+    }
     Ok(())
 }
 

@@ -7,9 +7,8 @@ use std::path::PathBuf;
 use anyhow::{Context, Result, bail};
 use passlane_orbit::{ElementSet, UtcTime};
 use passlane_plan::conjunction::{CdmContext, event_to_cdm};
-use passlane_plan::job::{ScreeningJob, screen_and_assess};
-use passlane_plan::screen::{CloseApproach, ScreeningVolume};
-use serde::Serialize;
+use passlane_plan::job::{EventRow, ScreeningJob, screen_and_assess};
+use passlane_plan::screen::ScreeningVolume;
 
 use super::args::{MessageFormat, ScreenArgs};
 use super::common::{self, Format, Sources};
@@ -18,27 +17,6 @@ use passlane_plan::export::csv_field;
 
 const CAUTION: &str = "Caution: screening on published mean elements is advisory. Defer to official conjunction \
 messages and coordinate with the other operator before acting.";
-
-/// One event as printed: the screening figures plus the probability.
-#[derive(Serialize)]
-struct Row<'a> {
-    #[serde(flatten)]
-    event: &'a CloseApproach,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pc: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pc_alfano: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pc_chan: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    pc_max: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    covariance_source: Option<&'a str>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    hard_body_radius_m: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    risk_note: Option<String>,
-}
 
 /// `--box-km` or `--ellipsoid-km`: three positive sizes in km.
 fn three(value: Option<&str>, name: &str) -> Result<Option<[f64; 3]>> {
@@ -132,32 +110,11 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
         eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
     }
     let label = covariance.label();
-    let rows: Vec<Row> = result
+    let rows: Vec<EventRow> = result
         .events
         .iter()
         .zip(risks)
-        .map(|(e, r)| match r {
-            Ok(r) => Row {
-                event: e,
-                pc: Some(r.pc),
-                pc_alfano: Some(r.pc_alfano),
-                pc_chan: Some(r.pc_chan),
-                pc_max: Some(r.pc_max),
-                covariance_source: Some(r.covariance_source.as_str()),
-                hard_body_radius_m: Some(r.hard_body_radius_m),
-                risk_note: None,
-            },
-            Err(msg) => Row {
-                event: e,
-                pc: None,
-                pc_alfano: None,
-                pc_chan: None,
-                pc_max: None,
-                covariance_source: None,
-                hard_body_radius_m: None,
-                risk_note: Some(msg.clone()),
-            },
-        })
+        .map(|(e, r)| EventRow::new(e, r))
         .collect();
     if let Some(dir) = &args.cdm_dir {
         std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;

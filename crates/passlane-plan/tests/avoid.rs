@@ -257,3 +257,84 @@ fn bad_requests_name_the_option() {
     let e = burn_effect(&conj, tca, Burn::none(tca.add_s(-100.0))).unwrap_err();
     assert_eq!(e.option, "--tca", "{e}");
 }
+
+#[test]
+fn an_encounter_designed_to_be_created_by_a_burn_is_listed_as_new() {
+    use passlane_plan::Scenario;
+    use passlane_plan::avoid::{ConsequenceRequest, consequences, manoeuvred_entry, motion_entry};
+    use passlane_plan::screen::ScreeningVolume;
+
+    let fleet = demo_fleet();
+    let set = &fleet[0];
+    let prop = Propagator::new(set).unwrap();
+    let burn = Burn {
+        time: set.epoch.add_s(3_600.0),
+        dv_ric_m_s: [0.0, 0.5, 0.0],
+    };
+    let horizon = burn.time.add_s(2.0 * 86_400.0);
+    let moved = Manoeuvred::new(
+        &prop,
+        burn,
+        Drag::from_bstar(set.bstar_per_earth_radii),
+        horizon,
+    )
+    .unwrap();
+    // An invented object crossing the *manoeuvred* track 40 m below it, a
+    // day after the burn: the usual track is ~100 km away from there then
+    // (Clohessy–Wiltshire: 3·Δv·t).
+    let meet = burn.time.add_s(86_400.0);
+    let p = moved.state_at(meet).unwrap();
+    let r_hat = p.position_km.map(|x| x / norm(&p.position_km));
+    let h = cross(&p.position_km, &p.velocity_km_s);
+    let c_hat = h.map(|x| x / norm(&h));
+    let i_hat = cross(&c_hat, &r_hat);
+    let speed = norm(&p.velocity_km_s);
+    let (s60, c60) = (60f64.to_radians().sin(), 60f64.to_radians().cos());
+    let crossing = FromState::new(
+        &StateTeme {
+            time: meet,
+            position_km: std::array::from_fn(|k| p.position_km[k] - 0.040 * r_hat[k]),
+            velocity_km_s: std::array::from_fn(|k| speed * (c60 * i_hat[k] + s60 * c_hat[k])),
+        },
+        None,
+        burn.time,
+        horizon,
+    )
+    .unwrap();
+    let other = motion_entry("DESIGNED 99901", 99901, None, &crossing, burn.time, horizon).unwrap();
+    let before_gap = norm(&passlane_orbit::frames::sub(
+        &prop.state_at(meet).unwrap().position_km,
+        &p.position_km,
+    ));
+    assert!(before_gap > 20.0, "{before_gap} km");
+    let entry = manoeuvred_entry(set, &moved, burn.time, horizon).unwrap();
+    let scenario = Scenario::default();
+    let others = [other];
+    let (new_events, _) = consequences(
+        &ConsequenceRequest {
+            primary: set,
+            others: &others,
+            scenario: &scenario,
+            volume: ScreeningVolume::Sphere { radius_km: 5.0 },
+            from: burn.time,
+            to: horizon,
+            avoided: None,
+            stations: &[],
+            contacts_until: burn.time,
+        },
+        &entry,
+        &passlane_plan::Silent,
+    );
+    let created: Vec<_> = new_events
+        .iter()
+        .filter(|e| e.change == "created" && e.event.secondary_catalog_number == 99901)
+        .collect();
+    assert_eq!(created.len(), 1, "{new_events:?}");
+    let e = &created[0].event;
+    assert!(e.tca.s_since(meet).abs() < 0.01, "{}", e.tca);
+    assert!(
+        (e.miss_distance_km - 0.040).abs() < 0.005,
+        "{}",
+        e.miss_distance_km
+    );
+}

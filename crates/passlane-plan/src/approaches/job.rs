@@ -97,3 +97,56 @@ pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> Scr
         secondaries: secondaries.map(<[ElementSet]>::len),
     }
 }
+
+/// One assessed event as the command line and scripts see it: the
+/// screening's figures plus the probability (or why there is none). The field
+/// names are a JSON contract (`passlane screen --format json`).
+#[derive(Debug, Clone, serde::Serialize)]
+pub struct EventRow<'a> {
+    #[serde(flatten)]
+    pub event: &'a crate::screen::CloseApproach,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pc: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pc_alfano: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pc_chan: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub pc_max: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub covariance_source: Option<&'a str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub hard_body_radius_m: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub risk_note: Option<String>,
+}
+
+impl<'a> EventRow<'a> {
+    pub fn new(
+        event: &'a crate::screen::CloseApproach,
+        risk: &'a Result<EventRisk, String>,
+    ) -> Self {
+        match risk {
+            Ok(r) => EventRow {
+                event,
+                pc: Some(r.pc),
+                pc_alfano: Some(r.pc_alfano),
+                pc_chan: Some(r.pc_chan),
+                pc_max: Some(r.pc_max),
+                covariance_source: Some(r.covariance_source.as_str()),
+                hard_body_radius_m: Some(r.hard_body_radius_m),
+                risk_note: None,
+            },
+            Err(msg) => EventRow {
+                event,
+                pc: None,
+                pc_alfano: None,
+                pc_chan: None,
+                pc_max: None,
+                covariance_source: None,
+                hard_body_radius_m: None,
+                risk_note: Some(msg.clone()),
+            },
+        }
+    }
+}

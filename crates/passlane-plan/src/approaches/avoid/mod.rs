@@ -34,6 +34,7 @@
 //! any manoeuvre is coordinated with the other operator and the responsible
 //! screening service first.
 
+pub mod consequences;
 pub mod motion;
 
 use passlane_orbit::frames::{dot, norm, sub};
@@ -47,6 +48,9 @@ use crate::encounter::{Mat3, StateKm, encounter_plane, relative_geometry};
 use crate::numeric::brent_root;
 use crate::pc::{pc_foster, pc_max};
 
+pub use consequences::{
+    ConsequenceRequest, ContactShift, NewEvent, consequences, manoeuvred_entry, motion_entry,
+};
 pub use motion::{Burn, FromState, Manoeuvred, Motion, MotionError};
 
 /// Largest |Δv| accepted, m/s: far above any small satellite's avoidance
