@@ -14,10 +14,12 @@ use passlane_orbit::numerical::Drag;
 use passlane_orbit::{ElementSet, OrbitSummary, Propagator, UtcTime};
 use passlane_plan::Progress;
 use passlane_plan::avoid::{
-    Burn, BurnEffect, Conjunction, CovarianceModel, EncounterFigures, Trade, TradeRequest,
-    burn_effect, trade,
+    Burn, BurnEffect, Conjunction, ConsequenceRequest, ContactShift, CovarianceModel,
+    EncounterFigures, Manoeuvred, NewEvent, Trade, TradeRequest, burn_effect, consequences,
+    manoeuvred_entry, trade,
 };
 use passlane_plan::conjunction::AssumedCovariance;
+use passlane_plan::screen::ScreeningVolume;
 
 use crate::jobs::{Job, Poll, progress_ui};
 use crate::palette;
@@ -37,17 +39,36 @@ pub struct AvoidInputs {
     pub tca: UtcTime,
     pub assumed: AssumedCovariance,
     pub hard_body_radius_m: f64,
+    /// Everything else the primary may meet (catalog and the rest of the
+    /// fleet), and the scenario (stations, screening settings), for the
+    /// burn's consequences.
+    pub others: Vec<ElementSet>,
+    pub scenario: passlane_plan::Scenario,
 }
 
 type Answer<T> = Result<T, String>;
+
+/// What else a burn changes: close approaches it creates or worsens over a
+/// week, and the shifts of the next day's contact windows.
+pub type Consequences = (Vec<NewEvent>, Vec<ContactShift>);
+
+/// One burn's computation: its effect, then what else it changes (which can
+/// fail on its own).
+type EffectAndConsequences = (BurnEffect, Answer<Consequences>);
+
+/// Days after the burn searched for new close approaches, and hours of
+/// contact windows compared (the command line's defaults).
+const HORIZON_DAYS: f64 = 7.0;
+const CONTACT_HOURS: f64 = 24.0;
 
 pub struct AvoidPanel {
     inputs: AvoidInputs,
     burn_time: UtcTime,
     dv_ric_m_s: [f64; 3],
     effect: Option<Answer<BurnEffect>>,
+    consequences: Option<Answer<Consequences>>,
     trade: Option<Answer<Trade>>,
-    effect_job: Option<Job<Answer<BurnEffect>>>,
+    effect_job: Option<Job<Answer<EffectAndConsequences>>>,
     trade_job: Option<Job<Answer<Trade>>>,
 }
 
@@ -112,6 +133,7 @@ impl AvoidPanel {
             inputs,
             dv_ric_m_s: [0.0, 0.05, 0.0],
             effect: None,
+            consequences: None,
             trade: None,
             effect_job: None,
             trade_job: None,
@@ -137,13 +159,25 @@ impl AvoidPanel {
     pub fn trade(&self) -> Option<&Answer<Trade>> {
         self.trade.as_ref()
     }
+    pub fn consequences(&self) -> Option<&Answer<Consequences>> {
+        self.consequences.as_ref()
+    }
 
     fn poll(&mut self) {
         if let Some(j) = &self.effect_job {
             match j.poll() {
                 Poll::Running => {}
                 Poll::Done(r) => {
-                    self.effect = Some(r);
+                    match r {
+                        Ok((e, c)) => {
+                            self.effect = Some(Ok(e));
+                            self.consequences = Some(c);
+                        }
+                        Err(e) => {
+                            self.effect = Some(Err(e));
+                            self.consequences = None;
+                        }
+                    }
                     self.effect_job = None;
                 }
                 Poll::Lost => {
@@ -222,10 +256,12 @@ impl AvoidPanel {
                     "Burn effect",
                     0,
                     Some(ui.ctx().clone()),
-                    move |_| {
-                        with_conjunction(&inputs, |c| {
+                    move |p| {
+                        let effect = with_conjunction(&inputs, |c| {
                             burn_effect(c, inputs.tca, burn).map_err(|e| e.to_string())
-                        })
+                        })?;
+                        let found = consequences_of(&inputs, burn, effect.before.tca, p);
+                        Ok((effect, found))
                     },
                 ));
             }
@@ -277,6 +313,16 @@ impl AvoidPanel {
             }
             None => {}
         }
+        match &self.consequences {
+            Some(Ok((events, shifts))) => consequences_ui(ui, events, shifts),
+            Some(Err(e)) => {
+                ui.colored_label(
+                    palette::VERMILLION,
+                    format!("New close approaches and contact shifts not found: {e}"),
+                );
+            }
+            None => {}
+        }
         match &self.trade {
             Some(Ok(t)) => {
                 let chosen = (
@@ -291,6 +337,109 @@ impl AvoidPanel {
             None => {}
         }
     }
+}
+
+/// Screens the manoeuvred trajectory for a week and compares the next day's
+/// contact windows (the planner's `avoid::consequences`, as `passlane avoid`).
+fn consequences_of(
+    inputs: &AvoidInputs,
+    burn: Burn,
+    tca: UtcTime,
+    progress: &dyn Progress,
+) -> Answer<Consequences> {
+    let prop = Propagator::new(&inputs.primary).map_err(|e| e.to_string())?;
+    let horizon = burn.time.add_s(HORIZON_DAYS * 86_400.0);
+    let moved = Manoeuvred::new(
+        &prop,
+        burn,
+        Drag::from_bstar(inputs.primary.bstar_per_earth_radii),
+        horizon,
+    )
+    .map_err(|e| e.to_string())?;
+    let entry =
+        manoeuvred_entry(&inputs.primary, &moved, burn.time, horizon).map_err(|e| e.to_string())?;
+    Ok(consequences(
+        &ConsequenceRequest {
+            primary: &inputs.primary,
+            others: &inputs.others,
+            scenario: &inputs.scenario,
+            volume: ScreeningVolume::Sphere {
+                radius_km: inputs.scenario.screening.threshold_km,
+            },
+            from: burn.time,
+            to: horizon,
+            avoided: Some((inputs.secondary.catalog_number, tca)),
+            stations: &inputs.scenario.stations,
+            contacts_until: burn.time.add_s(CONTACT_HOURS * 3_600.0),
+        },
+        &entry,
+        progress,
+    ))
+}
+
+fn consequences_ui(ui: &mut Ui, events: &[NewEvent], shifts: &[ContactShift]) {
+    ui.separator();
+    ui.strong(format!(
+        "Close approaches this burn creates or worsens in the {HORIZON_DAYS:.0} days after it"
+    ));
+    if events.is_empty() {
+        ui.label("None found (screened against the catalog and the rest of the fleet).");
+    }
+    for x in events {
+        let e = &x.event;
+        ui.label(format!(
+            "{}: {} / {} at {}, miss {:.3} km{}, Pc {}",
+            x.change,
+            e.primary,
+            e.secondary,
+            time_label(e.tca),
+            e.miss_distance_km,
+            x.before_miss_distance_km
+                .map(|m| format!(" (was {m:.3} km)"))
+                .unwrap_or_default(),
+            pc_text(x.risk.as_ref().ok().map(|r| r.pc))
+        ));
+    }
+    ui.strong(format!(
+        "Contact windows in the {CONTACT_HOURS:.0} hours after the burn"
+    ));
+    egui::Grid::new("burn-contact-shifts")
+        .striped(true)
+        .num_columns(4)
+        .show(ui, |ui| {
+            for h in [
+                "station",
+                "AOS before",
+                "AOS / LOS shift (s)",
+                "max elevation (deg)",
+            ] {
+                ui.strong(h);
+            }
+            ui.end_row();
+            for c in shifts {
+                ui.label(&c.station);
+                ui.label(
+                    c.aos_before
+                        .or(c.aos_after)
+                        .map(time_label)
+                        .unwrap_or_default(),
+                );
+                ui.label(match (c.aos_shift_s, c.los_shift_s, c.aos_before) {
+                    (Some(a), Some(l), _) => format!("{a:+.1} / {l:+.1}"),
+                    (_, _, Some(_)) => "gone".to_string(),
+                    _ => "new".to_string(),
+                });
+                ui.label(
+                    match (c.max_elevation_before_deg, c.max_elevation_after_deg) {
+                        (Some(b), Some(a)) => format!("{b:.1} -> {a:.1}"),
+                        (Some(b), None) => format!("{b:.1} -> -"),
+                        (None, Some(a)) => format!("- -> {a:.1}"),
+                        _ => String::new(),
+                    },
+                );
+                ui.end_row();
+            }
+        });
 }
 
 fn pc_text(p: Option<f64>) -> String {
