@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Fuzzes the readers of untrusted files (TLE, OMM KVN/XML/JSON, CDM, scenario).
+# Fuzzes the readers of untrusted files (TLE, OMM KVN/XML/JSON, CDM, scenario, OEM).
 #
 # usage: bash scripts/fuzz.sh BUDGET_SECONDS [TARGET...]
 #
@@ -23,7 +23,7 @@ if ! [[ "$budget" =~ ^[0-9]+$ ]] || [ "$budget" -eq 0 ]; then
     exit 2
 fi
 shift
-all_targets=(tle omm_kvn omm_xml omm_json cdm scenario)
+all_targets=(tle omm_kvn omm_xml omm_json cdm scenario oem)
 if [ "$#" -gt 0 ]; then targets=("$@"); else targets=("${all_targets[@]}"); fi
 
 if ! cargo fuzz --version >/dev/null 2>&1; then
@@ -49,6 +49,7 @@ seed omm_xml fuzz/seeds/omm_xml/*
 seed omm_json fuzz/seeds/omm_json/*
 seed cdm crates/passlane-plan/tests/fixtures/cdm/*
 seed scenario scenarios/*.json
+seed oem tests/fixtures/*.oem
 
 sanitizer=address
 if ! (cd fuzz && cargo fuzz build --sanitizer "$sanitizer" "${targets[0]}" >/dev/null 2>&1); then

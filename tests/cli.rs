@@ -1145,3 +1145,89 @@ fn an_oem_from_the_plan_is_a_spacecrafts_motion_for_passes() {
     assert!(err.contains("bad.oem:2: error: CREATION_DATE"), "{err}");
     assert!(out.status.success(), "the element sets still load");
 }
+
+#[test]
+fn ut1_utc_given_on_the_command_line_reads_an_earth_fixed_ephemeris() {
+    // An ITRF OEM made from the tool's own Earth-fixed states with UT1-UTC =
+    // 0.4 s reads back onto the element set's TEME states only when the same
+    // UT1-UTC is given (0.4 s of Earth rotation is ~190 m at this orbit).
+    let dir = tmp("itrf-ut1");
+    std::fs::create_dir_all(&dir).unwrap();
+    let window = [
+        "--start",
+        "2026-12-01T00:00:00Z",
+        "--end",
+        "2026-12-01T01:00:00Z",
+        "--step-s",
+        "60",
+        "--format",
+        "json",
+    ];
+    let states = |extra: &[&str]| {
+        let mut a = vec!["ephemeris"];
+        a.extend(window);
+        a.extend(extra);
+        ok_json(&a).as_array().unwrap().clone()
+    };
+    let ecef = states(&[
+        "--elements",
+        "scenarios/demo-fleet.tle",
+        "--satellite",
+        "90001",
+        "--frame",
+        "earth-fixed",
+        "--ut1-utc-s",
+        "0.4",
+    ]);
+    let mut oem = String::from(
+        "CCSDS_OEM_VERS = 3.0\nCREATION_DATE = 2026-11-30T12:00:00.000\nORIGINATOR = TEST\n\
+         META_START\nOBJECT_NAME = KRSL-1 ORMIVEL\nOBJECT_ID = 2026-901A\nCENTER_NAME = EARTH\n\
+         REF_FRAME = ITRF2000\nTIME_SYSTEM = UTC\nSTART_TIME = 2026-12-01T00:00:00.000\n\
+         STOP_TIME = 2026-12-01T01:00:00.000\nINTERPOLATION = LAGRANGE\nINTERPOLATION_DEGREE = 9\nMETA_STOP\n",
+    );
+    for r in &ecef {
+        let p = r["position_km"].as_array().unwrap();
+        let v = r["velocity_km_s"].as_array().unwrap();
+        let t = r["time"].as_str().unwrap().trim_end_matches('Z');
+        oem.push_str(&format!(
+            "{t} {} {} {} {} {} {}\n",
+            p[0], p[1], p[2], v[0], v[1], v[2]
+        ));
+    }
+    let file = dir.join("itrf.oem");
+    std::fs::write(&file, oem).unwrap();
+    let spec = format!("90001={}", file.display());
+    let teme = states(&[
+        "--elements",
+        "scenarios/demo-fleet.tle",
+        "--satellite",
+        "90001",
+    ]);
+    let worst = |extra: &[&str]| {
+        let mut a = vec!["--ephemeris", spec.as_str()];
+        a.extend(extra);
+        let got = states(&a);
+        assert_eq!(got.len(), teme.len());
+        got.iter()
+            .zip(&teme)
+            .map(|(g, t)| {
+                (0..3)
+                    .map(|k| {
+                        let d = g["position_km"][k].as_f64().unwrap()
+                            - t["position_km"][k].as_f64().unwrap();
+                        d * d
+                    })
+                    .sum::<f64>()
+                    .sqrt()
+                    * 1000.0
+            })
+            .fold(0.0, f64::max)
+    };
+    let same = worst(&["--ut1-utc-s", "0.4"]);
+    let unset = worst(&[]);
+    assert!(
+        same < 0.01,
+        "read with the UT1-UTC it was made with: {same} m"
+    );
+    assert!(unset > 100.0, "read with UT1-UTC = 0: {unset} m");
+}

@@ -182,7 +182,7 @@ pub struct WindowArgs {
 
 #[derive(Debug, Args)]
 pub struct EarthOrientationArgs {
-    /// UT1-UTC in seconds [default: the scenario's earth_orientation.ut1_utc_s, else 0]
+    /// UT1-UTC in seconds, also used to read an Earth-fixed (ITRF) --ephemeris [default: the scenario's earth_orientation.ut1_utc_s, else 0]
     #[arg(long, value_name = "S", value_parser = finite_f64, help_heading = "Earth orientation", allow_hyphen_values = true)]
     pub ut1_utc_s: Option<f64>,
 }

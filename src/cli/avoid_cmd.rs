@@ -196,6 +196,7 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
         start: None,
         end: None,
         lenient: args.fleet.lenient,
+        ut1_utc_s: None,
     };
     let inputs = common::gather(&sources, false)?;
     let mut catalog_paths = args.catalog.clone();

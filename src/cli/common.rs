@@ -128,6 +128,9 @@ pub struct Sources<'a> {
     pub start: Option<UtcTime>,
     pub end: Option<UtcTime>,
     pub lenient: bool,
+    /// `--ut1-utc-s`, where the command has it: also used to turn an
+    /// Earth-fixed (ITRF) ephemeris into TEME at load.
+    pub ut1_utc_s: Option<f64>,
 }
 
 impl<'a> Sources<'a> {
@@ -141,7 +144,12 @@ impl<'a> Sources<'a> {
             start: window.and_then(|w| w.start),
             end: window.and_then(|w| w.end),
             lenient: fleet.lenient,
+            ut1_utc_s: None,
         }
+    }
+
+    pub fn with_ut1_utc_s(self, ut1_utc_s: Option<f64>) -> Self {
+        Sources { ut1_utc_s, ..self }
     }
 
     pub fn with_stations(self, stations: &'a StationArgs) -> Self {
@@ -200,10 +208,13 @@ pub fn gather(sources: &Sources, need_stations: bool) -> Result<Inputs> {
         load_fleet(&element_paths, sources.lenient)?
     };
     if !ephemerides.is_empty() {
-        let eop = scenario
+        let mut eop = scenario
             .as_ref()
             .map(|(_, s)| s.earth_orientation)
             .unwrap_or_default();
+        if let Some(v) = sources.ut1_utc_s {
+            eop.ut1_utc_s = v;
+        }
         attach_ephemerides(&mut sets, &ephemerides, &eop)?;
         if sets.is_empty() {
             bail!("nothing loaded: no element set, and no ephemeris could be used");

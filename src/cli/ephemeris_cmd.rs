@@ -29,7 +29,11 @@ enum Row {
 }
 
 pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
-    let inputs = common::gather(&Sources::new(&args.fleet, Some(&args.window)), false)?;
+    let inputs = common::gather(
+        &Sources::new(&args.fleet, Some(&args.window))
+            .with_ut1_utc_s(args.earth_orientation.ut1_utc_s),
+        false,
+    )?;
     let (start, end) = common::window(&inputs)?;
     let step_s = args.step_s;
     if step_s <= 0.0 {

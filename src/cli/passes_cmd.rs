@@ -40,7 +40,9 @@ fn min_elevation(value: Option<f64>) -> Result<Option<f64>> {
 }
 
 pub fn run(args: &PassesArgs, out: &mut dyn Write) -> Result<()> {
-    let sources = Sources::new(&args.fleet, Some(&args.window)).with_stations(&args.stations);
+    let sources = Sources::new(&args.fleet, Some(&args.window))
+        .with_stations(&args.stations)
+        .with_ut1_utc_s(args.earth_orientation.ut1_utc_s);
     let inputs = common::gather(&sources, true)?;
     let (start, end) = common::window(&inputs)?;
     let format = Format::from(args.format);
@@ -202,7 +204,9 @@ fn write_table(
 }
 
 pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
-    let sources = Sources::new(&args.fleet, None).with_stations(&args.stations);
+    let sources = Sources::new(&args.fleet, None)
+        .with_stations(&args.stations)
+        .with_ut1_utc_s(args.earth_orientation.ut1_utc_s);
     let inputs = common::gather(&sources, true)?;
     let sat = common::pick_satellite(&inputs.sets, &args.satellite)?;
     let station: &Station = if inputs.stations.len() == 1 {

@@ -7,6 +7,7 @@
 //! be pointed at the right file ([`Document::relocate_file`]). Saving into
 //! another folder keeps every element file reachable ([`paths`]).
 
+pub mod messages;
 pub mod paths;
 
 use std::path::{Path, PathBuf};

@@ -28,6 +28,7 @@ use crate::jobs::{Job, Poll, progress_ui};
 use crate::palette;
 use crate::state::{AppState, time_label};
 use crate::views::avoid::{AvoidInputs, AvoidPanel};
+use crate::views::cdm_trend::CdmTrendView;
 use crate::views::fleet::STALE_AFTER_DAYS;
 use crate::widgets;
 
@@ -111,6 +112,8 @@ pub struct ApproachesView {
     plane_axes: (AxisTicks, AxisTicks),
     /// The selection the range, cursor and map were last updated for.
     shown_selection: Option<usize>,
+    /// Conjunction messages received, and their trend.
+    pub messages: CdmTrendView,
 }
 
 impl Default for ApproachesView {
@@ -132,6 +135,7 @@ impl Default for ApproachesView {
             range_axes: Default::default(),
             plane_axes: Default::default(),
             shown_selection: None,
+            messages: CdmTrendView::default(),
         }
     }
 }
@@ -210,7 +214,12 @@ impl ApproachesView {
         egui::ScrollArea::vertical()
             .id_salt("approaches-scroll")
             .auto_shrink([false, false])
-            .show(ui, |ui| self.contents(ui, state, avail_h));
+            .show(ui, |ui| {
+                self.contents(ui, state, avail_h);
+                ui.separator();
+                let w = ui.available_width();
+                self.messages.ui(ui, w);
+            });
     }
 
     fn contents(&mut self, ui: &mut egui::Ui, state: &mut AppState, avail_h: f32) {
@@ -445,6 +454,15 @@ impl ApproachesView {
                         tca: row.tca,
                         assumed: AssumedCovariance::from_scenario(&state.doc.scenario),
                         hard_body_radius_m: hbr,
+                        others: state
+                            .doc
+                            .fleet
+                            .iter()
+                            .chain(&state.doc.catalog)
+                            .filter(|x| x.catalog_number != p)
+                            .cloned()
+                            .collect(),
+                        scenario: state.doc.scenario.clone(),
                     }));
                 }
             } else {

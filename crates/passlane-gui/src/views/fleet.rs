@@ -327,6 +327,7 @@ fn spacecraft(ui: &mut Ui, state: &mut AppState) {
                 ui.end_row();
             }
         });
+    ui.small(passlane_orbit::summary::SEMI_MAJOR_AXIS_NOTE);
     ui.add_space(8.0);
     ui.heading("Demands, priorities and hard-body radii");
     ui.label("What each spacecraft needs from the network each day (the plan), and its size for collision probability.");

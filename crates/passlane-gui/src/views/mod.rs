@@ -4,6 +4,7 @@
 
 pub mod approaches;
 pub mod avoid;
+pub mod cdm_trend;
 pub mod fleet;
 pub mod map;
 pub mod passlist;

@@ -421,7 +421,26 @@ fn the_avoidance_what_if_shows_a_burns_effect_with_its_caution() {
         .and_then(|p| p.effect())
         .is_some_and(|e| e.is_ok());
     assert!(ok, "the burn's effect is computed");
-    assert!(h.query_by_label_contains("after").is_some());
+    assert!(h.query_by_label("after the burn").is_some());
+    // And what else it changes: looked for, and shown.
+    let looked = h
+        .state()
+        .approaches()
+        .avoid_panel()
+        .and_then(|p| p.consequences())
+        .is_some_and(|c| c.is_ok());
+    assert!(
+        looked,
+        "new close approaches and contact shifts are computed"
+    );
+    assert!(
+        h.query_by_label_contains("Close approaches this burn creates or worsens")
+            .is_some()
+    );
+    assert!(
+        h.query_by_label_contains("Contact windows in the 24 hours after the burn")
+            .is_some()
+    );
 }
 
 #[test]
@@ -463,5 +482,79 @@ fn two_files_with_the_same_problems_each_open_their_own_diagnostics() {
     assert_eq!(h.query_all_by_label_contains("b.tle:").count(), 0);
     // No lenient mode is mentioned that the window does not offer: it offers one.
     assert!(h.query_by_label_contains("Lenient mode").is_some());
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn conjunction_messages_of_one_event_show_their_trend_and_a_bad_one_its_reason() {
+    // Three messages of one event received a day apart (the planner's CDM
+    // fixture with its creation date and ID changed), plus one refused.
+    let dir = scratch("cdm-trend");
+    let base = std::fs::read_to_string(
+        repo().join("crates/passlane-plan/tests/fixtures/cdm/ormivel_vs_debris_99871.kvn"),
+    )
+    .expect("fixture");
+    for (k, created) in [
+        "2026-11-28T08:00:00.000",
+        "2026-11-29T08:00:00.000",
+        "2026-11-30T08:00:00.000",
+    ]
+    .iter()
+    .enumerate()
+    {
+        let text = base
+            .replace("2026-11-30T08:00:00.000Z", created)
+            .replace("KRSL-20261130-0001", &format!("KRSL-TREND-{k}"));
+        std::fs::write(dir.join(format!("msg-{k}.kvn")), text).expect("write");
+    }
+    std::fs::copy(
+        repo().join("crates/passlane-plan/tests/fixtures/cdm/bad_missing_miss_distance.kvn"),
+        dir.join("refused.kvn"),
+    )
+    .expect("copy");
+    let mut h = harness(app());
+    wait_for_passes(&mut h);
+    h.get_by_label("Close approaches").click();
+    h.run_steps(2);
+    type_into(&mut h, "Message file or folder", &dir.display().to_string());
+    h.run_steps(3);
+    let view = &h.state().approaches().messages;
+    assert_eq!(view.groups().len(), 1, "one event");
+    let rows = &view.groups()[0].rows;
+    assert_eq!(rows.len(), 3, "three messages, one row each");
+    assert!(
+        rows.windows(2)
+            .all(|w| w[0].creation_date < w[1].creation_date),
+        "oldest first"
+    );
+    assert!(
+        rows.iter().all(|r| r.pc.is_some()),
+        "each message re-assessed"
+    );
+    let errors = view.errors().to_vec();
+    assert_eq!(errors.len(), 1, "{errors:?}");
+    assert!(
+        errors[0].contains("refused.kvn") && errors[0].contains("MISS_DISTANCE"),
+        "{}",
+        errors[0]
+    );
+    assert!(
+        h.query_by_label_contains("3 message(s), oldest first")
+            .is_some()
+    );
+    assert!(
+        h.query_by_label_contains("refused.kvn").is_some(),
+        "the refused file is shown with its reason"
+    );
+    h.get_by_label("Clear messages").scroll_to_me();
+    h.run_steps(3);
+    let ticks = h.state().approaches().messages.miss_tick_labels(0);
+    let Some((x, y)) = ticks else {
+        unreachable!("one group has its plots")
+    };
+    assert!(
+        x.len() >= 2 && !y.is_empty(),
+        "the trend plot has labelled axes: {x:?} {y:?}"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
