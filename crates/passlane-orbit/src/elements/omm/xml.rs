@@ -7,7 +7,7 @@ use super::super::{LoadReport, Severity};
 use super::{KEYWORDS, Record, diag, note_if_empty, utf8};
 
 pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadReport) {
-    let (sets_before, diags_before) = (report.sets.len(), report.diagnostics.len());
+    let (sets_before, diags_before) = (report.sets.len(), report.finding_count());
     let Some(text) = utf8(bytes, file, report) else {
         return;
     };
@@ -15,7 +15,7 @@ pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadR
         Ok(doc) => doc,
         Err(e) => {
             let pos = e.pos();
-            report.diagnostics.push(diag(
+            report.push(diag(
                 file,
                 Severity::Error,
                 pos.row as usize,
@@ -59,7 +59,7 @@ pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadR
         rec.finish(report);
     }
     if !found {
-        report.diagnostics.push(diag(
+        report.push(diag(
             file,
             Severity::Error,
             line_of(doc.root_element()),
