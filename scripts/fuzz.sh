@@ -47,7 +47,7 @@ seed tle scenarios/*.tle tests/fixtures/*.tle tests/fixtures/sgp4-verification/*
 seed omm_kvn fuzz/seeds/omm_kvn/*
 seed omm_xml fuzz/seeds/omm_xml/*
 seed omm_json fuzz/seeds/omm_json/*
-seed cdm crates/passlane-plan/tests/fixtures/cdm/*
+seed cdm crates/passlane-plan/tests/fixtures/cdm/* fuzz/seeds/cdm/*
 seed scenario scenarios/*.json
 seed oem tests/fixtures/*.oem
 

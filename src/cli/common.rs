@@ -23,6 +23,9 @@ pub fn load_elements(paths: &[PathBuf], lenient: bool) -> Result<LoadReport> {
     for d in &report.diagnostics {
         eprintln!("{d}");
     }
+    if let Some(note) = report.omitted_note() {
+        eprintln!("{note}");
+    }
     Ok(report)
 }
 

@@ -109,13 +109,13 @@ pub fn run(args: &ElementsArgs, out: &mut dyn Write) -> Result<()> {
                     r.eccentricity
                 )?;
             }
-            let errors = report.errors().count();
             writeln!(
                 out,
-                "\n{} element set(s) loaded; {} record(s) rejected, {} warning(s) (details on stderr). Ages at {}.",
+                "\n{} element set(s) loaded; {} record(s) rejected ({} error(s)), {} warning(s) (details on stderr). Ages at {}.",
                 rows.len(),
-                errors,
-                report.diagnostics.len() - errors,
+                report.rejected_records,
+                report.error_count(),
+                report.warning_count(),
                 at.to_iso_s()
             )?;
             writeln!(out, "{}", passlane_orbit::summary::SEMI_MAJOR_AXIS_NOTE)?;

@@ -1,64 +1,203 @@
-//! Element loader speed on a 50 MB catalog with bad records mixed in (the
-//! test `tests/huge_input.rs` checks what loads and the memory; this measures
-//! how fast).
+//! Element loader speed and peak memory on 50 MB files of each format: TLE,
+//! OMM KVN, OMM XML and OMM JSON, with bad records mixed in (the test
+//! `tests/huge_input.rs` checks what loads; this measures how fast, and how
+//! much memory a reader takes beside the input).
 //!
-//! Run: `cargo bench -p passlane-orbit --bench loader`. The file is the 1,000
-//! records of `tests/fixtures/bench-1000.tle` repeated (so most records are
-//! duplicates that the loader reduces to the newest epoch, with a warning
-//! each), with a junk line and a record with a broken checksum every ten.
+//! Run: `cargo bench -p passlane-orbit --bench loader`. Each file repeats the
+//! 1,000 records of `tests/fixtures/bench-1000.tle` (so most records are
+//! duplicates that the loader reduces to the newest epoch, with a counted
+//! warning each); every tenth record is bad (a broken checksum, or a
+//! non-number in an OMM field) and, in the TLE file, a junk line comes every
+//! ten records.
+//!
+//! Each format runs in a child process of its own (this same binary with
+//! `PASSLANE_LOADER_BENCH_FORMAT` set), so its peak resident memory (VmHWM)
+//! is its own: the child builds the file, notes its peak, loads, and reports
+//! how much the peak grew. That growth is compared with the size of the good
+//! records in the file (target: under 2× plus a constant).
 
-#![allow(clippy::panic)]
+#![allow(clippy::panic, clippy::unwrap_used, clippy::expect_used)]
 
+#[path = "support/mod.rs"]
+mod support;
+
+use std::fmt::Write as _;
 use std::path::PathBuf;
 use std::time::Instant;
 
-use passlane_orbit::{LoadOptions, elements};
+use passlane_orbit::{ElementSet, LoadOptions, elements};
+
+const TARGET_BYTES: usize = 50 * 1024 * 1024;
+const FORMATS: [&str; 4] = ["tle", "omm-kvn", "omm-xml", "omm-json"];
+const CHILD_VAR: &str = "PASSLANE_LOADER_BENCH_FORMAT";
 
 fn main() {
+    if let Ok(format) = std::env::var(CHILD_VAR) {
+        one(&format);
+        return;
+    }
+    let exe = std::env::current_exe().expect("the bench's own path");
+    for format in FORMATS {
+        let status = std::process::Command::new(&exe)
+            .env(CHILD_VAR, format)
+            .status()
+            .expect("run the bench for one format");
+        assert!(status.success(), "{format}: {status}");
+    }
+}
+
+/// The fixture's 1,000 records, as loaded element sets and as TLE text.
+fn fixture() -> (Vec<ElementSet>, Vec<[String; 3]>) {
     let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..");
-    let fixture = std::fs::read_to_string(repo.join("tests/fixtures/bench-1000.tle"))
+    let text = std::fs::read_to_string(repo.join("tests/fixtures/bench-1000.tle"))
         .unwrap_or_else(|e| panic!("bench-1000.tle: {e}"));
-    let lines: Vec<&str> = fixture.lines().collect();
-    let records: Vec<&[&str]> = lines.chunks(3).filter(|c| c.len() == 3).collect();
-    const TARGET_BYTES: usize = 50 * 1024 * 1024;
-    let mut text = String::with_capacity(TARGET_BYTES + 1024);
+    let lines: Vec<&str> = text.lines().filter(|l| !l.starts_with('#')).collect();
+    let tle: Vec<[String; 3]> = lines
+        .chunks(3)
+        .filter(|c| c.len() == 3)
+        .map(|c| [c[0].to_string(), c[1].to_string(), c[2].to_string()])
+        .collect();
+    let sets =
+        elements::load_records(text.as_bytes(), "bench-1000.tle", LoadOptions::default()).sets;
+    assert_eq!(sets.len(), tle.len());
+    (sets, tle)
+}
+
+/// `KEYWORD → value` pairs of one OMM; `bad` puts a non-number in ECCENTRICITY.
+fn omm_pairs(s: &ElementSet, bad: bool) -> Vec<(&'static str, String)> {
+    let epoch = s.epoch.to_iso_us();
+    vec![
+        ("OBJECT_NAME", s.name.clone()),
+        ("CENTER_NAME", "EARTH".into()),
+        ("REF_FRAME", "TEME".into()),
+        ("TIME_SYSTEM", "UTC".into()),
+        ("MEAN_ELEMENT_THEORY", "SGP4".into()),
+        ("EPOCH", epoch.trim_end_matches('Z').to_string()),
+        ("MEAN_MOTION", format!("{:.8}", s.mean_motion_rev_day)),
+        (
+            "ECCENTRICITY",
+            if bad {
+                "NaN".into()
+            } else {
+                format!("{:.7}", s.eccentricity)
+            },
+        ),
+        ("INCLINATION", format!("{:.4}", s.inclination_deg)),
+        ("RA_OF_ASC_NODE", format!("{:.4}", s.raan_deg)),
+        ("ARG_OF_PERICENTER", format!("{:.4}", s.arg_perigee_deg)),
+        ("MEAN_ANOMALY", format!("{:.4}", s.mean_anomaly_deg)),
+        ("EPHEMERIS_TYPE", "0".into()),
+        ("CLASSIFICATION_TYPE", "U".into()),
+        ("NORAD_CAT_ID", s.catalog_number.to_string()),
+        ("ELEMENT_SET_NO", s.element_set_number.to_string()),
+        ("REV_AT_EPOCH", s.revolution_number.to_string()),
+        ("BSTAR", format!("{:e}", s.bstar_per_earth_radii)),
+        (
+            "MEAN_MOTION_DOT",
+            format!("{:.8}", s.mean_motion_dot_rev_day2),
+        ),
+        ("MEAN_MOTION_DDOT", "0".into()),
+    ]
+}
+
+/// One record of `format` appended to `out`.
+fn push_record(out: &mut String, format: &str, i: usize, sets: &[ElementSet], tle: &[[String; 3]]) {
+    let k = i % sets.len();
+    let bad = i % 10 == 3;
+    match format {
+        "tle" => {
+            let r = &tle[k];
+            if bad {
+                // Line 2 with its checksum digit changed.
+                let (body, sum) = r[2].split_at(r[2].len() - 1);
+                let wrong = (sum.as_bytes()[0] - b'0' + 1) % 10;
+                let _ = writeln!(out, "{}\n{}\n{body}{wrong}", r[0], r[1]);
+            } else {
+                let _ = writeln!(out, "{}\n{}\n{}", r[0], r[1], r[2]);
+            }
+        }
+        "omm-kvn" => {
+            out.push_str(
+                "CCSDS_OMM_VERS = 2.0\nCREATION_DATE = 2026-12-01T00:00:00\nORIGINATOR = BENCH\n",
+            );
+            for (k, v) in omm_pairs(&sets[k], bad) {
+                let _ = writeln!(out, "{k} = {v}");
+            }
+        }
+        "omm-xml" => {
+            out.push_str("<omm id=\"CCSDS_OMM_VERS\" version=\"2.0\"><header><CREATION_DATE>2026-12-01T00:00:00</CREATION_DATE><ORIGINATOR>BENCH</ORIGINATOR></header>\n<body><segment><metadata/><data>\n");
+            for (k, v) in omm_pairs(&sets[k], bad) {
+                let _ = writeln!(out, "<{k}>{v}</{k}>");
+            }
+            out.push_str("</data></segment></body></omm>\n");
+        }
+        "omm-json" => {
+            if i > 0 {
+                out.push_str(",\n");
+            }
+            let body: Vec<String> = omm_pairs(&sets[k], bad)
+                .into_iter()
+                .map(|(k, v)| format!("\"{k}\": \"{v}\""))
+                .collect();
+            let _ = write!(out, "{{{}}}", body.join(",\n"));
+        }
+        _ => panic!("unknown format {format}"),
+    }
+    if format == "tle" && i % 10 == 7 {
+        out.push_str("this line is not part of any element set, on purpose\n");
+    }
+}
+
+fn one(format: &str) {
+    let (sets, tle) = fixture();
+    let mut text = String::with_capacity(TARGET_BYTES + 64 * 1024);
+    let (open, close) = match format {
+        "omm-xml" => ("<?xml version=\"1.0\"?>\n<ndm>\n", "</ndm>\n"),
+        "omm-json" => ("[\n", "\n]\n"),
+        _ => ("", ""),
+    };
+    text.push_str(open);
+    let (mut good_bytes, mut good) = (0usize, 0usize);
     let mut i = 0usize;
     while text.len() < TARGET_BYTES {
-        let r = records[i % records.len()];
-        match i % 10 {
-            3 => {
-                // Line 2 with its checksum digit changed.
-                let l2 = r[2];
-                let (body, sum) = l2.split_at(l2.len() - 1);
-                let wrong = (sum.as_bytes()[0] - b'0' + 1) % 10;
-                text.push_str(&format!("{}\n{}\n{body}{wrong}\n", r[0], r[1]));
-            }
-            7 => text.push_str("this line is not part of any element set, on purpose\n"),
-            _ => {
-                for l in r {
-                    text.push_str(l);
-                    text.push('\n');
-                }
-            }
+        let before = text.len();
+        push_record(&mut text, format, i, &sets, &tle);
+        if i % 10 != 3 {
+            good_bytes += text.len() - before;
+            good += 1;
         }
         i += 1;
     }
+    text.push_str(close);
     let bytes = text.into_bytes();
+    drop((sets, tle));
+
+    // The first load measures memory (the peak so far covers the input);
+    // the best of three measures speed.
+    let peak_before_mb = support::max_rss_mb();
     let mut best = f64::INFINITY;
+    let mut grown_mb = f64::NAN;
     let mut last = None;
-    for _ in 0..3 {
+    for run in 0..3 {
         let t0 = Instant::now();
-        let report = elements::load(&bytes, "bench-50mb.tle", LoadOptions::default());
+        let report = elements::load(&bytes, "bench-50mb", LoadOptions::default());
         best = best.min(t0.elapsed().as_secs_f64());
+        if run == 0 {
+            grown_mb = support::max_rss_mb() - peak_before_mb;
+        }
         last = Some(report);
     }
     let report = last.unwrap_or_default();
     let mb = bytes.len() as f64 / 1e6;
+    let good_mb = good_bytes as f64 / 1e6;
     println!(
-        "loader: {mb:.1} MB, {} sets, {} errors, {} diagnostics in {best:.3} s (best of 3) = {:.0} MB/s",
+        "loader {format:>8}: {mb:.1} MB, {i} records ({} good, {} distinct kept), {} rejected, {} errors, {} warnings; {best:.3} s (best of 3) = {:.0} MB/s; peak memory +{grown_mb:.1} MB beside the input = {:.2}× the good records ({good_mb:.1} MB)",
+        good,
         report.sets.len(),
-        report.errors().count(),
-        report.diagnostics.len(),
-        mb / best
+        report.rejected_records,
+        report.error_count(),
+        report.warning_count(),
+        mb / best,
+        grown_mb / good_mb,
     );
 }

@@ -351,3 +351,64 @@ fn oem_giant_line_nul_bytes_and_deep_xml() {
     let (eph, d) = load_oem(deep.as_bytes(), "deep.xml", &eop);
     assert!(eph.is_none() && !d.is_empty());
 }
+
+// ---------------------------------------------------------------------------
+// Bounded diagnostics (issue 12, item 2): a file of junk keeps the first
+// findings in full and counts the rest exactly, so memory follows the good
+// records, not the junk.
+
+#[test]
+fn junk_tle_lines_keep_the_first_findings_and_count_the_rest() {
+    use passlane_orbit::elements::MAX_DIAGNOSTICS_KEPT;
+    // 500,000 pairs of a bare `1` and `2` line (2 MB): each pair is one
+    // record with two findings (both lines too short).
+    let pairs = 500_000;
+    let mut bytes = "1\n2\n".repeat(pairs).into_bytes();
+    bytes.extend_from_slice(ormivel().as_bytes());
+    let r = load(&bytes, "junk.tle", STRICT);
+    assert_eq!(r.sets.len(), 1, "the good record still loads");
+    assert_eq!(r.diagnostics.len(), MAX_DIAGNOSTICS_KEPT);
+    assert_eq!(r.error_count(), 2 * pairs, "every finding is counted");
+    assert_eq!(r.omitted_errors, 2 * pairs - MAX_DIAGNOSTICS_KEPT);
+    assert_eq!(r.rejected_records, pairs, "one rejected record per pair");
+    let note = r.omitted_note().unwrap();
+    assert!(note.contains("999,900 more"), "{note}");
+}
+
+#[test]
+fn junk_omm_messages_keep_the_first_findings_and_count_the_rest() {
+    use passlane_orbit::elements::MAX_DIAGNOSTICS_KEPT;
+    let messages = 20_000;
+    let good = kvn(&pairs_with("", ""));
+    let junk = "CCSDS_OMM_VERS = 2.0\nOBJECT_NAME = X\n".repeat(messages);
+    let r = load((junk + &good).as_bytes(), "junk.kvn", STRICT);
+    assert_eq!(r.sets.len(), 1, "{:?}", &r.diagnostics[..3]);
+    assert_eq!(r.diagnostics.len(), MAX_DIAGNOSTICS_KEPT);
+    assert_eq!(r.rejected_records, messages);
+    // Each empty message misses the same mandatory keywords.
+    assert_eq!(r.error_count() % messages, 0);
+    assert!(r.error_count() > messages);
+}
+
+#[test]
+fn junk_oem_data_lines_keep_the_first_findings_and_count_the_rest() {
+    use passlane_orbit::elements::MAX_DIAGNOSTICS_KEPT;
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    let bad_lines = 50_000;
+    let junk = "2026-12-01T00:02:30 x 0 0 0 0 0\n".repeat(bad_lines);
+    let text = OEM.replace("2026-12-01T00:03:00", &format!("{junk}2026-12-01T00:03:00"));
+    let (eph, d) = load_oem(text.as_bytes(), "junk.oem", &eop);
+    assert_eq!(eph.map(|e| e.segments[0].node_count()), Some(5));
+    assert_eq!(
+        d.len(),
+        MAX_DIAGNOSTICS_KEPT + 1,
+        "kept + one closing count"
+    );
+    let last = d.last().unwrap();
+    let expected = format!(
+        "… and {} more",
+        passlane_orbit::elements::thousands(bad_lines - MAX_DIAGNOSTICS_KEPT)
+    );
+    assert!(last.message.starts_with(&expected), "{last}");
+}

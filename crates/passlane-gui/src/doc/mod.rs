@@ -323,7 +323,7 @@ impl Document {
         let options = LoadOptions {
             lenient: self.lenient,
         };
-        let report = passlane_orbit::elements::load(bytes, name, options);
+        let mut report = passlane_orbit::elements::load(bytes, name, options);
         let n = report.sets.len();
         let target = if own_fleet {
             &mut self.fleet
@@ -332,7 +332,7 @@ impl Document {
         };
         // A newer set for a catalog number already loaded replaces it (but
         // not a spacecraft that moves by its own ephemeris).
-        for set in report.sets {
+        for set in std::mem::take(&mut report.sets) {
             match target
                 .iter_mut()
                 .find(|s| s.catalog_number == set.catalog_number)
@@ -349,7 +349,7 @@ impl Document {
             path,
             read_error: None,
             sets_loaded: n,
-            diagnostics: report.diagnostics,
+            diagnostics: with_omitted_note(report, name),
             is_ephemeris: false,
             ephemeris_note: None,
         });
@@ -731,4 +731,26 @@ mod tests {
             .unwrap_or_default();
         assert!(bad.starts_with("bad.oem:0: error: CREATION_DATE"), "{bad}");
     }
+}
+
+/// The findings the loader kept, plus one closing line counting those it only
+/// counted (a file of junk keeps its first findings in full).
+fn with_omitted_note(report: passlane_orbit::LoadReport, file: &str) -> Vec<Diagnostic> {
+    let note = report.omitted_note();
+    let severity = if report.omitted_errors > 0 {
+        Severity::Error
+    } else {
+        Severity::Warning
+    };
+    let mut diagnostics = report.diagnostics;
+    if let Some(message) = note {
+        diagnostics.push(Diagnostic {
+            severity,
+            file: file.to_string(),
+            line: 0,
+            field: String::new(),
+            message,
+        });
+    }
+    diagnostics
 }

@@ -98,27 +98,107 @@ pub struct LoadOptions {
     pub lenient: bool,
 }
 
-/// What a load produced: the good records and every finding.
+/// How many findings a [`LoadReport`] keeps in full; the rest are counted
+/// only. A file of junk can hold millions of bad lines: keeping each finding
+/// (~500 bytes) would make memory grow with the junk instead of the good
+/// records, and nobody reads past the first screenful anyway.
+pub const MAX_DIAGNOSTICS_KEPT: usize = 100;
+
+/// What a load produced: the good records and the findings.
+///
+/// The first [`MAX_DIAGNOSTICS_KEPT`] findings of each file are kept in full
+/// in `diagnostics`; later ones are only counted (`omitted_errors`,
+/// `omitted_warnings`), so memory stays bounded by the good records whatever
+/// the file holds. Add findings with [`LoadReport::push`].
 #[derive(Debug, Clone, Default)]
 pub struct LoadReport {
     pub sets: Vec<ElementSet>,
     pub diagnostics: Vec<Diagnostic>,
+    /// Errors found beyond the ones kept in `diagnostics`.
+    pub omitted_errors: usize,
+    /// Warnings found beyond the ones kept in `diagnostics`.
+    pub omitted_warnings: usize,
+    /// Records skipped, one per record however many problems it had (lines
+    /// that belong to no record are errors but not records).
+    pub rejected_records: usize,
 }
 
 impl LoadReport {
+    /// The errors kept in full (see [`LoadReport::error_count`] for all).
     pub fn errors(&self) -> impl Iterator<Item = &Diagnostic> {
         self.diagnostics
             .iter()
             .filter(|d| d.severity == Severity::Error)
     }
 
+    /// Records a finding: kept in full while fewer than
+    /// [`MAX_DIAGNOSTICS_KEPT`] are, counted otherwise.
+    pub fn push(&mut self, d: Diagnostic) {
+        if self.diagnostics.len() < MAX_DIAGNOSTICS_KEPT {
+            self.diagnostics.push(d);
+        } else if d.severity == Severity::Error {
+            self.omitted_errors += 1;
+        } else {
+            self.omitted_warnings += 1;
+        }
+    }
+
+    /// Every error found, kept or only counted.
+    pub fn error_count(&self) -> usize {
+        self.errors().count() + self.omitted_errors
+    }
+
+    /// Every warning found, kept or only counted.
+    pub fn warning_count(&self) -> usize {
+        self.diagnostics.len() - self.errors().count() + self.omitted_warnings
+    }
+
+    /// Every finding, kept or only counted.
+    pub fn finding_count(&self) -> usize {
+        self.diagnostics.len() + self.omitted()
+    }
+
+    /// Findings counted but not kept.
+    pub fn omitted(&self) -> usize {
+        self.omitted_errors + self.omitted_warnings
+    }
+
+    /// `… and 12,345 more (…)` for the findings not kept, or `None`.
+    pub fn omitted_note(&self) -> Option<String> {
+        (self.omitted() > 0).then(|| {
+            format!(
+                "… and {} more problem(s) not listed ({} error(s), {} warning(s))",
+                thousands(self.omitted()),
+                thousands(self.omitted_errors),
+                thousands(self.omitted_warnings)
+            )
+        })
+    }
+
     /// Appends another report, then keeps one record per catalog number (the
-    /// newest epoch), with a warning for each record dropped.
+    /// newest epoch), with a warning for each record dropped. Each file keeps
+    /// its own first findings.
     pub fn merge(&mut self, other: LoadReport) {
         self.sets.extend(other.sets);
         self.diagnostics.extend(other.diagnostics);
+        self.omitted_errors += other.omitted_errors;
+        self.omitted_warnings += other.omitted_warnings;
+        self.rejected_records += other.rejected_records;
         dedup_newest(self);
     }
+}
+
+/// `12345` → `12,345`.
+pub fn thousands(n: usize) -> String {
+    let digits = n.to_string();
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
 }
 
 mod lines;
@@ -146,7 +226,7 @@ pub fn load_records(bytes: &[u8], file: &str, options: LoadOptions) -> LoadRepor
         .copied()
         .find(|b| !b.is_ascii_whitespace() && *b != 0xEF && *b != 0xBB && *b != 0xBF);
     match first {
-        None => report.diagnostics.push(Diagnostic {
+        None => report.push(Diagnostic {
             severity: Severity::Error,
             file: file.to_string(),
             line: 0,
@@ -185,7 +265,7 @@ fn dedup_newest(report: &mut LoadReport) {
         if best.get(&s.catalog_number) == Some(&i) {
             report.sets.push(s);
         } else {
-            report.diagnostics.push(Diagnostic {
+            report.push(Diagnostic {
                 severity: Severity::Warning,
                 file: s.source.file.clone(),
                 line: s.source.line,

@@ -84,10 +84,7 @@ pub fn load_oem(
     file: &str,
     eop: &EarthOrientation,
 ) -> (Option<Ephemeris>, Vec<Diagnostic>) {
-    let mut sink = Sink {
-        file,
-        diagnostics: Vec::new(),
-    };
+    let mut sink = Sink::new(file);
     let bytes = bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]).unwrap_or(bytes);
     let text = match std::str::from_utf8(bytes) {
         Ok(t) => t,
@@ -98,7 +95,7 @@ pub fn load_oem(
                 .count()
                 + 1;
             sink.error(line, "", "not valid UTF-8 text; nothing loaded from it");
-            return (None, sink.diagnostics);
+            return (None, sink.finish());
         }
     };
     let raw = if text.trim_start().starts_with('<') {
@@ -107,15 +104,10 @@ pub fn load_oem(
         read_kvn(text, &mut sink)
     };
     let eph = raw.and_then(|raw| build(raw, &mut sink, eop));
-    if eph.is_none()
-        && !sink
-            .diagnostics
-            .iter()
-            .any(|d| d.severity == Severity::Error)
-    {
+    if eph.is_none() && !sink.has_errors() {
         sink.error(0, "", "no ephemeris in this file");
     }
-    (eph, sink.diagnostics)
+    (eph, sink.finish())
 }
 
 /// Keyword values of one block, with checks of order and presence.

@@ -4,7 +4,7 @@
 //! afterwards by [`super::oem`].
 
 use super::oem::{COV_XML_KEYS, OemFormat};
-use crate::elements::{Diagnostic, Severity};
+use crate::elements::{Diagnostic, MAX_DIAGNOSTICS_KEPT, Severity, thousands};
 
 #[derive(Debug, Clone)]
 pub(super) struct Kv {
@@ -36,12 +36,16 @@ pub(super) struct RawOem {
     pub(super) segments: Vec<RawSegment>,
 }
 
+/// Collects findings: the first [`MAX_DIAGNOSTICS_KEPT`] in full, the rest
+/// counted (memory bounded by the good data, whatever the file holds).
 pub(super) struct Sink<'a> {
     pub(super) file: &'a str,
     pub(super) diagnostics: Vec<Diagnostic>,
+    pub(super) omitted_errors: usize,
+    pub(super) omitted_warnings: usize,
 }
 
-impl Sink<'_> {
+impl<'a> Sink<'a> {
     pub(super) fn push(
         &mut self,
         severity: Severity,
@@ -49,6 +53,13 @@ impl Sink<'_> {
         field: &str,
         message: impl Into<String>,
     ) {
+        if self.diagnostics.len() >= MAX_DIAGNOSTICS_KEPT {
+            match severity {
+                Severity::Error => self.omitted_errors += 1,
+                Severity::Warning => self.omitted_warnings += 1,
+            }
+            return;
+        }
         self.diagnostics.push(Diagnostic {
             severity,
             file: self.file.to_string(),
@@ -60,6 +71,47 @@ impl Sink<'_> {
 
     pub(super) fn error(&mut self, line: usize, field: &str, message: impl Into<String>) {
         self.push(Severity::Error, line, field, message);
+    }
+
+    pub(super) fn new(file: &'a str) -> Self {
+        Sink {
+            file,
+            diagnostics: Vec::new(),
+            omitted_errors: 0,
+            omitted_warnings: 0,
+        }
+    }
+
+    pub(super) fn has_errors(&self) -> bool {
+        self.omitted_errors > 0
+            || self
+                .diagnostics
+                .iter()
+                .any(|d| d.severity == Severity::Error)
+    }
+
+    /// The findings, with one closing line counting those not kept.
+    pub(super) fn finish(mut self) -> Vec<Diagnostic> {
+        let omitted = self.omitted_errors + self.omitted_warnings;
+        if omitted > 0 {
+            self.diagnostics.push(Diagnostic {
+                severity: if self.omitted_errors > 0 {
+                    Severity::Error
+                } else {
+                    Severity::Warning
+                },
+                file: self.file.to_string(),
+                line: 0,
+                field: String::new(),
+                message: format!(
+                    "… and {} more problem(s) not listed ({} error(s), {} warning(s))",
+                    thousands(omitted),
+                    thousands(self.omitted_errors),
+                    thousands(self.omitted_warnings)
+                ),
+            });
+        }
+        self.diagnostics
     }
 }
 

@@ -105,7 +105,7 @@ fn scan_value(b: &[u8], start: usize) -> Result<Scanned, (usize, String)> {
 }
 
 pub(in crate::elements) fn load_json(bytes: &[u8], file: &str, report: &mut LoadReport) {
-    let (sets_before, diags_before) = (report.sets.len(), report.diagnostics.len());
+    let (sets_before, diags_before) = (report.sets.len(), report.finding_count());
     let Some(text) = utf8(bytes, file, report) else {
         return;
     };
@@ -122,9 +122,7 @@ pub(in crate::elements) fn load_json(bytes: &[u8], file: &str, report: &mut Load
         line
     };
     let error = |report: &mut LoadReport, line: usize, message: String| {
-        report
-            .diagnostics
-            .push(diag(file, Severity::Error, line, "", message));
+        report.push(diag(file, Severity::Error, line, "", message));
     };
     match b.get(pos) {
         Some(b'{') => match scan_value(b, pos) {

@@ -17,7 +17,7 @@ const MARKERS: &[&str] = &[
 ];
 
 pub(in crate::elements) fn load_kvn(bytes: &[u8], file: &str, report: &mut LoadReport) {
-    let (sets_before, diags_before) = (report.sets.len(), report.diagnostics.len());
+    let (sets_before, diags_before) = (report.sets.len(), report.finding_count());
     let mut current: Option<Record<'_>> = None;
     // First line of a run of keyword lines outside any message (reported once).
     let mut orphan_reported = false;
@@ -26,9 +26,7 @@ pub(in crate::elements) fn load_kvn(bytes: &[u8], file: &str, report: &mut LoadR
             let message = format!("not valid UTF-8 text ({:?}); record skipped", excerpt(raw));
             match &mut current {
                 Some(rec) => rec.error(n, "", message),
-                None => report
-                    .diagnostics
-                    .push(diag(file, Severity::Error, n, "", message)),
+                None => report.push(diag(file, Severity::Error, n, "", message)),
             }
             continue;
         };
@@ -46,9 +44,7 @@ pub(in crate::elements) fn load_kvn(bytes: &[u8], file: &str, report: &mut LoadR
             );
             match &mut current {
                 Some(rec) => rec.error(n, "", message),
-                None => report
-                    .diagnostics
-                    .push(diag(file, Severity::Error, n, "", message)),
+                None => report.push(diag(file, Severity::Error, n, "", message)),
             }
             continue;
         };
@@ -66,7 +62,7 @@ pub(in crate::elements) fn load_kvn(bytes: &[u8], file: &str, report: &mut LoadR
             Some(rec) => rec.insert(key, value.to_string(), n),
             None if !orphan_reported => {
                 orphan_reported = true;
-                report.diagnostics.push(diag(
+                report.push(diag(
                     file,
                     Severity::Error,
                     n,

@@ -92,15 +92,19 @@ impl<'f> Record<'f> {
         match self.build() {
             Ok((set, warnings)) => {
                 report.sets.push(set);
-                report.diagnostics.extend(warnings);
+                warnings.into_iter().for_each(|d| report.push(d));
             }
-            Err(diags) => report.diagnostics.extend(diags),
+            Err(diags) => {
+                report.rejected_records += 1;
+                diags.into_iter().for_each(|d| report.push(d));
+            }
         }
     }
 
     /// Gives up on the record: only the errors found so far are reported.
     pub(super) fn abandon(self, report: &mut LoadReport) {
-        report.diagnostics.extend(self.errors);
+        report.rejected_records += 1;
+        self.errors.into_iter().for_each(|d| report.push(d));
     }
 
     fn get(&self, key: &str) -> Option<(&str, usize)> {
@@ -380,8 +384,8 @@ pub(super) fn note_if_empty(
     sets_before: usize,
     diags_before: usize,
 ) {
-    if report.sets.len() == sets_before && report.diagnostics.len() == diags_before {
-        report.diagnostics.push(diag(
+    if report.sets.len() == sets_before && report.finding_count() == diags_before {
+        report.push(diag(
             file,
             Severity::Error,
             0,
@@ -485,7 +489,7 @@ pub(super) fn utf8<'a>(bytes: &'a [u8], file: &str, report: &mut LoadReport) -> 
         Ok(s) => Some(s),
         Err(e) => {
             let line = line_at(bytes, (0, 1), e.valid_up_to());
-            report.diagnostics.push(diag(
+            report.push(diag(
                 file,
                 Severity::Error,
                 line,

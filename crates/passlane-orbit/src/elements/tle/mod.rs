@@ -144,7 +144,7 @@ impl Reader<'_> {
 
     fn push(&mut self, d: Diagnostic) {
         self.flush_stray();
-        self.report.diagnostics.push(d);
+        self.report.push(d);
     }
 
     fn stray(&mut self, line: usize, reason: String) {
@@ -175,7 +175,7 @@ impl Reader<'_> {
                 ));
             }
             let d = self.diag(Severity::Error, s.first, String::new(), message);
-            self.report.diagnostics.push(d);
+            self.report.push(d);
         }
     }
 }
@@ -204,7 +204,7 @@ fn not_a_name(line: &[u8]) -> Option<String> {
 
 pub(super) fn load_tle(bytes: &[u8], file: &str, options: LoadOptions, report: &mut LoadReport) {
     let before_sets = report.sets.len();
-    let before_errors = report.errors().count();
+    let before_errors = report.error_count();
     let mut r = Reader {
         file,
         options,
@@ -237,6 +237,7 @@ pub(super) fn load_tle(bytes: &[u8], file: &str, options: LoadOptions, report: &
                             columns(1, 1, "line number"),
                             format!("line 1 is not followed by its line 2: {what}; record skipped"),
                         );
+                        r.report.rejected_records += 1;
                         r.push(d);
                     }
                 }
@@ -249,6 +250,7 @@ pub(super) fn load_tle(bytes: &[u8], file: &str, options: LoadOptions, report: &
                     "line 2 without a line 1 before it; record skipped".to_string(),
                 );
                 name = None;
+                r.report.rejected_records += 1;
                 r.push(d);
             }
             Kind::Other => match not_a_name(line) {
@@ -275,14 +277,14 @@ pub(super) fn load_tle(bytes: &[u8], file: &str, options: LoadOptions, report: &
         );
     }
     r.flush_stray();
-    if r.report.sets.len() == before_sets && r.report.errors().count() == before_errors {
+    if r.report.sets.len() == before_sets && r.report.error_count() == before_errors {
         let d = r.diag(
             Severity::Error,
             0,
             String::new(),
             "no TLE records found".to_string(),
         );
-        r.report.diagnostics.push(d);
+        r.report.push(d);
     }
 }
 
@@ -475,6 +477,7 @@ fn read_record(
     let (l1, l2) = match (l1, l2) {
         (Ok(a), Ok(b)) => (a, b),
         (a, b) => {
+            r.report.rejected_records += 1;
             for d in [a.err(), b.err()].into_iter().flatten() {
                 r.push(d);
             }
@@ -535,6 +538,7 @@ fn read_record(
     }
     let errors = std::mem::take(&mut f.errors);
     if !errors.is_empty() {
+        r.report.rejected_records += 1;
         for d in errors {
             r.push(d);
         }
@@ -608,6 +612,7 @@ fn read_record(
     match set.validate() {
         Ok(()) => r.report.sets.push(set),
         Err((field, reason)) => {
+            r.report.rejected_records += 1;
             let (line, first, last) = field_columns(field, l1.number, l2.number);
             let d = r.diag(
                 Severity::Error,
