@@ -243,3 +243,109 @@ fn the_cli_clears_stale_temporaries_before_reading_a_scenario() {
     assert!(!stale.exists(), "the stale temporary is still there");
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// Runs the CLI, killing it after `limit`: a hang is a failure, not a stuck test.
+fn passlane_within(args: &[&str], limit: Duration) -> Output {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_passlane"))
+        .args(args)
+        .stdin(Stdio::null())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let started = Instant::now();
+    while child.try_wait().unwrap().is_none() {
+        if started.elapsed() > limit {
+            child.kill().unwrap();
+            let out = child.wait_with_output().unwrap();
+            panic!(
+                "passlane {args:?} still running after {limit:?}; stderr: {}",
+                String::from_utf8_lossy(&out.stderr)
+            );
+        }
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    child.wait_with_output().unwrap()
+}
+
+#[test]
+fn steps_below_a_millisecond_or_tables_over_the_row_cap_are_refused_naming_the_flag() {
+    // Issue 12 items 1 and 7: a step below the time resolution never
+    // advanced (memory grew until allocation failed), and 1e-300 overflowed
+    // the sample count to zero (a header only, exit 0).
+    let dir = scratch("steps");
+    let out_dir = dir.join("hand-off");
+    let out_s = out_dir.display().to_string();
+    let fleet = ["--elements", "scenarios/demo-fleet.tle"];
+    let day = [
+        "--start",
+        "2026-12-01T00:00:00Z",
+        "--end",
+        "2026-12-02T00:00:00Z",
+    ];
+    let cases: Vec<(Vec<&str>, &str, &str)> = vec![
+        (
+            [
+                &["track"][..],
+                &fleet,
+                &[
+                    "--station",
+                    "Coral Shoal,-5.64,-155.9,6",
+                    "--satellite",
+                    "90001",
+                    "--pass-start",
+                    "2026-12-01T07:55:00Z",
+                    "--step-s",
+                    "1e-9",
+                ],
+            ]
+            .concat(),
+            "--step-s",
+            "1 ms",
+        ),
+        (
+            vec![
+                "plan",
+                "--scenario",
+                "scenarios/demo.json",
+                "--end",
+                "2026-12-02T00:00:00Z",
+                "--pointing-step-s",
+                "1e-17",
+                "--out",
+                &out_s,
+            ],
+            "--pointing-step-s",
+            "1 ms",
+        ),
+        (
+            [&["ephemeris"][..], &fleet, &day, &["--step-s", "1e-300"]].concat(),
+            "--step-s",
+            "1 ms",
+        ),
+        (
+            [&["ephemeris"][..], &fleet, &day, &["--step-s", "0"]].concat(),
+            "--step-s",
+            "positive",
+        ),
+        // A day at 1 ms for every spacecraft: far over the 10 million rows.
+        (
+            [&["ephemeris"][..], &fleet, &day, &["--step-s", "0.001"]].concat(),
+            "--step-s",
+            "10000000",
+        ),
+    ];
+    for (args, flag, words) in cases {
+        let out = passlane_within(&args, Duration::from_secs(60));
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(!out.status.success(), "passlane {args:?} succeeded");
+        assert!(
+            stderr.contains(flag) && stderr.contains(words),
+            "passlane {args:?}: {stderr}"
+        );
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        assert!(out.stdout.is_empty(), "passlane {args:?} printed a table");
+    }
+    assert!(!out_dir.exists(), "a refused plan created its folder");
+    std::fs::remove_dir_all(&dir).unwrap();
+}

@@ -4,7 +4,7 @@ use std::io::Write;
 
 use anyhow::{Result, bail};
 use passlane_orbit::frames::earth_fixed_to_geodetic;
-use passlane_orbit::{EarthOrientation, Propagator, TemeToEarthFixed, TimeGrid, UtcTime};
+use passlane_orbit::{EarthOrientation, Propagator, TemeToEarthFixed, UtcTime};
 use serde::Serialize;
 
 use super::args::{EphemerisArgs, Frame};
@@ -36,9 +36,7 @@ pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
     )?;
     let (start, end) = common::window(&inputs)?;
     let step_s = args.step_s;
-    if step_s <= 0.0 {
-        bail!("--step-s must be positive");
-    }
+    passlane_plan::sampling::check_step(step_s).map_err(|e| anyhow::anyhow!("--step-s: {e}"))?;
     let frame = args.frame;
     let format = Format::from(args.format);
     let eop = EarthOrientation {
@@ -55,13 +53,13 @@ pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
         Some(k) => vec![common::pick_satellite(&inputs.sets, k)?.clone()],
         None => inputs.sets.clone(),
     };
-    let grid = TimeGrid::covering(start, end, step_s);
-    if grid.count > 50_000_000 / sets.len().max(1) {
-        bail!(
-            "{} samples per satellite is too many: raise --step-s or shorten the window",
-            grid.count
-        );
-    }
+    // One table of every satellite's rows: the row cap holds for all of them.
+    let grid = passlane_plan::sampling::grid(start, end, step_s)
+        .and_then(|g| {
+            passlane_plan::sampling::row_count(end.s_since(start) * sets.len() as f64, step_s)
+                .map(|_| g)
+        })
+        .map_err(|e| anyhow::anyhow!("--step-s: {e}"))?;
     let mut rows = Vec::new();
     let mut failures = 0;
     for set in &sets {

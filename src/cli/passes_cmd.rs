@@ -6,6 +6,7 @@ use anyhow::{Result, bail};
 use passlane_orbit::{EarthOrientation, Illumination, UtcTime};
 use passlane_plan::export::csv_field;
 use passlane_plan::passes::{Pass, PassOptions, find_passes};
+use passlane_plan::sampling::TableError;
 use passlane_plan::station::Station;
 use passlane_plan::{Silent, pointing_table};
 
@@ -219,9 +220,7 @@ pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
     };
     let at = args.pass_start;
     let step_s = args.step_s;
-    if step_s <= 0.0 {
-        bail!("--step-s must be positive");
-    }
+    passlane_plan::sampling::check_step(step_s).map_err(|e| anyhow::anyhow!("--step-s: {e}"))?;
     let format = Format::from(args.format);
     let eop = earth_orientation(&args.earth_orientation, &inputs)?;
     // Search a window around the given time; the pass is the one containing it,
@@ -256,7 +255,10 @@ pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
             at
         );
     };
-    let rows = pointing_table(sat, station, pass, step_s, &eop)?;
+    let rows = pointing_table(sat, station, pass, step_s, &eop).map_err(|e| match e {
+        TableError::Step(e) => anyhow::anyhow!("--step-s: {e}"),
+        TableError::Propagation(e) => anyhow::anyhow!("{}: {e}", sat.name),
+    })?;
     match format {
         Format::Json => {
             serde_json::to_writer_pretty(&mut *out, &rows)?;

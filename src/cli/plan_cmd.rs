@@ -28,9 +28,8 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
     let (start, end) = common::window(&inputs)?;
     let format = Format::from(args.format);
     let pointing_step_s = args.pointing_step_s;
-    if pointing_step_s <= 0.0 {
-        bail!("--pointing-step-s must be positive");
-    }
+    passlane_plan::sampling::check_step(pointing_step_s)
+        .map_err(|e| anyhow::anyhow!("--pointing-step-s: {e}"))?;
     let Some((scenario_path, scenario)) = &inputs.scenario else {
         bail!("--scenario FILE is required");
     };
@@ -97,7 +96,8 @@ fn write_outputs(
                 OemFrameArg::Teme => passlane_plan::export::OemFrame::Teme,
             },
         },
-    );
+    )
+    .map_err(|e| anyhow::anyhow!("--pointing-step-s: {e}"))?;
     for w in &hand_off.warnings {
         eprintln!("warning: {w}");
     }

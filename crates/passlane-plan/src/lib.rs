@@ -9,8 +9,8 @@
 //!   files ([`export`]).
 //!
 //! Shared by all three: the scenario file ([`scenario`]), progress and
-//! cancellation of long work ([`progress`]), and the root finders and
-//! minimisers ([`numeric`]).
+//! cancellation of long work ([`progress`]), the root finders and
+//! minimisers ([`numeric`]), and the limits of sampled tables ([`sampling`]).
 //!
 //! Architecture invariant: this crate has no GUI dependency, does no file I/O
 //! and never prints: readers take text, writers take any `std::io::Write`,
@@ -21,6 +21,7 @@ pub mod contacts;
 pub mod network;
 pub mod numeric;
 pub mod progress;
+pub mod sampling;
 pub mod scenario;
 
 // Each job's modules, also reachable from the crate root.

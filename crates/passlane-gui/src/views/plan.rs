@@ -96,7 +96,8 @@ pub fn export_plan(
             oem_format: passlane_orbit::ephemeris::OemFormat::Kvn,
             oem_frame: passlane_plan::export::OemFrame::Eme2000,
         },
-    );
+    )
+    .map_err(|e| format!("pointing tables: {e}"))?;
     let before = files_under(dir);
     let written = passlane_files::folder::write_folder(
         dir,

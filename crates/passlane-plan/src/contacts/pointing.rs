@@ -10,6 +10,7 @@ use serde::Serialize;
 
 use crate::numeric::brent_root;
 use crate::passes::{Pass, tuned_frequency_hz};
+use crate::sampling::{TableError, row_count};
 use crate::station::Station;
 
 /// One row of a pointing table.
@@ -29,13 +30,15 @@ pub struct PointingRow {
 
 /// The pointing table of one pass at `step_s`, from direct SGP4 states (not
 /// the interpolant); the first row is at AOS and the last at LOS exactly.
+/// A step below 1 ms or a table over the row cap is an error
+/// ([`crate::sampling`]).
 pub fn pointing_table(
     set: &ElementSet,
     station: &Station,
     pass: &Pass,
     step_s: f64,
     eop: &EarthOrientation,
-) -> Result<Vec<PointingRow>, PropagationError> {
+) -> Result<Vec<PointingRow>, TableError> {
     pointing_table_between(set, station, pass.aos, pass.los, step_s, eop)
 }
 
@@ -48,19 +51,16 @@ pub fn pointing_table_between(
     end: UtcTime,
     step_s: f64,
     eop: &EarthOrientation,
-) -> Result<Vec<PointingRow>, PropagationError> {
+) -> Result<Vec<PointingRow>, TableError> {
+    let duration = end.s_since(start);
+    let rows = row_count(duration, step_s)?;
     let prop = Propagator::new(set)?;
     let site = station.site();
-    let step_s = if step_s.is_finite() && step_s > 0.0 {
-        step_s
-    } else {
-        1.0
-    };
-    let duration = end.s_since(start);
     // The first and last rows are at `start` and `end` exactly (instants a
     // root finder produced, printed with microseconds); the rows between are
     // on whole milliseconds, so that the printed time is the computed one.
-    let mut times: Vec<UtcTime> = vec![start];
+    let mut times: Vec<UtcTime> = Vec::with_capacity(rows);
+    times.push(start);
     let mut k = 1usize;
     loop {
         let dt = k as f64 * step_s;
@@ -79,7 +79,7 @@ pub fn pointing_table_between(
     let mut cursor = prop.cursor();
     times
         .into_iter()
-        .map(|t| {
+        .map(|t| -> Result<PointingRow, TableError> {
             let s = cursor.state_at(t)?;
             let ef = TemeToEarthFixed::at(t, eop).state(&s.position_km, &s.velocity_km_s);
             let l = site.look(&ef);

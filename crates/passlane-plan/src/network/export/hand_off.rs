@@ -19,6 +19,7 @@ use super::oem::{OemFrame, OemOptions, oem_extension};
 use super::{oem_states, oem_step_s, pointing_file_name, write_icalendar, write_oem};
 use super::{write_plan_csv, write_plan_json, write_pointing_csv};
 use crate::pointing::pointing_table_between;
+use crate::sampling::{MAX_SAMPLES, StepError, TableError, check_step, row_count};
 use crate::schedule::Plan;
 use crate::station::Station;
 use passlane_orbit::ephemeris::OemFormat;
@@ -68,8 +69,25 @@ fn render(fill: impl FnOnce(&mut Vec<u8>) -> io::Result<()>) -> Vec<u8> {
     out
 }
 
-/// Builds every file of the plan's hand-off folder.
-pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> HandOff {
+/// Builds every file of the plan's hand-off folder. The pointing step is
+/// checked first, and so is the number of pointing rows of all contacts
+/// together (the files are built in memory): both against the limits of
+/// [`crate::sampling`], before anything is computed.
+pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> Result<HandOff, StepError> {
+    check_step(ctx.pointing_step_s)?;
+    let mut total_rows = 0.0;
+    for c in &plan.contacts {
+        total_rows += match row_count(c.los.s_since(c.aos), ctx.pointing_step_s) {
+            Ok(n) => n as f64,
+            Err(e) => return Err(e),
+        };
+    }
+    if total_rows > MAX_SAMPLES as f64 {
+        return Err(StepError::TooManySamples {
+            rows: total_rows,
+            step_s: ctx.pointing_step_s,
+        });
+    }
     let mut h = HandOff::default();
     let mut add = |path: String, contents: Vec<u8>| {
         h.files.push(HandOffFile {
@@ -106,7 +124,8 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> HandOff {
                 format!("pointing/{}", pointing_file_name(c)),
                 render(|w| write_pointing_csv(w, station, &rows)),
             )),
-            Err(e) => warnings.push(format!(
+            Err(TableError::Step(e)) => return Err(e),
+            Err(TableError::Propagation(e)) => warnings.push(format!(
                 "no pointing table for {} at {}: {e}",
                 c.spacecraft, c.aos
             )),
@@ -143,12 +162,15 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> HandOff {
                     )
                 }),
             )),
-            Err(e) => warnings.push(format!("no OEM for {}: {e}", set.name)),
+            Err(TableError::Step(e)) => return Err(e),
+            Err(TableError::Propagation(e)) => {
+                warnings.push(format!("no OEM for {}: {e}", set.name))
+            }
         }
     }
     for (p, c) in files {
         add(p, c);
     }
     h.warnings = warnings;
-    h
+    Ok(h)
 }

@@ -25,9 +25,10 @@ use std::io::{self, Write};
 
 use passlane_orbit::ephemeris::OemFormat;
 use passlane_orbit::inertial::teme_to_eme2000;
-use passlane_orbit::{ElementSet, PropagationError, Propagator, StateTeme, UtcTime};
+use passlane_orbit::{ElementSet, Propagator, StateTeme, UtcTime};
 
 use crate::cdm::{ccsds_identifier, ccsds_text, xml_escape};
+use crate::sampling::{TableError, row_count};
 
 /// Degree of the Lagrange interpolation the files recommend: with states a
 /// hundredth of an orbit apart it reproduces SGP4 to 1 mm in LEO, eccentric
@@ -89,26 +90,24 @@ pub fn oem_step_s(set: &ElementSet) -> f64 {
 
 /// States from `start` to `end` every `step_s`, the last exactly at `end`;
 /// at least [`OEM_INTERPOLATION_DEGREE`] + 1 of them (the step shrinks for a
-/// short span).
+/// short span). A step below 1 ms or more states than the row cap is an
+/// error ([`crate::sampling`]).
 pub fn oem_states(
     set: &ElementSet,
     start: UtcTime,
     end: UtcTime,
     step_s: f64,
-) -> Result<Vec<StateTeme>, PropagationError> {
+) -> Result<Vec<StateTeme>, TableError> {
+    let span = end.s_since(start);
+    let rows = row_count(span, step_s)?;
     let prop = Propagator::new(set)?;
     let mut cursor = prop.cursor();
-    let span = end.s_since(start);
-    let mut step_s = if step_s.is_finite() && step_s > 0.0 {
-        step_s
-    } else {
-        60.0
-    };
+    let mut step_s = step_s;
     let min_points = OEM_INTERPOLATION_DEGREE + 1;
     if span > 0.0 && span / step_s + 1.0 < min_points as f64 {
         step_s = span / (min_points - 1) as f64;
     }
-    let mut out = Vec::new();
+    let mut out = Vec::with_capacity(rows.max(min_points));
     let mut k = 0usize;
     loop {
         let dt = k as f64 * step_s;
