@@ -41,10 +41,10 @@ const MU_KM3_S2: f64 = 398_600.8;
 const EARTH_RADIUS_KM: f64 = 6378.135;
 const THRESHOLD_KM: f64 = 10.0;
 
-#[path = "../../passlane-orbit/benches/support/mod.rs"]
-mod support;
 #[path = "support/catalog.rs"]
 mod catalog;
+#[path = "../../passlane-orbit/benches/support/mod.rs"]
+mod support;
 
 use catalog::Rng;
 
@@ -204,9 +204,10 @@ fn compare(fast: &ScreeningResult, brute: &ScreeningResult) -> bool {
     let mut same = fast.events.len() == brute.events.len();
     let mut b = brute.events.iter().peekable();
     for a in &fast.events {
-        let m = brute.events.iter().find(|e| {
-            key(e) == key(a) && e.tca.s_since(a.tca).abs() < 0.010
-        });
+        let m = brute
+            .events
+            .iter()
+            .find(|e| key(e) == key(a) && e.tca.s_since(a.tca).abs() < 0.010);
         match m {
             Some(e) if (e.miss_distance_km - a.miss_distance_km).abs() < 1e-3 => {}
             Some(e) => {
@@ -314,7 +315,10 @@ fn realistic_cases(which: &str, arg: Option<&str>) {
             std::fs::write(dir.join("sso-10.tle"), sso).unwrap();
             let fleet = catalog::tle_text(&catalog::fleet_100_synth());
             std::fs::write(dir.join("fleet-100.tle"), fleet).unwrap();
-            println!("wrote catalog-30000/10000/5000.tle, sso-10.tle, fleet-100.tle to {}", dir.display());
+            println!(
+                "wrote catalog-30000/10000/5000.tle, sso-10.tle, fleet-100.tle to {}",
+                dir.display()
+            );
         }
         _ => panic!("unknown case {which}"),
     }

@@ -195,13 +195,13 @@ pub fn realistic_synth() -> Vec<Synth> {
     for k in 0..1_800 {
         let rp = re + rng.uniform(250.0, 700.0);
         let (ra, inc) = match k % 3 {
-            0 => (re + 35_786.0 + rng.uniform(-500.0, 500.0), rng.uniform(0.0, 30.0)),
+            0 => (
+                re + 35_786.0 + rng.uniform(-500.0, 500.0),
+                rng.uniform(0.0, 30.0),
+            ),
             // 12-hour orbit: a = 26,560 km at the critical inclination.
             1 => (2.0 * 26_560.0 - rp, 63.4 + rng.uniform(-0.1, 0.1)),
-            _ => (
-                re + rng.uniform(1_000.0, 20_000.0),
-                rng.uniform(0.0, 100.0),
-            ),
+            _ => (re + rng.uniform(1_000.0, 20_000.0), rng.uniform(0.0, 100.0)),
         };
         let (raan, m, b) = (
             rng.uniform(0.0, 360.0),
