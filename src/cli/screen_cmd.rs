@@ -191,13 +191,13 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
         Format::Csv => {
             writeln!(
                 out,
-                "primary,primary_catalog_number,secondary,secondary_catalog_number,tca,miss_distance_km,radial_km,in_track_km,cross_track_km,relative_speed_km_s,approach_angle_deg,volume_entry,volume_exit,pc,pc_max"
+                "primary,primary_catalog_number,secondary,secondary_catalog_number,tca,miss_distance_km,radial_km,in_track_km,cross_track_km,relative_speed_km_s,approach_angle_deg,volume_entry,volume_exit,pc,pc_max,clipped,tca_inside_volume,interval_minima,interval_min_miss_km"
             )?;
             for r in &rows {
                 let e = r.event;
                 writeln!(
                     out,
-                    "{},{},{},{},{},{:.4},{:.4},{:.4},{:.4},{:.4},{:.2},{},{},{},{}",
+                    "{},{},{},{},{},{:.4},{:.4},{:.4},{:.4},{:.4},{:.2},{},{},{},{},{},{},{},{:.4}",
                     csv_field(&e.primary),
                     e.primary_catalog_number,
                     csv_field(&e.secondary),
@@ -212,7 +212,11 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                     e.volume_entry.to_iso_us(),
                     e.volume_exit.to_iso_us(),
                     r.pc.map(|p| format!("{p:.3e}")).unwrap_or_default(),
-                    r.pc_max.map(|p| format!("{p:.3e}")).unwrap_or_default()
+                    r.pc_max.map(|p| format!("{p:.3e}")).unwrap_or_default(),
+                    e.clipped,
+                    e.tca_inside_volume,
+                    e.interval_minima,
+                    e.interval_min_miss_km
                 )?;
             }
         }
@@ -245,9 +249,21 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
             )?;
             for r in &rows {
                 let e = r.event;
+                // Marks: ">" the TCA is the window's edge (clipped), "~" the
+                // trajectory enters the volume away from the TCA, "+" one of
+                // several minima of a pair that stays inside the volume.
+                let mark = if e.clipped {
+                    ">"
+                } else if !e.tca_inside_volume {
+                    "~"
+                } else if e.interval_minima > 1 {
+                    "+"
+                } else {
+                    " "
+                };
                 writeln!(
                     out,
-                    "{} {} {:<24} {:>9.3} {:>9.3} {:>9.3} {:>9.3} {:>8.3} {:>10} {:>10}",
+                    "{} {} {:<23}{mark} {:>9.3} {:>9.3} {:>9.3} {:>9.3} {:>8.3} {:>10} {:>10}",
                     common::fit(&e.primary, 16),
                     common::fit(&e.secondary, 16),
                     e.tca.to_iso_ms(),
@@ -268,6 +284,14 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                 "\n{} event(s). R/I/C: secondary relative to primary in the primary's radial/in-track/cross-track frame.",
                 rows.len()
             )?;
+            if rows.iter().any(|r| {
+                r.event.clipped || !r.event.tca_inside_volume || r.event.interval_minima > 1
+            }) {
+                writeln!(
+                    out,
+                    "> TCA at the window's edge (distance still falling or already rising there); ~ the volume is entered away from the TCA; + one of several minima while the pair stays inside the volume (see volume_entry/volume_exit in --format json)."
+                )?;
+            }
             writeln!(
                 out,
                 "*Pc with {label}{}; combined hard-body radius per event (see --format json).",

@@ -273,7 +273,11 @@ fn decaying_object_is_reported_and_the_rest_go_on() {
 }
 
 #[test]
-fn box_and_ellipsoid_report_events_inside_them_only() {
+fn box_and_ellipsoid_report_the_encounters_that_enter_them() {
+    // Every sphere event whose TCA lies inside the volume is reported; any
+    // other reported event is an encounter that enters the volume away from
+    // its TCA (issue 17), checked at its entry and exit; and the whole set
+    // equals the brute-force reference's.
     let objects = demo_objects();
     let base = ScreeningRequest {
         primaries: &objects,
@@ -295,21 +299,46 @@ fn box_and_ellipsoid_report_events_inside_them_only() {
             cross_track_km: 8.0,
         },
     ] {
-        let r = screen(&ScreeningRequest {
+        let request = ScreeningRequest {
             settings: ScreeningSettings {
                 volume,
                 ..Default::default()
             },
             ..base
-        });
-        let expected: Vec<_> = all
+        };
+        let r = screen(&request);
+        let brute = screen_brute_force(&request, 10.0);
+        assert_eq!(r.events.len(), brute.events.len(), "{volume:?}");
+        for (a, b) in r.events.iter().zip(&brute.events) {
+            assert!(a.tca.s_since(b.tca).abs() < 1e-3);
+            assert!((a.miss_distance_km - b.miss_distance_km).abs() < 1e-6);
+        }
+        let inside_at_tca: Vec<_> = all
             .iter()
             .filter(|e| volume.contains(&[e.radial_km, e.in_track_km, e.cross_track_km]))
             .collect();
-        assert_eq!(r.events.len(), expected.len(), "{volume:?}");
-        for (a, b) in r.events.iter().zip(expected) {
-            assert!(a.tca.s_since(b.tca).abs() < 1e-3);
+        for e in &inside_at_tca {
+            assert!(
+                r.events
+                    .iter()
+                    .any(|a| a.tca.s_since(e.tca).abs() < 1e-3 && a.tca_inside_volume),
+                "{volume:?}: {e:?}"
+            );
         }
+        for a in r.events.iter().filter(|a| !a.tca_inside_volume) {
+            // Inside just after the entry and just before the exit.
+            let p1 = Propagator::new(objects.iter().find(|s| s.name == a.primary).unwrap());
+            let p2 = Propagator::new(objects.iter().find(|s| s.name == a.secondary).unwrap());
+            let (p1, p2) = (p1.unwrap(), p2.unwrap());
+            for tt in [a.volume_entry.add_s(2e-3), a.volume_exit.add_s(-2e-3)] {
+                let (s1, s2) = (p1.state_at(tt).unwrap(), p2.state_at(tt).unwrap());
+                let d: [f64; 3] = std::array::from_fn(|k| s2.position_km[k] - s1.position_km[k]);
+                let ric =
+                    passlane_plan::screen::ric_components(&s1.position_km, &s1.velocity_km_s, &d);
+                assert!(volume.contains(&ric), "{volume:?} {a:?} at {tt}: {ric:?}");
+            }
+        }
+        assert!(r.events.len() >= inside_at_tca.len());
     }
 }
 

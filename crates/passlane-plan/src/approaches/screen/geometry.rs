@@ -96,99 +96,327 @@ pub(crate) fn refine_tca(
     Ok(None)
 }
 
-/// Normalised volume measure of `r2 − r1` at `t`: ≤ 1 inside.
-fn volume_measure(
+/// How a candidate approach was found, which decides how it is refined.
+#[derive(Debug, Clone, Copy)]
+pub(crate) enum Seed {
+    /// Δr·Δv changes sign from − to + inside [lo, hi] (on the interpolant or on
+    /// direct SGP4 samples); `guess` is the root found there.
+    Minimum {
+        guess: UtcTime,
+        lo: UtcTime,
+        hi: UtcTime,
+    },
+    /// The window's edge `at`, where the distance is still falling (the end)
+    /// or already rising (the start): the minimum over the window is there.
+    Edge { at: UtcTime },
+    /// The pair stays within reach across [lo, hi]: every minimum inside is
+    /// found from direct SGP4 samples (co-orbiting and slowly drifting pairs,
+    /// whose interpolated Δr·Δv is too small to trust).
+    Proximity { lo: UtcTime, hi: UtcTime },
+}
+
+/// Δr·Δv (km²/s), distance (km) and both states at `t`, direct from SGP4.
+fn pair_state(
+    p1: &Propagator,
+    p2: &Propagator,
+    t: UtcTime,
+) -> Result<(f64, f64, StateTeme, StateTeme), PropagationError> {
+    let s1 = p1.state_at(t)?;
+    let s2 = p2.state_at(t)?;
+    let dr = sub(&s2.position_km, &s1.position_km);
+    let dv = sub(&s2.velocity_km_s, &s1.velocity_km_s);
+    Ok((dot(&dr, &dv), norm(&dr), s1, s2))
+}
+
+/// The root of Δr·Δv in [lo, hi] with direct SGP4, when it changes sign
+/// there from − to +, to 10 µs.
+fn sgp4_bracket_root(
+    p1: &Propagator,
+    p2: &Propagator,
+    lo: UtcTime,
+    hi: UtcTime,
+) -> Result<Option<UtcTime>, PropagationError> {
+    let f = |t: f64| -> Result<f64, PropagationError> {
+        Ok(pair_state(p1, p2, UtcTime::from_s_since_j2000(t))?.0)
+    };
+    let (x0, x1) = (lo.s_since_j2000(), hi.s_since_j2000());
+    let (g0, g1) = (f(x0)?, f(x1)?);
+    if !(g0 < 0.0 && g1 >= 0.0) {
+        return Ok(None);
+    }
+    let err = std::cell::Cell::new(None);
+    let root = crate::numeric::bracketed_root(
+        |t| match f(t) {
+            Ok(v) => Some(v),
+            Err(e) => {
+                err.set(Some(e));
+                None
+            }
+        },
+        x0,
+        x1,
+        g0,
+        g1,
+        1e-5,
+    );
+    if let Some(e) = err.take() {
+        return Err(e);
+    }
+    Ok(root.map(UtcTime::from_s_since_j2000))
+}
+
+/// An event before the volume intervals of a pair are joined: whether its
+/// walk ended while still inside the volume at a distance maximum (the
+/// interval goes on into the pair's neighbouring encounter).
+pub(crate) struct Built {
+    pub event: CloseApproach,
+    pub entry_open: bool,
+    pub exit_open: bool,
+}
+
+/// Every event a seed leads to (none, one, or for a proximity seed several),
+/// evaluated with direct SGP4 inside `window`.
+pub(crate) fn evaluate_seed(
+    o1: (&ObjectId, &Propagator),
+    o2: (&ObjectId, &Propagator),
+    volume: &ScreeningVolume,
+    seed: Seed,
+    window: (UtcTime, UtcTime),
+) -> Result<Vec<Built>, PropagationError> {
+    let (p1, p2) = (o1.1, o2.1);
+    let inside_window = |t: UtcTime| t > window.0 && t < window.1;
+    let mut tcas: Vec<(UtcTime, bool)> = Vec::new();
+    match seed {
+        Seed::Minimum { guess, lo, hi } => {
+            let (lo, hi) = (lo.max(window.0), hi.min(window.1));
+            let t = match sgp4_bracket_root(p1, p2, lo, hi)? {
+                Some(t) => Some(t),
+                // The interpolant's bracket does not hold for SGP4 (the root
+                // sits just outside it): Newton from the interpolant's root.
+                None => refine_tca(p1, p2, guess, lo, hi)?.map(|(t, _, _)| t),
+            };
+            if let Some(t) = t.filter(|&t| inside_window(t)) {
+                tcas.push((t, false));
+            }
+        }
+        Seed::Edge { at } => {
+            let (f, _, _, _) = pair_state(p1, p2, at)?;
+            let at_start = at <= window.0;
+            if (at_start && f >= 0.0) || (!at_start && f <= 0.0) {
+                tcas.push((at, true));
+            }
+        }
+        Seed::Proximity { lo, hi } => {
+            let (lo, hi) = (lo.max(window.0), hi.min(window.1));
+            const N: usize = 8;
+            let dt = hi.s_since(lo) / N as f64;
+            let mut prev = (lo, pair_state(p1, p2, lo)?.0);
+            for k in 1..=N {
+                let t = lo.add_s(dt * k as f64);
+                let f = pair_state(p1, p2, t)?.0;
+                if prev.1 < 0.0
+                    && f >= 0.0
+                    && let Some(r) = sgp4_bracket_root(p1, p2, prev.0, t)?
+                    && inside_window(r)
+                {
+                    tcas.push((r, false));
+                }
+                prev = (t, f);
+            }
+        }
+    }
+    let mut out = Vec::new();
+    for (tca, clipped) in tcas {
+        let (_, _, s1, s2) = pair_state(p1, p2, tca)?;
+        if let Some(b) = build_event(o1, o2, volume, tca, s1, s2, window, clipped)? {
+            out.push(b);
+        }
+    }
+    Ok(out)
+}
+
+/// One sample of the relative motion during an encounter walk.
+#[derive(Clone, Copy)]
+struct WalkSample {
+    t: UtcTime,
+    measure: f64,
+}
+
+/// Normalised volume measure (≤ 1 inside), Δr·Δv and distance of the pair at `t`.
+fn volume_sample(
     p1: &Propagator,
     p2: &Propagator,
     volume: &ScreeningVolume,
     t: UtcTime,
-) -> Result<f64, PropagationError> {
+) -> Result<(f64, f64, f64), PropagationError> {
     let s1 = p1.state_at(t)?;
     let s2 = p2.state_at(t)?;
     let dr = sub(&s2.position_km, &s1.position_km);
-    Ok(volume.measure(&ric_components(&s1.position_km, &s1.velocity_km_s, &dr)))
+    let dv = sub(&s2.velocity_km_s, &s1.velocity_km_s);
+    let m = volume.measure(&ric_components(&s1.position_km, &s1.velocity_km_s, &dr));
+    Ok((m, dot(&dr, &dv), norm(&dr)))
 }
 
-/// Time the pair crosses the volume boundary on the side `direction` (−1:
-/// entry, before TCA; +1: exit) of `tca`, to 1 ms. Steps outward in steps
-/// short enough not to jump over a brief passage (a fifth of the time to cross
-/// the volume at the TCA speed, at most 60 s), then bisects. Clamped to `limit`.
-pub(crate) fn volume_crossing(
+/// Walks from the TCA in `direction` (−1 back, +1 forward) in steps of
+/// `step_s` while the pair is inside the volume's bounding sphere and the
+/// distance keeps growing (a distance maximum ends this encounter), up to
+/// `limit`. Returns the samples in walking order and whether the walk ended
+/// at a distance maximum while still inside the volume.
+#[allow(clippy::too_many_arguments)]
+fn walk(
     p1: &Propagator,
     p2: &Propagator,
     volume: &ScreeningVolume,
     tca: UtcTime,
-    relative_speed_km_s: f64,
+    step_s: f64,
     direction: f64,
     limit: UtcTime,
-) -> Result<UtcTime, PropagationError> {
-    let step_s =
-        (0.2 * volume.smallest_half_size_km() / relative_speed_km_s.max(1e-9)).clamp(1e-3, 60.0);
-    let mut inside = tca;
+) -> Result<(Vec<WalkSample>, bool), PropagationError> {
+    let bound_km = volume.bounding_radius_km();
+    let mut samples = Vec::new();
+    let mut t = tca;
     loop {
-        let next = inside.add_s(direction * step_s);
-        let past_limit = if direction < 0.0 {
+        let mut next = t.add_s(direction * step_s);
+        let at_limit = if direction < 0.0 {
             next <= limit
         } else {
             next >= limit
         };
-        if past_limit {
-            if volume_measure(p1, p2, volume, limit)? <= 1.0 {
-                return Ok(limit);
-            }
-            return bisect(p1, p2, volume, inside, limit);
+        if at_limit {
+            next = limit;
         }
-        if volume_measure(p1, p2, volume, next)? > 1.0 {
-            return bisect(p1, p2, volume, inside, next);
+        if next == t {
+            return Ok((samples, false));
         }
-        inside = next;
+        let (m, f, dist) = volume_sample(p1, p2, volume, next)?;
+        samples.push(WalkSample {
+            t: next,
+            measure: m,
+        });
+        if dist > bound_km {
+            return Ok((samples, false));
+        }
+        // Walking forward the distance grows while f > 0; backward while f < 0.
+        if f * direction < 0.0 {
+            return Ok((samples, m <= 1.0));
+        }
+        if at_limit {
+            return Ok((samples, false));
+        }
+        t = next;
     }
 }
 
-fn bisect(
-    p1: &Propagator,
-    p2: &Propagator,
-    volume: &ScreeningVolume,
-    inside: UtcTime,
-    outside: UtcTime,
-) -> Result<UtcTime, PropagationError> {
-    let s = bisect_boundary(
-        |t_s| Ok(volume_measure(p1, p2, volume, UtcTime::from_s_since_j2000(t_s))? <= 1.0),
-        inside.s_since_j2000(),
-        outside.s_since_j2000(),
-        5e-4,
-    )?;
-    Ok(UtcTime::from_s_since_j2000(s))
-}
-
-/// Identity of one screened object, as the event reports it.
-#[derive(Debug, Clone)]
-pub(crate) struct ObjectId {
-    pub name: String,
-    pub catalog_number: u32,
-}
-
-/// Builds the event from refined states, or `None` when the TCA lies outside
-/// the volume. Entry and exit are clamped to the screening window.
+/// Builds the event of the distance minimum at `tca` (a local minimum, or
+/// `clipped`: the window's edge), or `None` when the relative trajectory
+/// never enters the volume during this encounter. The encounter is the part
+/// of the relative trajectory around the TCA inside the volume's bounding
+/// sphere up to the neighbouring distance maxima; it is walked with direct
+/// SGP4 in steps of a fifth of the time to cross the volume's smallest
+/// half-size at the TCA's relative speed (1 ms to 60 s), and the smallest
+/// volume measure is refined by a minimisation around the lowest sample, so a
+/// box corner crossed away from the distance minimum is found. Entry and exit
+/// are the first and last crossings of the volume's boundary in the
+/// encounter (to 1 ms), clamped to the window.
 #[allow(clippy::too_many_arguments)]
 pub(crate) fn build_event(
-    id1: &ObjectId,
-    p1: &Propagator,
-    id2: &ObjectId,
-    p2: &Propagator,
+    o1: (&ObjectId, &Propagator),
+    o2: (&ObjectId, &Propagator),
     volume: &ScreeningVolume,
     tca: UtcTime,
     s1: StateTeme,
     s2: StateTeme,
     window: (UtcTime, UtcTime),
-) -> Result<Option<CloseApproach>, PropagationError> {
+    clipped: bool,
+) -> Result<Option<Built>, PropagationError> {
+    let (p1, p2) = (o1.1, o2.1);
     let g = relative_geometry(&s1, &s2);
-    if volume.measure(&[g.radial_km, g.in_track_km, g.cross_track_km]) > 1.0 {
+    if !(g.miss_distance_km <= volume.bounding_radius_km()) {
         return Ok(None);
     }
-    let entry = volume_crossing(p1, p2, volume, tca, g.relative_speed_km_s, -1.0, window.0)?;
-    let exit = volume_crossing(p1, p2, volume, tca, g.relative_speed_km_s, 1.0, window.1)?;
-    Ok(Some(CloseApproach {
+    let m_tca = volume.measure(&[g.radial_km, g.in_track_km, g.cross_track_km]);
+    let step_s =
+        (0.2 * volume.smallest_half_size_km() / g.relative_speed_km_s.max(1e-9)).clamp(1e-3, 60.0);
+    let (back, entry_open) = walk(p1, p2, volume, tca, step_s, -1.0, window.0)?;
+    let (fwd, exit_open) = walk(p1, p2, volume, tca, step_s, 1.0, window.1)?;
+    // Every sample in time order.
+    let mut samples: Vec<WalkSample> = back.into_iter().rev().collect();
+    samples.push(WalkSample {
+        t: tca,
+        measure: m_tca,
+    });
+    samples.extend(fwd);
+    let mut first_in = samples.iter().position(|s| s.measure <= 1.0);
+    let mut graze: Option<UtcTime> = None;
+    if first_in.is_none() {
+        // No sample inside: the deepest point may lie between two samples.
+        let (k, _) = samples
+            .iter()
+            .enumerate()
+            .min_by(|a, b| a.1.measure.total_cmp(&b.1.measure))
+            .unwrap_or((0, &samples[0]));
+        let lo = samples[k.saturating_sub(1)].t.s_since_j2000();
+        let hi = samples[(k + 1).min(samples.len() - 1)].t.s_since_j2000();
+        let err = std::cell::Cell::new(None);
+        let (t_min, m_min) = crate::numeric::golden_extremum(
+            |t| match volume_sample(p1, p2, volume, UtcTime::from_s_since_j2000(t)) {
+                Ok((m, _, _)) => m,
+                Err(e) => {
+                    err.set(Some(e));
+                    f64::INFINITY
+                }
+            },
+            lo,
+            hi,
+            false,
+        );
+        if let Some(e) = err.take() {
+            return Err(e);
+        }
+        if m_min > 1.0 {
+            return Ok(None);
+        }
+        graze = Some(UtcTime::from_s_since_j2000(t_min));
+        first_in = Some(k);
+    }
+    let boundary = |inside: UtcTime, outside: UtcTime| -> Result<UtcTime, PropagationError> {
+        let s = bisect_boundary(
+            |t_s| {
+                let t = UtcTime::from_s_since_j2000(t_s);
+                Ok(volume_sample(p1, p2, volume, t)?.0 <= 1.0)
+            },
+            inside.s_since_j2000(),
+            outside.s_since_j2000(),
+            5e-4,
+        )?;
+        Ok(UtcTime::from_s_since_j2000(s))
+    };
+    let (entry, exit) = if let Some(t) = graze {
+        // A graze between two samples: the boundary on either side of its deepest point.
+        let k = first_in.unwrap_or(0);
+        let before = samples[k.saturating_sub(1)].t;
+        let after = samples[(k + 1).min(samples.len() - 1)].t;
+        (boundary(t, before)?, boundary(t, after)?)
+    } else {
+        let first = first_in.unwrap_or(0);
+        let last = samples
+            .iter()
+            .rposition(|s| s.measure <= 1.0)
+            .unwrap_or(first);
+        let entry = if first == 0 {
+            samples[0].t
+        } else {
+            boundary(samples[first].t, samples[first - 1].t)?
+        };
+        let exit = if last + 1 == samples.len() {
+            samples[last].t
+        } else {
+            boundary(samples[last].t, samples[last + 1].t)?
+        };
+        (entry, exit)
+    };
+    let (id1, id2) = (o1.0, o2.0);
+    let event = CloseApproach {
         primary: id1.name.clone(),
         secondary: id2.name.clone(),
         primary_catalog_number: id1.catalog_number,
@@ -204,5 +432,65 @@ pub(crate) fn build_event(
         volume_exit: exit,
         primary_state: s1,
         secondary_state: s2,
+        clipped,
+        tca_inside_volume: m_tca <= 1.0,
+        volume_entry_clipped: entry <= window.0,
+        volume_exit_clipped: exit >= window.1,
+        interval_minima: 1,
+        interval_min_miss_km: g.miss_distance_km,
+    };
+    Ok(Some(Built {
+        event,
+        entry_open: entry_open && graze.is_none(),
+        exit_open: exit_open && graze.is_none(),
     }))
+}
+
+/// Identity of one screened object, as the event reports it.
+#[derive(Debug, Clone)]
+pub(crate) struct ObjectId {
+    pub name: String,
+    pub catalog_number: u32,
+}
+
+/// Joins the volume intervals of a pair's consecutive encounters whose walks
+/// met inside the volume (a pair that stays inside across a distance
+/// maximum): every event of one interval gets its entry, exit, number of
+/// minima and smallest miss. `built` must be sorted by pair, then TCA.
+pub(crate) fn join_intervals(built: &mut [Built]) {
+    let same_pair = |a: &CloseApproach, b: &CloseApproach| {
+        a.primary_catalog_number == b.primary_catalog_number
+            && a.secondary_catalog_number == b.secondary_catalog_number
+    };
+    let mut k = 0;
+    while k < built.len() {
+        let mut end = k + 1;
+        while end < built.len()
+            && built[end - 1].exit_open
+            && built[end].entry_open
+            && same_pair(&built[end - 1].event, &built[end].event)
+        {
+            end += 1;
+        }
+        let group = &mut built[k..end];
+        let entry = group[0].event.volume_entry;
+        let entry_clipped = group[0].event.volume_entry_clipped;
+        let exit = group[group.len() - 1].event.volume_exit;
+        let exit_clipped = group[group.len() - 1].event.volume_exit_clipped;
+        let minima = group.iter().filter(|b| !b.event.clipped).count() as u32;
+        let least = group
+            .iter()
+            .map(|b| b.event.miss_distance_km)
+            .fold(f64::INFINITY, f64::min);
+        for b in group.iter_mut() {
+            let e = &mut b.event;
+            e.volume_entry = entry;
+            e.volume_exit = exit;
+            e.volume_entry_clipped = entry_clipped;
+            e.volume_exit_clipped = exit_clipped;
+            e.interval_minima = minima;
+            e.interval_min_miss_km = least;
+        }
+        k = end;
+    }
 }

@@ -12,6 +12,7 @@ use passlane_orbit::frames::{dot, norm, sub};
 
 use super::MAX_ACCELERATION_KM_S2;
 use super::ScreeningSettings;
+use super::geometry::Seed;
 use super::hermite::{Sample, hermite};
 use super::objects::{Object, ObjectCursor};
 use crate::numeric::bracketed_root;
@@ -21,7 +22,7 @@ use crate::numeric::bracketed_root;
 pub(super) struct Candidate {
     pub(super) i: usize,
     pub(super) j: usize,
-    pub(super) time: UtcTime,
+    pub(super) seed: Seed,
     pub(super) interpolated_miss_km: f64,
 }
 
@@ -220,6 +221,8 @@ pub(super) struct ChunkContext<'a> {
     /// Largest closing speed any pair can have in the chunk (sum of the two
     /// largest speed bounds, or the largest of each group), km/s.
     pub(super) v_pair_km_s: f64,
+    /// The screening window: a pair near one of its ends gets an edge seed.
+    pub(super) window: (UtcTime, UtcTime),
 }
 
 /// The bounds of one hash step [a, b] (see the module docs of [`super`]).
@@ -521,13 +524,47 @@ impl ChunkContext<'_> {
         };
         const SUB: usize = 4;
         let dt_sub = 2.0 * half_s / SUB as f64;
-        let Some((mut f_lo, _)) = f_at(t0) else {
+        let mut f = [(0.0, 0.0); SUB + 1];
+        for (k, v) in f.iter_mut().enumerate() {
+            let Some(x) = f_at(t0 + k as f64 * dt_sub) else {
+                return;
+            };
+            *v = x;
+        }
+        let d_km = self.settings.volume.bounding_radius_km() + self.margin_km;
+        // The window's ends: a pair within reach there whose distance is
+        // still falling at the end (or already rising at the start) has its
+        // smallest distance on the edge.
+        if a <= self.window.0 && f[0].0 > 0.0 && f[0].1 <= d_km {
+            out.push(Candidate {
+                i,
+                j,
+                seed: Seed::Edge { at: self.window.0 },
+                interpolated_miss_km: f[0].1,
+            });
+        }
+        if b >= self.window.1 && f[SUB].0 < 0.0 && f[SUB].1 <= d_km {
+            out.push(Candidate {
+                i,
+                j,
+                seed: Seed::Edge { at: self.window.1 },
+                interpolated_miss_km: f[SUB].1,
+            });
+        }
+        // A pair within reach across the whole step moves slowly relative to
+        // the other: its minima are found from direct SGP4 over the step.
+        if f.iter().all(|&(_, d)| d <= d_km) {
+            out.push(Candidate {
+                i,
+                j,
+                seed: Seed::Proximity { lo: a, hi: b },
+                interpolated_miss_km: f.iter().map(|x| x.1).fold(f64::INFINITY, f64::min),
+            });
             return;
-        };
+        }
         for k in 0..SUB {
-            let lo = t0 + k as f64 * dt_sub;
-            let hi = lo + dt_sub;
-            let Some((f_hi, _)) = f_at(hi) else { return };
+            let (lo, hi) = (t0 + k as f64 * dt_sub, t0 + (k + 1) as f64 * dt_sub);
+            let (f_lo, f_hi) = (f[k].0, f[k + 1].0);
             if f_lo < 0.0 && f_hi >= 0.0 {
                 // To 0.1 ms on the interpolant.
                 let Some(x) = bracketed_root(|t| f_at(t).map(|(f, _)| f), lo, hi, f_lo, f_hi, 1e-4)
@@ -538,12 +575,15 @@ impl ChunkContext<'_> {
                     out.push(Candidate {
                         i,
                         j,
-                        time: self.chunk_start.add_s(x),
+                        seed: Seed::Minimum {
+                            guess: self.chunk_start.add_s(x),
+                            lo: self.chunk_start.add_s(lo),
+                            hi: self.chunk_start.add_s(hi),
+                        },
                         interpolated_miss_km: dist,
                     });
                 }
             }
-            f_lo = f_hi;
         }
     }
 }

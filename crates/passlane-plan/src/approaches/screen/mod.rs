@@ -35,11 +35,28 @@
 //!      cell and the 26 around it) and each catalog object looks up its own
 //!      cell, after a radial-band test against the fleet's radii.
 //!   4. **Pair test and TCA.** Candidates pass a linear-motion bound, then the
-//!      roots of Δr·Δv on the interpolant inside the step give the minima.
-//!   5. **Final evaluation with direct SGP4**: Newton on Δr·Δv refines the TCA
-//!      to well under 1 ms; miss distance, RIC and states come from SGP4 at the
-//!      TCA, not from the interpolant; entry and exit of the volume are
-//!      root-found with SGP4 too.
+//!      roots of Δr·Δv on the interpolant inside the step give the minima. A
+//!      pair within reach across a whole step (co-orbiting objects, formation
+//!      flyers, a deployer and its cubesats, slowly drifting pairs) is handed
+//!      on as a *proximity* seed instead: its Δr·Δv is too small for the
+//!      interpolant, so its minima are found from direct SGP4 samples over
+//!      the step (eight per step). A pair within reach at the window's start
+//!      with its distance already rising, or at the end with it still
+//!      falling, gets an *edge* seed: its smallest distance is on the edge.
+//!   5. **Final evaluation with direct SGP4**: the root of Δr·Δv inside the
+//!      interpolant's bracket (safeguarded regula falsi on SGP4 to 10 µs;
+//!      Newton from the interpolant's root when SGP4's signs do not bracket
+//!      it); miss distance, RIC and states come from SGP4 at the TCA, not
+//!      from the interpolant. Then the **encounter walk**: from the TCA
+//!      backwards and forwards, in steps of a fifth of the time to cross the
+//!      volume's smallest half-size at the TCA's relative speed (1 ms to
+//!      60 s), while the pair stays inside the volume's bounding sphere and
+//!      up to the neighbouring distance maxima; the volume is tested at every
+//!      step and its measure minimised around the lowest sample, so a box or
+//!      ellipsoid corner crossed away from the distance minimum is found.
+//!      Entry and exit are the first and last crossings of the volume's
+//!      boundary (bisection to 1 ms). Walks that meet inside the volume at a
+//!      distance maximum join two encounters into one volume interval.
 //!
 //! # Why no event is missed
 //! Every discarding step uses a bound, never a sample:
@@ -63,9 +80,22 @@
 //! The test `fast_screening_equals_brute_force_reference` and the benchmark's
 //! 2,000-object case check the result against brute-force sampling.
 //!
-//! An event is a local minimum of the distance whose relative position at TCA
-//! lies inside the volume; a pair can have many over a window. Minima at the
-//! very ends of the window (not local minima) are not events.
+//! An event is a local minimum of the distance (or the window's edge, where
+//! the distance is smallest when it is still falling at the end or already
+//! rising at the start: `clipped`) whose encounter enters the volume; a pair
+//! can have many over a window. For a sphere that is the TCA inside the
+//! sphere; for a box or ellipsoid the trajectory may enter the volume only
+//! away from the TCA (`tca_inside_volume` false). A pair that stays inside
+//! the volume across distance maxima has one event per minimum, all sharing
+//! one volume interval (`volume_entry` to `volume_exit`, `interval_minima`,
+//! `interval_min_miss_km`).
+//!
+//! Proximity seeds and the encounter walk use direct SGP4 and rest on one
+//! assumption, stated here: a distance minimum and maximum of one pair are
+//! more than a few seconds apart (a quarter of an orbit for co-orbiting
+//! pairs), so eight samples per 30 s step see every sign change of Δr·Δv,
+//! and the walk's step sees every entry into the volume except grazes
+//! shallower than the minimisation around the lowest sample recovers.
 //!
 //! # Cost
 //! Measured with `benches/screening.rs` (synthetic 30,000-object catalog, 10 km
@@ -83,8 +113,6 @@
 //! - No file I/O and no printing: results and per-object diagnostics are values.
 //! - An object whose propagation fails (decay, divergence) is reported once and
 //!   screened no further from the chunk of samples where it failed; the rest go on.
-//! - For a box or ellipsoid the test is made at the TCA only: a pair that grazes a
-//!   corner of an elongated box away from its distance minimum is not reported.
 
 mod geometry;
 mod grid;
@@ -102,7 +130,7 @@ pub use geometry::{relative_geometry, ric_components};
 pub use reference::screen_brute_force;
 
 use crate::progress::Progress;
-use geometry::{build_event, refine_tca};
+use geometry::{Built, evaluate_seed, join_intervals};
 use grid::{Candidate, ChunkContext, Flat, Scratch};
 use hermite::{Sample, hermite};
 use objects::{
@@ -268,7 +296,9 @@ pub struct CloseApproach {
     pub relative_speed_km_s: f64,
     /// Angle between the two velocity vectors at TCA, degrees.
     pub approach_angle_deg: f64,
-    /// When the secondary enters the volume around this TCA (clamped to the window start).
+    /// When the secondary enters the volume in this encounter (clamped to the
+    /// window start). For a box or ellipsoid this can be after the TCA (the
+    /// trajectory crosses the volume away from the distance minimum).
     #[serde(serialize_with = "passlane_orbit::time::iso_us")]
     pub volume_entry: UtcTime,
     /// When it leaves the volume again (clamped to the window end).
@@ -277,6 +307,25 @@ pub struct CloseApproach {
     /// TEME states at TCA, direct from SGP4.
     pub primary_state: StateTeme,
     pub secondary_state: StateTeme,
+    /// The TCA is the window's start or end, not a local minimum: the
+    /// distance was still falling when the window ended (or already rising
+    /// when it began), as a pass clipped by the window.
+    pub clipped: bool,
+    /// The relative position at TCA is inside the volume (always, for a
+    /// sphere; for a box or ellipsoid the trajectory may enter it only away
+    /// from the distance minimum).
+    pub tca_inside_volume: bool,
+    /// `volume_entry` is the window's start (the pair was already inside).
+    pub volume_entry_clipped: bool,
+    /// `volume_exit` is the window's end (the pair is still inside).
+    pub volume_exit_clipped: bool,
+    /// Local distance minima inside this event's volume interval (entry to
+    /// exit): more than one for a pair that stays inside across a distance
+    /// maximum (formation flyers, a deployer and its cubesats, co-orbiting
+    /// objects). Each minimum is its own event; they share the interval.
+    pub interval_minima: u32,
+    /// Smallest miss distance over the volume interval, km.
+    pub interval_min_miss_km: f64,
 }
 
 /// An object that could not be screened (fully or from some time on).
@@ -390,6 +439,7 @@ pub fn screen_with_progress(
             margin_km,
             cross: request.secondaries.is_some(),
             v_pair_km_s: flat.pair_speed_km_s(request.secondaries.is_some()),
+            window: (request.start, request.end),
         };
         let found: Vec<Vec<Candidate>> = (0..n_steps)
             .into_par_iter()
@@ -416,33 +466,21 @@ pub fn screen_with_progress(
     result.stats.refinements = candidates.len() as u64;
     let clock = std::time::Instant::now();
     let window = (request.start, result.screened_until);
-    let refined: Vec<Result<Option<CloseApproach>, PropagationError>> = candidates
+    let built: Vec<Result<Vec<Built>, PropagationError>> = candidates
         .par_iter()
         .map(|c| {
             let (o1, o2) = (&objects[c.i], &objects[c.j]);
-            let lo = c.time.add_s(-settings.hash_step_s);
-            let hi = c.time.add_s(settings.hash_step_s);
-            match refine_tca(&o1.prop, &o2.prop, c.time, lo, hi)? {
-                Some((tca, s1, s2)) if tca > window.0 && tca < window.1 => build_event(
-                    &o1.id,
-                    &o1.prop,
-                    &o2.id,
-                    &o2.prop,
-                    &settings.volume,
-                    tca,
-                    s1,
-                    s2,
-                    window,
-                ),
-                _ => Ok(None),
-            }
+            evaluate_seed(
+                (&o1.id, &o1.prop),
+                (&o2.id, &o2.prop),
+                &settings.volume,
+                c.seed,
+                window,
+            )
         })
         .collect();
-    let mut events: Vec<CloseApproach> = refined
-        .into_iter()
-        .filter_map(|r| r.ok().flatten())
-        .collect();
-    sort_and_dedup(&mut events);
+    let built: Vec<Built> = built.into_iter().filter_map(Result::ok).flatten().collect();
+    let events = finish_events(built);
     result.events = events;
     result.stats.evaluation_s = clock.elapsed().as_secs_f64();
     result
@@ -453,19 +491,30 @@ pub(crate) fn positive(x: f64) -> bool {
     x > 0.0
 }
 
-/// Sorts by TCA and drops the same minimum found twice (two neighbouring steps
-/// can converge on one approach when a pair moves slowly relative to each other).
-pub(crate) fn sort_and_dedup(events: &mut Vec<CloseApproach>) {
-    events.sort_by(|a, b| {
+/// Drops the same minimum found twice (two neighbouring steps, or a step's
+/// interpolant and a proximity scan, can converge on one approach), joins
+/// the volume intervals of each pair, and sorts by TCA.
+pub(crate) fn finish_events(mut built: Vec<Built>) -> Vec<CloseApproach> {
+    built.sort_by(|a, b| {
+        let (a, b) = (&a.event, &b.event);
         (a.primary_catalog_number, a.secondary_catalog_number)
             .cmp(&(b.primary_catalog_number, b.secondary_catalog_number))
             .then(a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()))
     });
-    events.dedup_by(|b, a| {
+    built.dedup_by(|b, a| {
+        let (a, b) = (&a.event, &b.event);
         a.primary_catalog_number == b.primary_catalog_number
             && a.secondary_catalog_number == b.secondary_catalog_number
             && b.tca.s_since(a.tca).abs() < 0.01
     });
+    join_intervals(&mut built);
+    let mut events: Vec<CloseApproach> = built.into_iter().map(|b| b.event).collect();
+    sort_by_tca(&mut events);
+    events
+}
+
+/// Sorts by TCA, then by pair.
+pub(crate) fn sort_by_tca(events: &mut [CloseApproach]) {
     events.sort_by(|a, b| {
         a.tca
             .s_since_j2000()

@@ -1,19 +1,23 @@
 //! Brute-force reference screening: every pair, direct SGP4 states at a fine
-//! fixed step, every sign change of Δr·Δv from − to + refined. Slow by design
+//! fixed step (the last sample exactly at the window's end), every sign change
+//! of Δr·Δv from − to + between two samples refined on direct SGP4 (a
+//! bracketed root to 10 µs), and the window's ends taken as minima where the
+//! distance is still falling (end) or already rising (start). Slow by design
 //! (pairs × samples); tests and the benchmark compare the fast screening to it.
 //!
-//! It shares only the final refinement and evaluation with the fast path, so a
-//! candidate the fast path loses shows up as a missing event.
+//! It shares only the final evaluation with the fast path (the root on SGP4
+//! inside a bracket, the encounter walk against the volume), so a candidate
+//! the fast path loses shows up as a missing event.
 
 use rayon::prelude::*;
 
+use passlane_orbit::PropagationError;
 use passlane_orbit::frames::{dot, norm, sub};
-use passlane_orbit::{PropagationError, UtcTime};
 
-use super::geometry::{build_event, refine_tca};
+use super::geometry::{Built, Seed, evaluate_seed};
 use super::{
-    CloseApproach, MAX_ACCELERATION_KM_S2, ScreeningRequest, ScreeningResult, diagnostic, positive,
-    prepare_objects, sort_and_dedup,
+    MAX_ACCELERATION_KM_S2, ScreeningRequest, ScreeningResult, diagnostic, finish_events, positive,
+    prepare_objects,
 };
 
 /// Fine samples per chunk of time (bounds memory: objects × this × 48 bytes).
@@ -46,10 +50,11 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
             .collect()
     };
     let partners: Vec<Vec<usize>> = (0..objects.len()).map(pairs_of).collect();
-    let n_total = (span_s / step_s).floor() as usize + 1;
+    let n_total = (span_s / step_s - 1e-9).ceil().max(1.0) as usize + 1;
+    let sample_time = |k: usize| request.start.add_s(k as f64 * step_s).min(request.end);
     let d_km = request.settings.volume.bounding_radius_km();
     let mut failed: Vec<bool> = vec![false; objects.len()];
-    let mut guesses: Vec<(usize, usize, UtcTime)> = Vec::new();
+    let mut guesses: Vec<(usize, usize, Seed)> = Vec::new();
     let mut k0 = 0;
     while k0 + 1 < n_total {
         let k1 = (k0 + CHUNK_SAMPLES).min(n_total - 1);
@@ -64,7 +69,7 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
                 }
                 let mut cursor = o.prop.cursor();
                 for k in k0..=k1 {
-                    match cursor.state_at(request.start.add_s(k as f64 * step_s)) {
+                    match cursor.state_at(sample_time(k)) {
                         Ok(s) => {
                             let (p, q) = (s.position_km, s.velocity_km_s);
                             v.push([p[0], p[1], p[2], q[0], q[1], q[2]]);
@@ -82,7 +87,8 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
                 result.diagnostics.push(diagnostic(&objects[idx], e));
             }
         }
-        let found: Vec<(usize, usize, UtcTime)> = (0..objects.len())
+        let last = k1 == n_total - 1;
+        let found: Vec<(usize, usize, Seed)> = (0..objects.len())
             .into_par_iter()
             .flat_map_iter(|i| {
                 let mut local = Vec::new();
@@ -97,16 +103,21 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
                         let f = dot(&dr, &dv);
                         let dist = norm(&dr);
                         let speed = norm(&dv);
+                        if k0 == 0 && k == 0 && f > 0.0 && dist <= d_km {
+                            local.push((i, j, Seed::Edge { at: request.start }));
+                        }
+                        if last && k + 1 == k1 - k0 + 1 && f < 0.0 && dist <= d_km {
+                            local.push((i, j, Seed::Edge { at: request.end }));
+                        }
                         if let Some((f0, dist0, speed0)) = prev {
                             // Over one step the distance falls by at most the
                             // largest relative speed times the step.
                             let reach = (speed0 + 2.0 * MAX_ACCELERATION_KM_S2 * step_s) * step_s;
                             if f0 < 0.0 && f >= 0.0 && dist0.min(dist) - reach <= d_km {
+                                let (lo, hi) = (sample_time(k0 + k - 1), sample_time(k0 + k));
                                 let frac = f0 / (f0 - f);
-                                let t = request
-                                    .start
-                                    .add_s((k0 + k - 1) as f64 * step_s + frac * step_s);
-                                local.push((i, j, t));
+                                let guess = lo.add_s(frac * hi.s_since(lo));
+                                local.push((i, j, Seed::Minimum { guess, lo, hi }));
                             }
                         }
                         prev = Some((f, dist, speed));
@@ -121,32 +132,21 @@ pub fn screen_brute_force(request: &ScreeningRequest<'_>, step_s: f64) -> Screen
     result.screened_until = request.end;
     result.stats.refinements = guesses.len() as u64;
     let window = (request.start, request.end);
-    let events: Vec<Option<CloseApproach>> = guesses
+    let built: Vec<Vec<Built>> = guesses
         .par_iter()
-        .map(|&(i, j, guess)| {
+        .map(|&(i, j, seed)| {
             let (o1, o2) = (&objects[i], &objects[j]);
-            let lo = guess.add_s(-step_s);
-            let hi = guess.add_s(step_s);
-            match refine_tca(&o1.prop, &o2.prop, guess, lo, hi) {
-                Ok(Some((tca, s1, s2))) if tca > window.0 && tca < window.1 => build_event(
-                    &o1.id,
-                    &o1.prop,
-                    &o2.id,
-                    &o2.prop,
-                    &request.settings.volume,
-                    tca,
-                    s1,
-                    s2,
-                    window,
-                )
-                .ok()
-                .flatten(),
-                _ => None,
-            }
+            evaluate_seed(
+                (&o1.id, &o1.prop),
+                (&o2.id, &o2.prop),
+                &request.settings.volume,
+                seed,
+                window,
+            )
+            .unwrap_or_default()
         })
         .collect();
-    let mut events: Vec<CloseApproach> = events.into_iter().flatten().collect();
-    sort_and_dedup(&mut events);
+    let events = finish_events(built.into_iter().flatten().collect());
     result.events = events;
     result
 }
