@@ -11,10 +11,20 @@
 /// Minimization without Derivatives", ch. 5). Returns (argument, value); the
 /// ends are considered too, as a clipped pass can peak on one.
 pub fn golden_extremum(f: impl Fn(f64) -> f64, a: f64, b: f64, maximise: bool) -> (f64, f64) {
+    brent_extremum(f, a, b, maximise, 5e-4)
+}
+
+/// [`golden_extremum`] to `tol` in the argument (absolute, plus 1e-12 of it).
+pub fn brent_extremum(
+    f: impl Fn(f64) -> f64,
+    a: f64,
+    b: f64,
+    maximise: bool,
+    tol: f64,
+) -> (f64, f64) {
     let sign = if maximise { -1.0 } else { 1.0 };
     let g = |t: f64| sign * f(t);
     const CGOLD: f64 = 0.381_966_011_250_105_1;
-    let tol = 5e-4;
     let (mut a, mut b) = (a.min(b), a.max(b));
     let (lo, hi) = (a, b);
     let mut x = a + CGOLD * (b - a);

@@ -6,7 +6,8 @@
 #![allow(clippy::panic, clippy::excessive_precision)]
 
 use passlane_plan::pc::{
-    Encounter2d, erf, erf_diff, erfc, pc_alfano, pc_chan, pc_foster, pc_max, pc_max_isotropic,
+    Encounter2d, erf, erf_diff, erfc, isotropic_max_sigma_m, pc, pc_alfano, pc_chan, pc_foster,
+    pc_max, pc_max_isotropic, pc_max_scan, pc_series,
 };
 use proptest::prelude::*;
 
@@ -128,6 +129,16 @@ fn alfano_matches_published_cases_to_1e_3() {
     for c in PUBLISHED_2D {
         let got = pc_alfano(&encounter(c));
         assert!(rel_err(got, c.5) < 1e-3, "{c:?}: alfano {got:e}");
+    }
+}
+
+#[test]
+fn fast_pc_matches_published_cases_and_the_reference_integral() {
+    for c in PUBLISHED_2D {
+        let e = encounter(c);
+        let (got, reference) = (pc(&e), pc_foster(&e));
+        assert!(rel_err(got, c.5) < 1e-3, "{c:?}: pc {got:e}");
+        assert!(rel_err(got, reference) < 1e-9, "{c:?}: pc {got:e} foster {reference:e}");
     }
 }
 
@@ -258,7 +269,7 @@ proptest! {
     fn pc_is_a_probability_and_grows_with_radius(t in arb_encounter(), grow in 1.01..3.0f64) {
         let small = enc(t);
         let big = enc((t.0, t.1, t.2, t.3, t.4 * grow));
-        for f in [pc_foster, pc_alfano, pc_chan] {
+        for f in [pc_foster, pc_alfano, pc_chan, pc] {
             let (a, b) = (f(&small), f(&big));
             prop_assert!((0.0..=1.0).contains(&a));
             prop_assert!(b >= a * (1.0 - 1e-9), "{a:e} -> {b:e}");
@@ -287,4 +298,115 @@ proptest! {
         let p = pc_foster(&scaled);
         prop_assert!(m.pc_max >= p * (1.0 - 1e-9), "max {:e} < pc {p:e}", m.pc_max);
     }
+}
+
+/// A fixed-seed sweep of encounter geometries for the fast methods: misses
+/// from inside the disk to 40 sigmas out (a seventh of them within 1.2 radii
+/// of the disk's centre), the smaller sigma from a tenth of
+/// the hard-body radius to 300 times it, aspect ratios 1 to 3,000, both axis
+/// orders. Probabilities span 1 down to below 1e-300.
+fn sweep(n: usize) -> Vec<Encounter2d> {
+    let mut state: u64 = 0x9E37_79B9_7F4A_7C15;
+    let mut next = move || {
+        state ^= state >> 12;
+        state ^= state << 25;
+        state ^= state >> 27;
+        (state.wrapping_mul(0x2545_F491_4F6C_DD1D) >> 11) as f64 / (1u64 << 53) as f64
+    };
+    (0..n)
+        .map(|_| {
+            let r = 1.0 + 49.0 * next();
+            let near = next() < 0.15;
+            let s_small = if near {
+                r * (10f64).powf(-1.0 + 1.5 * next())
+            } else {
+                r * (10f64).powf(-1.0 + 3.5 * next())
+            };
+            let aspect = (10f64).powf(3.5 * next());
+            let miss = if near {
+                1.2 * r * next()
+            } else {
+                s_small * aspect.powf(next()) * 40.0 * next() * next().sqrt()
+            };
+            let angle = std::f64::consts::TAU * next();
+            let (sx, sy) = if next() < 0.5 {
+                (s_small * aspect, s_small)
+            } else {
+                (s_small, s_small * aspect)
+            };
+            enc((miss * angle.cos(), miss * angle.sin(), sx, sy, r))
+        })
+        .collect()
+}
+
+#[test]
+fn fast_pc_matches_the_reference_integral_over_a_random_sweep() {
+    // Reference: our 2-D integral (`pc_foster`), itself checked against the
+    // published cases above. Requirement: 1e-6 relative (issue 13); the
+    // series and the fallback both do far better.
+    let (mut tiny, mut large, mut needle, mut anisotropic, mut fallback) = (0, 0, 0, 0, 0);
+    for e in sweep(600) {
+        let reference = pc_foster(&e);
+        let got = pc(&e);
+        let series = pc_series(&e);
+        // Below the smallest normal f64 (2.2e-308) digits are lost to
+        // subnormal rounding in every method; such values may come back as 0.
+        if reference < f64::MIN_POSITIVE {
+            assert!(got < 1e-300, "{e:?}: pc {got:e}, reference {reference:e}");
+            continue;
+        }
+        assert!(rel_err(got, reference) < 1e-6, "{e:?}: pc {got:e} reference {reference:e}");
+        if let Some(s) = series {
+            assert!(rel_err(s, reference) < 1e-6, "{e:?}: series {s:e} reference {reference:e}");
+        } else {
+            fallback += 1;
+        }
+        tiny += usize::from(reference < 1e-30);
+        large += usize::from(reference > 0.5);
+        needle += usize::from(e.sigma_x_m().min(e.sigma_y_m()) < 0.5 * e.hard_body_radius_m());
+        let aspect = e.sigma_x_m().max(e.sigma_y_m()) / e.sigma_x_m().min(e.sigma_y_m());
+        anisotropic += usize::from(aspect > 1e3);
+    }
+    // The sweep must reach the regimes it is meant to cover.
+    assert!(tiny >= 20, "only {tiny} cases below 1e-30");
+    assert!(large >= 10, "only {large} cases above 0.5");
+    assert!(needle >= 20, "only {needle} needle cases");
+    assert!(anisotropic >= 20, "only {anisotropic} cases with aspect ratio > 1e3");
+    assert!(fallback >= 5, "the fallback was exercised {fallback} times");
+}
+
+#[test]
+fn pc_max_matches_the_brute_force_maximum() {
+    // Reference: `pc_max_scan` (80 values of the 2-D integral over ±4 decades
+    // of scale, then golden-section refinement).
+    for e in sweep(120) {
+        let (fast, reference) = (pc_max(&e), pc_max_scan(&e));
+        if reference.pc_max < f64::MIN_POSITIVE {
+            assert!(fast.pc_max < 1e-300, "{e:?}");
+            continue;
+        }
+        assert!(
+            rel_err(fast.pc_max, reference.pc_max) < 1e-6,
+            "{e:?}: fast {fast:?} reference {reference:?}"
+        );
+    }
+}
+
+#[test]
+fn isotropic_max_has_the_closed_form_maximiser() {
+    // The stationary point of 1 − Q₁(d/σ, R/σ) (see `isotropic_max_sigma_m`)
+    // is where the brute-force search ends up, for small and large R/d.
+    for (d, r) in [(1000.0, 5.0), (100.0, 20.0), (30.0, 20.0), (20.5, 20.0)] {
+        let Ok(m) = pc_max_isotropic(d, r) else {
+            panic!("valid input")
+        };
+        let Ok(e) = Encounter2d::new(d, 0.0, 1.0, 1.0, r) else {
+            panic!("valid input")
+        };
+        let reference = pc_max_scan(&e);
+        assert!(rel_err(m.pc_max, reference.pc_max) < 1e-9, "{m:?} vs {reference:?}");
+        assert!(rel_err(m.sigma_x_m, reference.sigma_x_m) < 1e-3, "{m:?} vs {reference:?}");
+    }
+    // Small-body limit σ = d/√2 (Alfriend et al. 1999).
+    assert!(rel_err(isotropic_max_sigma_m(1e6, 1.0), 1e6 / 2f64.sqrt()) < 1e-9);
 }

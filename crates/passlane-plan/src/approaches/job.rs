@@ -5,7 +5,7 @@
 
 use passlane_orbit::{ElementSet, UtcTime};
 
-use crate::conjunction::{AssumedCovariance, EventRisk, assess_events};
+use crate::conjunction::{AssumedCovariance, EventRisk, assess_events_with_progress};
 use crate::progress::{Progress, Stage};
 use crate::scenario::Scenario;
 use crate::screen::{
@@ -46,8 +46,9 @@ pub struct ScreeningOutcome {
 
 /// Screens and assesses. Fleet against catalog, the fleet's own pairs are a
 /// second, small screening (the last tenth of the progress); all-vs-all
-/// screens fleet and catalog as one set. Cancelling stops the screening and
-/// assesses what was found.
+/// screens fleet and catalog as one set; every event is then assessed, on all
+/// cores. Cancelling during the screening stops it and assesses what was
+/// found; cancelling during the assessment leaves the rest unassessed.
 pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> ScreeningOutcome {
     let everything: Vec<ElementSet>;
     let (primaries, secondaries): (&[ElementSet], Option<&[ElementSet]>) = if job.all_vs_all {
@@ -67,7 +68,10 @@ pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> Scr
         },
     };
     let own_pairs = secondaries.is_some() && primaries.len() > 1;
-    let first_share = if own_pairs { 0.9 } else { 1.0 };
+    // The assessment is the last few percent of the work (microseconds per
+    // event on all cores); screening is the rest.
+    const SCREEN_SHARE: f64 = 0.97;
+    let first_share = SCREEN_SHARE * if own_pairs { 0.9 } else { 1.0 };
     let mut result = screen_with_progress(&request, &Stage::new(progress, 0.0, first_share));
     if own_pairs && !result.cancelled {
         let own = screen_with_progress(
@@ -75,7 +79,7 @@ pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> Scr
                 secondaries: None,
                 ..request
             },
-            &Stage::new(progress, first_share, 1.0 - first_share),
+            &Stage::new(progress, first_share, SCREEN_SHARE - first_share),
         );
         result.events.extend(own.events);
         result
@@ -83,12 +87,18 @@ pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> Scr
             .sort_by(|a, b| a.tca.s_since_j2000().total_cmp(&b.tca.s_since_j2000()));
         result.cancelled |= own.cancelled;
     }
-    let risks = assess_events(
+    let assessment = Stage::new(progress, SCREEN_SHARE, 1.0 - SCREEN_SHARE);
+    let risks = assess_events_with_progress(
         &result.events,
         job.fleet.iter().chain(job.catalog),
         job.scenario,
         job.hard_body_radius_override_m,
+        &assessment,
     );
+    assessment.report(1.0);
+    result.cancelled |= risks
+        .iter()
+        .any(|r| matches!(r, Err(m) if m == crate::conjunction::NOT_ASSESSED_CANCELLED));
     ScreeningOutcome {
         result,
         risks,

@@ -46,7 +46,7 @@ use serde::Serialize;
 use crate::conjunction::AssumedCovariance;
 use crate::encounter::{Mat3, StateKm, encounter_plane, relative_geometry};
 use crate::numeric::brent_root;
-use crate::pc::{pc_foster, pc_max};
+use crate::pc::{pc, pc_max};
 
 pub use consequences::{
     ConsequenceRequest, ContactShift, NewEvent, consequences, manoeuvred_entry, motion_entry,
@@ -256,7 +256,7 @@ pub fn encounter_figures(
         in_track_km: g.in_track_km,
         cross_track_km: g.cross_track_km,
         relative_speed_km_s: g.relative_speed_km_s,
-        pc: probability.as_ref().map(pc_foster),
+        pc: probability.as_ref().map(pc),
         pc_max: probability.as_ref().map(|e| pc_max(e).pc_max),
     })
 }

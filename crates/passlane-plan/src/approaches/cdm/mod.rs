@@ -45,7 +45,7 @@ use passlane_orbit::UtcTime;
 use serde::Serialize;
 
 use crate::encounter::{EncounterError, Mat3, StateKm, encounter_plane, relative_geometry};
-use crate::pc::{pc_alfano, pc_chan, pc_foster, pc_max};
+use crate::pc::{pc, pc_alfano, pc_chan, pc_max};
 
 pub use keywords::{COVARIANCE_KEYS, keyword_tables, mandatory_keywords};
 pub use kvn_write::{ccsds_number, ccsds_time};
@@ -163,7 +163,8 @@ pub struct CdmAssessment {
     pub miss_distance_m: f64,
     /// Recomputed from the two states (m/s).
     pub relative_speed_m_s: f64,
-    /// Foster-style 2-D numerical integration.
+    /// Probability by [`crate::pc::pc`] (agrees with the 2-D reference
+    /// integral to 1e-6 relative or better).
     pub pc: f64,
     pub pc_alfano: f64,
     pub pc_chan: f64,
@@ -244,7 +245,7 @@ impl Cdm {
             tca: self.relative.tca.to_iso_ms(),
             miss_distance_m: g.miss_distance_km * 1000.0,
             relative_speed_m_s: g.relative_speed_km_s * 1000.0,
-            pc: pc_foster(&e),
+            pc: pc(&e),
             pc_alfano: pc_alfano(&e),
             pc_chan: pc_chan(&e),
             pc_max: pc_max(&e).pc_max,
