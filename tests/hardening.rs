@@ -349,3 +349,55 @@ fn steps_below_a_millisecond_or_tables_over_the_row_cap_are_refused_naming_the_f
     assert!(!out_dir.exists(), "a refused plan created its folder");
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// The repository's demo scenario (relative to the workspace root).
+fn demo(file: &str) -> String {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("scenarios")
+        .join(file)
+        .display()
+        .to_string()
+}
+
+#[test]
+fn the_cli_refuses_years_outside_1957_to_2100_and_leap_seconds() {
+    // Issue 12, item 4: `--start -2026-...` was read as the year -2026 and ran
+    // for minutes inventing passes.
+    let fleet = demo("demo-fleet.tle");
+    for (start, words) in [
+        ("-2026-12-01T00:00:00Z", "year -2026 is outside 1957-2100"),
+        ("2026-11-30T23:59:60Z", "leap second"),
+    ] {
+        let out = passlane(&[
+            "passes",
+            "--elements",
+            &fleet,
+            "--station",
+            "X,10,20,0",
+            "--start",
+            start,
+            "--end",
+            "2026-12-02T00:00:00Z",
+        ]);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(!out.status.success(), "{start}: accepted");
+        assert!(stderr.contains(words), "{start}: {stderr}");
+    }
+    // The same in a scenario's window.
+    let dir = scratch("years");
+    let text = std::fs::read_to_string(demo("demo.json"))
+        .unwrap()
+        .replace("2026-12-08T00:00:00.000Z", "2226-12-08T00:00:00.000Z")
+        .replace(
+            "\"demo-",
+            &format!("\"{}/demo-", demo("").trim_end_matches('/')),
+        );
+    std::fs::write(dir.join("far.json"), text).unwrap();
+    let stderr = refuses(&[
+        "passes",
+        "--scenario",
+        &dir.join("far.json").display().to_string(),
+    ]);
+    assert!(stderr.contains("year 2226"), "{stderr}");
+    std::fs::remove_dir_all(&dir).unwrap();
+}

@@ -27,6 +27,14 @@ pub struct UtcTime {
     s_since_j2000: f64,
 }
 
+/// First calendar year any time may fall in: the first artificial satellite
+/// was launched in 1957, so no element set, window or message predates it.
+pub const FIRST_YEAR: i32 = 1957;
+/// Last calendar year any time may fall in: mean elements say nothing useful
+/// decades ahead, and a year far out is almost always a typing slip (a
+/// leading `-` read as a negative year made a 380 s run of invented passes).
+pub const LAST_YEAR: i32 = 2100;
+
 /// A time string that could not be read as ISO 8601 UTC.
 #[derive(Debug, Clone, PartialEq)]
 pub struct TimeParseError {
@@ -124,8 +132,23 @@ impl UtcTime {
         if t.is_empty() {
             return Err(err("empty"));
         }
+        // Every form ends here: the year span, and no leap second.
+        let checked = |n: NaiveDateTime| {
+            if n.nanosecond() >= 1_000_000_000 {
+                return Err(err(
+                    "second 60 is a leap second, and Passlane counts UTC without leap seconds (as SGP4 element sets and their producers do), so it has no instant of its own: give 23:59:59.999 or 00:00:00 of the next day",
+                ));
+            }
+            if !(FIRST_YEAR..=LAST_YEAR).contains(&n.year()) {
+                return Err(err(&format!(
+                    "year {} is outside {FIRST_YEAR}-{LAST_YEAR} (no satellite flew before {FIRST_YEAR}; a leading '-' is read as a negative year)",
+                    n.year()
+                )));
+            }
+            Ok(Self::from_naive(n))
+        };
         if let Ok(dt) = DateTime::parse_from_rfc3339(t) {
-            return Ok(Self::from_naive(dt.with_timezone(&Utc).naive_utc()));
+            return checked(dt.with_timezone(&Utc).naive_utc());
         }
         let naive = t.strip_suffix('Z').unwrap_or(t);
         for fmt in [
@@ -134,17 +157,15 @@ impl UtcTime {
             "%Y-%m-%dT%H:%M",
         ] {
             if let Ok(n) = NaiveDateTime::parse_from_str(naive, fmt) {
-                return Ok(Self::from_naive(n));
+                return checked(n);
             }
         }
         if let Ok(d) = NaiveDate::parse_from_str(naive, "%Y-%m-%d") {
-            return Ok(Self::from_naive(
-                d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?,
-            ));
+            return checked(d.and_hms_opt(0, 0, 0).ok_or_else(|| err("date"))?);
         }
         // Day-of-year form used by some OMM producers: 2026-335T12:00:00.
         if let Ok(n) = NaiveDateTime::parse_from_str(naive, "%Y-%jT%H:%M:%S%.f") {
-            return Ok(Self::from_naive(n));
+            return checked(n);
         }
         Err(err("expected YYYY-MM-DDTHH:MM:SS[.fff]Z"))
     }

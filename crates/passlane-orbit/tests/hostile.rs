@@ -412,3 +412,46 @@ fn junk_oem_data_lines_keep_the_first_findings_and_count_the_rest() {
     );
     assert!(last.message.starts_with(&expected), "{last}");
 }
+
+// ---------------------------------------------------------------------------
+// Years and leap seconds in every time (issue 12, items 4 and 15).
+
+#[test]
+fn times_outside_1957_to_2100_and_leap_seconds_are_refused_in_words() {
+    use passlane_orbit::UtcTime;
+    for (text, words) in [
+        ("-2026-12-01T00:00:00Z", "year -2026 is outside 1957-2100"),
+        ("1956-12-31T23:59:59Z", "year 1956"),
+        ("2101-01-01T00:00:00Z", "year 2101"),
+        ("12026-12-01T00:00:00Z", ""),
+        ("2026-12-31T23:59:60Z", "leap second"),
+        ("2026-12-31T23:59:60.500", "leap second"),
+        ("2026-12-31 23:59:60", "leap second"),
+    ] {
+        let e = UtcTime::parse_iso(text).unwrap_err().to_string();
+        assert!(e.contains(words), "{text}: {e}");
+    }
+    for ok in [
+        "1957-10-04T19:28:34Z",
+        "2100-12-31T23:59:59.999Z",
+        "2026-335T12:00:00",
+    ] {
+        UtcTime::parse_iso(ok).unwrap();
+    }
+    // The same rule in a file: an OMM epoch before 1957 skips the record.
+    let pairs = pairs_with("EPOCH", "1950-01-01T00:00:00");
+    for (format, text) in [
+        ("kvn", kvn(&pairs)),
+        ("xml", xml(&pairs)),
+        ("json", json(&pairs, "")),
+    ] {
+        let r = load(text.as_bytes(), format, STRICT);
+        assert!(r.sets.is_empty(), "{format}");
+        assert!(
+            r.errors()
+                .any(|d| d.field == "EPOCH" && d.message.contains("year 1950")),
+            "{format}: {:?}",
+            r.diagnostics
+        );
+    }
+}

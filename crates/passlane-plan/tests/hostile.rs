@@ -295,12 +295,129 @@ fn within<T: Send + 'static>(
 /// a probability that is zero to double precision.
 #[test]
 fn fuzz_regression_cdm_far_miss_does_not_hang_the_chan_series() {
-    let text = include_str!("fixtures/fuzz-regressions/cdm-far-miss-chan-hang.kvn");
-    let cdm = Cdm::parse(text, "far.kvn").unwrap();
+    let found = include_str!("fixtures/fuzz-regressions/cdm-far-miss-chan-hang.kvn");
+    // The fuzzer also turned the creation year into 1013, which times now
+    // refuse (years 1957-2100, issue 12 item 4); the far miss is what hung,
+    // so the year is put back to reach it.
+    let e = Cdm::parse(found, "far.kvn").unwrap_err();
+    assert!(e.to_string().contains("year 1013"), "{e}");
+    let text = found.replace("1013-11-30", "2026-11-30");
+    let cdm = Cdm::parse(&text, "far.kvn").unwrap();
     let a = within(std::time::Duration::from_secs(10), move || {
         cdm.recompute(10.0)
     });
     let a = a.unwrap();
     assert_eq!(a.pc_chan, 0.0);
     assert_eq!(a.pc, 0.0);
+}
+
+/// Issue 12, item 6: every physical quantity of the scenario is checked, and
+/// the error names its JSON field path (a hard-body radius of -5 m was
+/// accepted and turned a 144 m miss into Pc 0).
+#[test]
+fn scenario_physical_quantities_out_of_range_are_refused_with_their_path() {
+    let demo: serde_json::Value = serde_json::from_str(DEMO_SCENARIO).unwrap();
+    let cases: &[(&str, serde_json::Value, &str)] = &[
+        (
+            "/satellites/1/hard_body_radius_m",
+            (-5.0).into(),
+            "satellites[1].hard_body_radius_m",
+        ),
+        (
+            "/satellites/0/hard_body_radius_m",
+            0.0.into(),
+            "satellites[0].hard_body_radius_m",
+        ),
+        (
+            "/screening/default_hard_body_radius_m",
+            (-1.0).into(),
+            "screening.default_hard_body_radius_m",
+        ),
+        (
+            "/screening/assumed_sigma_at_epoch_m/1",
+            0.0.into(),
+            "screening.assumed_sigma_at_epoch_m[1]",
+        ),
+        (
+            "/screening/assumed_sigma_at_epoch_m/0",
+            (-100.0).into(),
+            "screening.assumed_sigma_at_epoch_m[0]",
+        ),
+        (
+            "/screening/assumed_sigma_growth_m_per_day/2",
+            (-1.0).into(),
+            "screening.assumed_sigma_growth_m_per_day[2]",
+        ),
+        (
+            "/stations/0/mount/min_elevation_deg",
+            95.0.into(),
+            "stations[0].mount.min_elevation_deg",
+        ),
+        (
+            "/stations/0/mount/max_elevation_deg",
+            (-3.0).into(),
+            "stations[0].mount.min_elevation_deg",
+        ),
+        (
+            "/stations/0/mount/max_elevation_deg",
+            120.0.into(),
+            "stations[0].mount.max_elevation_deg",
+        ),
+        (
+            "/stations/0/mount/min_elevation_deg",
+            (-30.0).into(),
+            "stations[0].mount.min_elevation_deg",
+        ),
+        (
+            "/stations/0/mount/max_azimuth_rate_deg_s",
+            0.0.into(),
+            "stations[0].mount.max_azimuth_rate_deg_s",
+        ),
+        (
+            "/stations/0/downlink_rate_bps",
+            0.0.into(),
+            "stations[0].downlink_rate_bps",
+        ),
+        (
+            "/earth_orientation/polar_x_arcsec",
+            250.0.into(),
+            "earth_orientation.polar_x_arcsec",
+        ),
+        (
+            "/earth_orientation/polar_y_arcsec",
+            (-1.5).into(),
+            "earth_orientation.polar_y_arcsec",
+        ),
+        (
+            "/earth_orientation/ut1_utc_s",
+            3.0.into(),
+            "earth_orientation.ut1_utc_s",
+        ),
+        (
+            "/screening/threshold_km",
+            0.0.into(),
+            "screening.threshold_km",
+        ),
+    ];
+    for (pointer, value, path) in cases {
+        let mut edited = demo.clone();
+        *edited.pointer_mut(pointer).unwrap() = value.clone();
+        let text = serde_json::to_string_pretty(&edited).unwrap();
+        let e = Scenario::from_json(&text, "bad.json").unwrap_err();
+        assert_eq!(e.field, *path, "{pointer} = {value}: {e}");
+        assert!(e.to_string().contains(path), "{e}");
+    }
+    // Values at the edges of the ranges load.
+    for (pointer, value) in [
+        (
+            "/earth_orientation/polar_x_arcsec",
+            serde_json::Value::from(0.6),
+        ),
+        ("/stations/0/mount/min_elevation_deg", 90.0.into()),
+        ("/screening/assumed_sigma_growth_m_per_day/0", 0.0.into()),
+    ] {
+        let mut edited = demo.clone();
+        *edited.pointer_mut(pointer).unwrap() = value;
+        Scenario::from_json(&serde_json::to_string(&edited).unwrap(), "ok.json").unwrap();
+    }
 }

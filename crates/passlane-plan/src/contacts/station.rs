@@ -208,6 +208,25 @@ impl Station {
             }
         }
         if let Some(m) = &self.mount {
+            // A mount's elevation span: from a little below the horizon to the
+            // zenith (an over-the-top mount's 180° is not modelled).
+            for (field, v) in [
+                ("mount.min_elevation_deg", m.min_elevation_deg),
+                ("mount.max_elevation_deg", m.max_elevation_deg),
+            ] {
+                if !(v.is_finite() && (-5.0..=90.0).contains(&v)) {
+                    return Err(err(field, format!("{v} is outside -5..90")));
+                }
+            }
+            if m.min_elevation_deg > m.max_elevation_deg {
+                return Err(err(
+                    "mount.min_elevation_deg",
+                    format!(
+                        "{} is above mount.max_elevation_deg {}",
+                        m.min_elevation_deg, m.max_elevation_deg
+                    ),
+                ));
+            }
             for (field, v) in [
                 ("mount.max_azimuth_rate_deg_s", m.max_azimuth_rate_deg_s),
                 ("mount.max_elevation_rate_deg_s", m.max_elevation_rate_deg_s),
@@ -254,11 +273,11 @@ impl Station {
             }
         }
         if let Some(r) = self.downlink_rate_bps
-            && !(r.is_finite() && r >= 0.0)
+            && !(r.is_finite() && r > 0.0)
         {
             return Err(err(
                 "downlink_rate_bps",
-                format!("{r} must not be negative"),
+                format!("{r} must be a positive rate (leave it out for no downlink figure)"),
             ));
         }
         Ok(())
