@@ -1001,19 +1001,20 @@ fn cdms_in_kvn_and_xml_give_the_screenings_pc_with_the_recorded_radius_and_a_tre
     let events = events.as_array().unwrap();
     assert!(!events.is_empty());
     for (k, e) in events.iter().enumerate() {
-        // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP_INDEX.
-        let stem = std::fs::read_dir(&kvn)
+        // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP (the TCA to
+        // the second), stable across runs.
+        let tca: String = passlane_orbit::UtcTime::parse_iso(e["tca"].as_str().unwrap())
             .unwrap()
-            .flatten()
-            .map(|f| f.path())
-            .find(|p| {
-                let n = p.file_stem().unwrap().to_string_lossy().to_string();
-                n.starts_with(&format!(
-                    "{}_{}_",
-                    e["primary_catalog_number"], e["secondary_catalog_number"]
-                )) && n.ends_with(&format!("_{}", k + 1))
-            })
-            .unwrap();
+            .to_iso_s()
+            .chars()
+            .filter(|c| c.is_ascii_digit())
+            .collect();
+        let _ = k;
+        let stem = kvn.join(format!(
+            "{}_{}_{tca}.cdm",
+            e["primary_catalog_number"], e["secondary_catalog_number"]
+        ));
+        assert!(stem.is_file(), "{}", stem.display());
         let name = stem.file_stem().unwrap().to_string_lossy().to_string();
         let k = kvn.join(format!("{name}.cdm"));
         let x = xml.join(format!("{name}.xml"));
