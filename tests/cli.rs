@@ -1000,7 +1000,7 @@ fn cdms_in_kvn_and_xml_give_the_screenings_pc_with_the_recorded_radius_and_a_tre
     let _ = run(args(&xml, "xml"));
     let events = events.as_array().unwrap();
     assert!(!events.is_empty());
-    for (k, e) in events.iter().enumerate() {
+    for e in events {
         // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP (the TCA to
         // the second), stable across runs.
         let tca: String = passlane_orbit::UtcTime::parse_iso(e["tca"].as_str().unwrap())
@@ -1009,7 +1009,6 @@ fn cdms_in_kvn_and_xml_give_the_screenings_pc_with_the_recorded_radius_and_a_tre
             .chars()
             .filter(|c| c.is_ascii_digit())
             .collect();
-        let _ = k;
         let stem = kvn.join(format!(
             "{}_{}_{tca}.cdm",
             e["primary_catalog_number"], e["secondary_catalog_number"]
@@ -1145,4 +1144,47 @@ fn an_oem_from_the_plan_is_a_spacecrafts_motion_for_passes() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert!(err.contains("bad.oem:2: error: CREATION_DATE"), "{err}");
     assert!(out.status.success(), "the element sets still load");
+}
+
+#[test]
+fn screening_again_updates_each_events_cdm_in_place() {
+    // Issue 12 item 8: CDM files were named by their place in the run's
+    // list, so a second screening with other events wrote a second file for
+    // the same event. Now: pair + TCA, one file per event.
+    let dir = tmp("cdm-in-place");
+    let _ = std::fs::remove_dir_all(&dir);
+    let screen = |threshold: &str| {
+        ok_json(&[
+            "screen",
+            "--elements",
+            "scenarios/demo-fleet.tle",
+            "--catalog",
+            "scenarios/demo-debris.tle",
+            "--start",
+            "2026-12-01T00:00:00Z",
+            "--end",
+            "2026-12-04T00:00:00Z",
+            "--threshold-km",
+            threshold,
+            "--format",
+            "json",
+            "--quiet",
+            "--cdm-dir",
+            dir.to_str().unwrap(),
+        ])
+        .as_array()
+        .unwrap()
+        .len()
+    };
+    // Measured on the demo files: 2 events within 3 km, 18 within 30 km
+    // (the earlier naming left 20 files).
+    let few = screen("3");
+    let files = || std::fs::read_dir(&dir).unwrap().count();
+    assert_eq!(files(), few);
+    let many = screen("30");
+    assert!(many > few, "{many} events at 30 km, {few} at 3 km");
+    assert_eq!(files(), many, "an event got a second file");
+    assert_eq!(screen("3"), few);
+    assert_eq!(files(), many);
+    let _ = std::fs::remove_dir_all(&dir);
 }

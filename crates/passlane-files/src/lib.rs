@@ -199,6 +199,7 @@ pub fn remove_stale_temporaries(path: &Path) -> usize {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 
