@@ -1000,20 +1000,20 @@ fn cdms_in_kvn_and_xml_give_the_screenings_pc_with_the_recorded_radius_and_a_tre
     let _ = run(args(&xml, "xml"));
     let events = events.as_array().unwrap();
     assert!(!events.is_empty());
-    for (k, e) in events.iter().enumerate() {
-        // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP_INDEX.
-        let stem = std::fs::read_dir(&kvn)
+    for e in events {
+        // MESSAGE_ID and file name: PRIMARY_SECONDARY_TCASTAMP (the TCA to
+        // the second), stable across runs.
+        let tca: String = passlane_orbit::UtcTime::parse_iso(e["tca"].as_str().unwrap())
             .unwrap()
-            .flatten()
-            .map(|f| f.path())
-            .find(|p| {
-                let n = p.file_stem().unwrap().to_string_lossy().to_string();
-                n.starts_with(&format!(
-                    "{}_{}_",
-                    e["primary_catalog_number"], e["secondary_catalog_number"]
-                )) && n.ends_with(&format!("_{}", k + 1))
-            })
-            .unwrap();
+            .to_iso_s()
+            .chars()
+            .filter(|c| c.is_ascii_digit())
+            .collect();
+        let stem = kvn.join(format!(
+            "{}_{}_{tca}.cdm",
+            e["primary_catalog_number"], e["secondary_catalog_number"]
+        ));
+        assert!(stem.is_file(), "{}", stem.display());
         let name = stem.file_stem().unwrap().to_string_lossy().to_string();
         let k = kvn.join(format!("{name}.cdm"));
         let x = xml.join(format!("{name}.xml"));
@@ -1230,4 +1230,46 @@ fn ut1_utc_given_on_the_command_line_reads_an_earth_fixed_ephemeris() {
         "read with the UT1-UTC it was made with: {same} m"
     );
     assert!(unset > 100.0, "read with UT1-UTC = 0: {unset} m");
+}
+
+fn screening_again_updates_each_events_cdm_in_place() {
+    // Issue 12 item 8: CDM files were named by their place in the run's
+    // list, so a second screening with other events wrote a second file for
+    // the same event. Now: pair + TCA, one file per event.
+    let dir = tmp("cdm-in-place");
+    let _ = std::fs::remove_dir_all(&dir);
+    let screen = |threshold: &str| {
+        ok_json(&[
+            "screen",
+            "--elements",
+            "scenarios/demo-fleet.tle",
+            "--catalog",
+            "scenarios/demo-debris.tle",
+            "--start",
+            "2026-12-01T00:00:00Z",
+            "--end",
+            "2026-12-04T00:00:00Z",
+            "--threshold-km",
+            threshold,
+            "--format",
+            "json",
+            "--quiet",
+            "--cdm-dir",
+            dir.to_str().unwrap(),
+        ])
+        .as_array()
+        .unwrap()
+        .len()
+    };
+    // Measured on the demo files: 2 events within 3 km, 18 within 30 km
+    // (the earlier naming left 20 files).
+    let few = screen("3");
+    let files = || std::fs::read_dir(&dir).unwrap().count();
+    assert_eq!(files(), few);
+    let many = screen("30");
+    assert!(many > few, "{many} events at 30 km, {few} at 3 km");
+    assert_eq!(files(), many, "an event got a second file");
+    assert_eq!(screen("3"), few);
+    assert_eq!(files(), many);
+    let _ = std::fs::remove_dir_all(&dir);
 }

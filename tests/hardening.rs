@@ -401,3 +401,223 @@ fn the_cli_refuses_years_outside_1957_to_2100_and_leap_seconds() {
     assert!(stderr.contains("year 2226"), "{stderr}");
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+/// The demo scenario with its element files named by absolute path, saved
+/// in `dir`, after `edit`.
+fn demo_scenario_in(dir: &Path, edit: impl FnOnce(&mut serde_json::Value)) -> String {
+    let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
+    let mut v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(repo.join("scenarios/demo.json")).unwrap())
+            .unwrap();
+    for key in ["element_files", "catalog_files"] {
+        for f in v[key].as_array_mut().unwrap() {
+            *f = repo
+                .join("scenarios")
+                .join(f.as_str().unwrap())
+                .display()
+                .to_string()
+                .into();
+        }
+    }
+    edit(&mut v);
+    let path = dir.join("scenario.json");
+    std::fs::write(&path, serde_json::to_string_pretty(&v).unwrap()).unwrap();
+    path.display().to_string()
+}
+
+/// Files under `dir` (relative paths), links and hidden entries included.
+fn files_on_disk(dir: &Path) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut stack = vec![(dir.to_path_buf(), String::new())];
+    while let Some((d, prefix)) = stack.pop() {
+        for e in std::fs::read_dir(&d).unwrap().flatten() {
+            let rel = format!("{prefix}{}", e.file_name().to_string_lossy());
+            if e.file_type().unwrap().is_dir() {
+                stack.push((e.path(), format!("{rel}/")));
+            } else {
+                out.push(rel);
+            }
+        }
+    }
+    out.sort();
+    out
+}
+
+/// `passlane plan --out`: the count it printed.
+fn plan_into(scenario: &str, end: &str, out: &Path) -> Result<usize, String> {
+    let o = passlane(&[
+        "plan",
+        "--scenario",
+        scenario,
+        "--start",
+        "2026-12-01T00:00:00Z",
+        "--end",
+        end,
+        "--quiet",
+        "--out",
+        &out.display().to_string(),
+    ]);
+    let stdout = String::from_utf8_lossy(&o.stdout).into_owned();
+    if !o.status.success() {
+        return Err(String::from_utf8_lossy(&o.stderr).into_owned());
+    }
+    let n = stdout
+        .split("Wrote ")
+        .nth(1)
+        .and_then(|r| r.split(' ').next())
+        .and_then(|n| n.parse().ok())
+        .unwrap_or_else(|| panic!("no count in {stdout}"));
+    Ok(n)
+}
+
+fn planned_contacts(out: &Path) -> usize {
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("plan.json")).unwrap()).unwrap();
+    v["contacts"].as_array().unwrap().len()
+}
+
+#[test]
+fn planning_again_into_a_folder_leaves_exactly_the_new_plans_files() {
+    // Issue 12 item 8: re-planning kept the previous run's pointing tables.
+    let dir = scratch("replan");
+    let scenario = demo_scenario_in(&dir, |_| {});
+    let out = dir.join("hand-off");
+    let first = plan_into(&scenario, "2026-12-01T12:00:00Z", &out).unwrap();
+    assert_eq!(files_on_disk(&out).len(), first);
+    let day_contacts = planned_contacts(&out);
+    let second = plan_into(&scenario, "2026-12-01T04:00:00Z", &out).unwrap();
+    let on_disk = files_on_disk(&out);
+    assert_eq!(on_disk.len(), second, "{on_disk:?}");
+    let contacts = planned_contacts(&out);
+    assert!(contacts < day_contacts);
+    assert_eq!(
+        on_disk
+            .iter()
+            .filter(|f| f.starts_with("pointing/"))
+            .count(),
+        contacts,
+        "pointing tables of the earlier plan remain"
+    );
+    // Nothing left beside the folder either.
+    let beside: Vec<String> = std::fs::read_dir(&dir)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .filter(|n| n.starts_with('.'))
+        .collect();
+    assert_eq!(beside, Vec::<String>::new());
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn a_second_plan_into_a_folder_being_written_fails_clearly() {
+    // Issue 12 item 8: two `plan --out` at once both "succeeded" with a mix.
+    let dir = scratch("lock");
+    let scenario = demo_scenario_in(&dir, |_| {});
+    let out = dir.join("hand-off");
+    plan_into(&scenario, "2026-12-01T03:00:00Z", &out).unwrap();
+    let before: Vec<(String, Vec<u8>)> = files_on_disk(&out)
+        .into_iter()
+        .map(|f| {
+            let b = std::fs::read(out.join(&f)).unwrap();
+            (f, b)
+        })
+        .collect();
+    // The first writer, as a running `passlane plan --out` holds it.
+    let lock = std::fs::OpenOptions::new()
+        .create(true)
+        .truncate(false)
+        .write(true)
+        .open(dir.join(".hand-off.passlane-lock"))
+        .unwrap();
+    lock.try_lock().unwrap();
+    let err = plan_into(&scenario, "2026-12-01T06:00:00Z", &out).unwrap_err();
+    assert!(err.contains("another Passlane process is writing"), "{err}");
+    let after: Vec<(String, Vec<u8>)> = files_on_disk(&out)
+        .into_iter()
+        .map(|f| {
+            let b = std::fs::read(out.join(&f)).unwrap();
+            (f, b)
+        })
+        .collect();
+    assert!(before == after, "the folder changed under a held lock");
+    drop(lock);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[cfg(unix)]
+#[test]
+fn plan_never_writes_through_a_symbolic_link() {
+    // Issue 12 item 13.
+    use std::os::unix::fs::symlink;
+    let dir = scratch("symlink");
+    let scenario = demo_scenario_in(&dir, |_| {});
+    let elsewhere = dir.join("elsewhere");
+    std::fs::create_dir_all(&elsewhere).unwrap();
+    let link = dir.join("out-link");
+    symlink(&elsewhere, &link).unwrap();
+    let err = plan_into(&scenario, "2026-12-01T03:00:00Z", &link).unwrap_err();
+    assert!(err.contains("symbolic link"), "{err}");
+    let out = dir.join("hand-off");
+    plan_into(&scenario, "2026-12-01T03:00:00Z", &out).unwrap();
+    std::fs::remove_dir_all(out.join("pointing")).unwrap();
+    symlink(&elsewhere, out.join("pointing")).unwrap();
+    let err = plan_into(&scenario, "2026-12-01T03:00:00Z", &out).unwrap_err();
+    assert!(
+        err.contains("symbolic link inside the hand-off folder"),
+        "{err}"
+    );
+    assert!(
+        files_on_disk(&elsewhere).is_empty(),
+        "written outside the folder"
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn clashing_and_very_long_names_give_every_file_and_the_count_on_disk() {
+    // Issue 12 items 9 and 10: "CS A" and "CS-A" shared file names (the
+    // summary said 104 written, 91 existed); a 300-character name stopped
+    // the export half-way with "File name too long".
+    let dir = scratch("names");
+    let scenario = demo_scenario_in(&dir, |v| {
+        for s in v["stations"].as_array_mut().unwrap() {
+            if s["name"] == "Coral Shoal" {
+                // Two equal antennas that may serve one spacecraft at once.
+                s["antennas"][1] = s["antennas"][0].clone();
+                s["antennas"][0]["name"] = "CS A".into();
+                s["antennas"][1]["name"] = "CS-A".into();
+            }
+            if s["name"] == "Northfell" {
+                s["name"] = format!("Northfell{}", " and beyond".repeat(27)).into();
+            }
+        }
+        for sat in v["satellites"].as_array_mut().unwrap() {
+            sat["allow_simultaneous"] = true.into();
+        }
+    });
+    let out = dir.join("hand-off");
+    let printed = plan_into(&scenario, "2026-12-02T00:00:00Z", &out).unwrap();
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(out.join("plan.json")).unwrap()).unwrap();
+    for antenna in ["CS A", "CS-A"] {
+        assert!(
+            v["contacts"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .any(|c| c["antenna"] == antenna),
+            "no contact on {antenna}: the clash is not exercised"
+        );
+    }
+    let on_disk = files_on_disk(&out);
+    assert_eq!(on_disk.len(), printed, "{on_disk:?}");
+    assert_eq!(
+        on_disk
+            .iter()
+            .filter(|f| f.starts_with("pointing/"))
+            .count(),
+        planned_contacts(&out)
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}

@@ -66,6 +66,9 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
 struct Written {
     dir: PathBuf,
     files: usize,
+    /// Files of an earlier hand-off in the folder: replaced, removed.
+    replaced: usize,
+    removed: usize,
 }
 
 fn write_outputs(
@@ -107,11 +110,14 @@ fn write_outputs(
             .files
             .iter()
             .map(|f| (f.relative_path.as_str(), f.contents.as_slice())),
+        &export::is_hand_off_path,
     )
     .map_err(|e| anyhow::anyhow!(e))?;
     Ok(Written {
         dir: summary.dir,
         files: summary.files,
+        replaced: summary.replaced.len(),
+        removed: summary.removed.len(),
     })
 }
 
@@ -196,12 +202,21 @@ fn write_summary(out: &mut dyn Write, plan: &Plan, written: Option<&Written>) ->
         )?;
     }
     match written {
-        Some(w) => writeln!(
-            out,
-            "\nWrote {} file(s) to {}: plan.csv, plan.json, plan.ics, pointing/*.csv, oem/*.oem",
-            w.files,
-            w.dir.display()
-        )?,
+        Some(w) => {
+            writeln!(
+                out,
+                "\nWrote {} file(s) to {}: plan.csv, plan.json, plan.ics, pointing/*.csv, oem/*",
+                w.files,
+                w.dir.display()
+            )?;
+            if w.replaced + w.removed > 0 {
+                writeln!(
+                    out,
+                    "The folder held an earlier hand-off: {} file(s) replaced, {} removed; it now holds this plan's files only.",
+                    w.replaced, w.removed
+                )?;
+            }
+        }
         None => writeln!(
             out,
             "\nNo files written (give --out DIR for the plan, calendar, pointing and OEM files)."

@@ -126,7 +126,13 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
             .chain(&catalog)
             .map(|s| (s.catalog_number, s))
             .collect();
-        for (k, (e, r)) in result.events.iter().zip(risks).enumerate() {
+        // One file per event, named by the pair and the TCA to the second
+        // (not by its place in this run's list), so screening again updates
+        // the event's file in place (each written atomically); two events of
+        // one pair in the same second get the TCA's milliseconds as well.
+        let mut names = std::collections::HashSet::new();
+        let mut written = 0usize;
+        for (e, r) in result.events.iter().zip(risks) {
             let (Some(p), Some(s)) = (
                 by_number.get(&e.primary_catalog_number),
                 by_number.get(&e.secondary_catalog_number),
@@ -139,13 +145,23 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                 .chars()
                 .filter(|c| c.is_ascii_digit())
                 .collect();
-            let message_id = format!(
-                "{}_{}_{}_{}",
-                e.primary_catalog_number,
-                e.secondary_catalog_number,
-                stamp,
-                k + 1
+            let mut message_id = format!(
+                "{}_{}_{}",
+                e.primary_catalog_number, e.secondary_catalog_number, stamp
             );
+            if !names.insert(message_id.clone()) {
+                let ms: String = e
+                    .tca
+                    .to_iso_ms()
+                    .chars()
+                    .filter(|c| c.is_ascii_digit())
+                    .collect();
+                message_id = format!(
+                    "{}_{}_{}",
+                    e.primary_catalog_number, e.secondary_catalog_number, ms
+                );
+                names.insert(message_id.clone());
+            }
             let cdm = event_to_cdm(
                 e,
                 p,
@@ -176,12 +192,9 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                 w.write_all(&buf)
             })
             .with_context(|| format!("cannot write {}", path.display()))?;
+            written += 1;
         }
-        eprintln!(
-            "wrote {} CDM file(s) to {}",
-            result.events.len(),
-            dir.display()
-        );
+        eprintln!("wrote {written} CDM file(s) to {}", dir.display());
     }
     match format {
         Format::Json => {

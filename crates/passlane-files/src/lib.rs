@@ -5,8 +5,11 @@
 //!   crash or power loss leaves either the old file or the new one, never a mix.
 //! - [`read_limited`]: reads a file with a size cap, so a wrong path to a huge
 //!   file gives a clear error instead of exhausting memory.
-//! - [`remove_stale_temporaries`]: clears temporaries left by an interrupted save.
-//! - [`folder::write_folder`]: a folder of hand-off files (the network plan's).
+//! - [`remove_stale_temporaries`]: clears temporaries left by an interrupted
+//!   save; a temporary names its owner's process id and is removed only when
+//!   that process is gone, never while another save is running.
+//! - [`folder::write_folder`]: a folder of hand-off files (the network plan's),
+//!   replaced as one unit.
 //!
 //! Architecture invariant: this crate does file I/O only. It depends on the
 //! standard library alone: what goes into a file is decided by the planner
@@ -44,9 +47,7 @@ pub fn write_atomic_with(
         .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "the path has no file name"))?
         .to_string_lossy()
         .into_owned();
-    static COUNTER: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
-    let n = COUNTER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-    let tmp = dir.join(format!(".{name}{TEMP_MARKER}{}-{n}", std::process::id()));
+    let tmp = dir.join(temporary_name(&name));
     let result = (|| {
         let mut file = fs::OpenOptions::new()
             .write(true)
@@ -99,7 +100,81 @@ pub fn read_limited(path: &Path, limit_bytes: u64) -> io::Result<Vec<u8>> {
     Ok(out)
 }
 
-/// Removes temporaries that an interrupted save of `path` left in its folder.
+/// Longest file name component written, bytes (`NAME_MAX` of the common
+/// Linux, macOS and Windows file systems).
+pub const MAX_NAME_BYTES: usize = 255;
+
+/// The part of a temporary's name that names its target: the target's name
+/// itself when short, else its first 80 bytes and a 64-bit FNV-1a hash of the
+/// whole name, so that `.<stem><marker><pid>-<n>` stays within
+/// [`MAX_NAME_BYTES`] for any target name that fits.
+pub fn temporary_stem(name: &str) -> String {
+    if name.len() <= 100 {
+        return name.to_string();
+    }
+    let mut cut = 80;
+    while !name.is_char_boundary(cut) {
+        cut -= 1;
+    }
+    format!("{}~{:016x}", &name[..cut], fnv1a_64(name.as_bytes()))
+}
+
+/// 64-bit FNV-1a: fixed constants, the same on every platform and build.
+pub fn fnv1a_64(bytes: &[u8]) -> u64 {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for &b in bytes {
+        h ^= u64::from(b);
+        h = h.wrapping_mul(0x0000_0100_0000_01b3);
+    }
+    h
+}
+
+/// A fresh temporary name for `name` in its folder, owned by this process:
+/// `.<stem>.passlane-tmp-<pid>-<n>`.
+fn temporary_name(name: &str) -> String {
+    static COUNTER: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+    let n = COUNTER.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    format!(
+        ".{}{TEMP_MARKER}{}-{n}",
+        temporary_stem(name),
+        std::process::id()
+    )
+}
+
+/// Whether the process `pid` is running: `Some` where the platform tells
+/// (Linux: `/proc/<pid>`), `None` elsewhere (the standard library has no
+/// portable way to ask; callers then treat the owner as alive).
+pub fn process_alive(pid: u32) -> Option<bool> {
+    if pid == std::process::id() {
+        return Some(true);
+    }
+    if cfg!(target_os = "linux") {
+        Some(Path::new("/proc").join(pid.to_string()).exists())
+    } else {
+        None
+    }
+}
+
+/// The owner's process id in a temporary's name (`...-<pid>-<n>` after the
+/// marker), when it has one.
+pub fn temporary_owner(file_name: &str) -> Option<u32> {
+    let rest = &file_name[file_name.rfind(TEMP_MARKER)? + TEMP_MARKER.len()..];
+    rest.split('-').next()?.parse().ok()
+}
+
+/// Whether a temporary may be removed: its owner is known to be gone. A
+/// temporary of a live process (another save running now), or of a process
+/// whose state cannot be told, is left alone.
+pub fn temporary_is_stale(file_name: &str) -> bool {
+    match temporary_owner(file_name) {
+        Some(pid) => pid != std::process::id() && process_alive(pid) == Some(false),
+        // Not named by this version: no owner to ask, taken as stale.
+        None => true,
+    }
+}
+
+/// Removes temporaries that an interrupted save of `path` left in its folder
+/// (never one whose owner is still running: see [`temporary_is_stale`]).
 /// Returns how many were removed.
 pub fn remove_stale_temporaries(path: &Path) -> usize {
     let dir = match path.parent() {
@@ -109,18 +184,22 @@ pub fn remove_stale_temporaries(path: &Path) -> usize {
     let Some(name) = path.file_name().map(|n| n.to_string_lossy().into_owned()) else {
         return 0;
     };
-    let prefix = format!(".{name}{TEMP_MARKER}");
+    let prefix = format!(".{}{TEMP_MARKER}", temporary_stem(&name));
     let Ok(entries) = fs::read_dir(&dir) else {
         return 0;
     };
     entries
         .flatten()
-        .filter(|e| e.file_name().to_string_lossy().starts_with(&prefix))
+        .filter(|e| {
+            let n = e.file_name().to_string_lossy().into_owned();
+            n.starts_with(&prefix) && temporary_is_stale(&n)
+        })
         .filter(|e| fs::remove_file(e.path()).is_ok())
         .count()
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used)]
 mod tests {
     use super::*;
 

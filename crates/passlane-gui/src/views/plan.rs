@@ -39,39 +39,9 @@ pub struct ExportSummary {
     pub warnings: Vec<String>,
     /// Files of an earlier export that this one replaced (same names).
     pub replaced: Vec<String>,
-    /// Files that were in the folder before and are not part of this plan.
-    pub left_over: Vec<String>,
-}
-
-/// Every file under `dir`, as relative paths with `/` (sorted); empty when
-/// the folder does not exist yet.
-fn files_under(dir: &Path) -> Vec<String> {
-    let mut out = Vec::new();
-    let mut stack = vec![(dir.to_path_buf(), String::new())];
-    while let Some((d, prefix)) = stack.pop() {
-        let Ok(entries) = std::fs::read_dir(&d) else {
-            continue;
-        };
-        for e in entries.flatten() {
-            let name = e.file_name().to_string_lossy().into_owned();
-            // Temporaries of an interrupted write are not part of any plan.
-            if name.contains(passlane_files::TEMP_MARKER) {
-                continue;
-            }
-            let rel = if prefix.is_empty() {
-                name
-            } else {
-                format!("{prefix}/{name}")
-            };
-            match e.file_type() {
-                Ok(t) if t.is_dir() => stack.push((e.path(), rel)),
-                Ok(_) => out.push(rel),
-                Err(_) => {}
-            }
-        }
-    }
-    out.sort();
-    out
+    /// Files of an earlier export that this plan does not have: the folder
+    /// is replaced as a whole, so they are gone.
+    pub removed: Vec<String>,
 }
 
 /// Writes the plan's hand-off files into `dir`, exactly as
@@ -98,33 +68,20 @@ pub fn export_plan(
         },
     )
     .map_err(|e| format!("pointing tables: {e}"))?;
-    let before = files_under(dir);
     let written = passlane_files::folder::write_folder(
         dir,
         hand_off
             .files
             .iter()
             .map(|f| (f.relative_path.as_str(), f.contents.as_slice())),
+        &passlane_plan::export::is_hand_off_path,
     )?;
-    let new: std::collections::HashSet<&str> = hand_off
-        .files
-        .iter()
-        .map(|f| f.relative_path.as_str())
-        .collect();
-    let after = files_under(dir);
     Ok(ExportSummary {
         dir: written.dir,
         files: written.files,
         warnings: hand_off.warnings,
-        replaced: before
-            .iter()
-            .filter(|f| new.contains(f.as_str()))
-            .cloned()
-            .collect(),
-        left_over: after
-            .into_iter()
-            .filter(|f| !new.contains(f.as_str()))
-            .collect(),
+        replaced: written.replaced,
+        removed: written.removed,
     })
 }
 
@@ -295,11 +252,11 @@ impl PlanView {
                             short_list(&summary.replaced)
                         ));
                     }
-                    if !summary.left_over.is_empty() {
+                    if !summary.removed.is_empty() {
                         self.export_status.push_str(&format!(
-                            "\n{} files in the folder are not part of this plan: {}.",
-                            summary.left_over.len(),
-                            short_list(&summary.left_over)
+                            "\nRemoved {} files of the earlier export that this plan does not have: {}.",
+                            summary.removed.len(),
+                            short_list(&summary.removed)
                         ));
                     }
                     for w in summary.warnings.iter().take(5) {

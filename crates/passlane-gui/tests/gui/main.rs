@@ -237,7 +237,11 @@ fn plan_view_shows_the_plan_and_exports_its_hand_off_files() {
         .unwrap_or(0);
     assert_eq!(oem, direct.demand.len(), "one OEM per spacecraft");
 
-    // Exporting again into the same folder says which files it replaced.
+    // Exporting again into the same folder says which files it replaced; the
+    // folder is replaced as a whole, so a file of an earlier plan that this
+    // one does not have is gone (issue 12, item 8).
+    let earlier = dir.join("pointing/90001_EARLIER-PLAN_A_20261130T000000Z.csv");
+    std::fs::write(&earlier, "time\n").expect("plant an earlier plan's table");
     h.get_by_label("Export to folder").click();
     h.run_steps(1);
     let deadline = Instant::now() + Duration::from_secs(120);
@@ -253,7 +257,11 @@ fn plan_view_shows_the_plan_and_exports_its_hand_off_files() {
         status.contains(&format!("Replaced {written} files of an earlier export")),
         "{status}"
     );
-    assert!(!status.contains("not part of this plan"), "{status}");
+    assert!(
+        status.contains("Removed 1 files of the earlier export"),
+        "{status}"
+    );
+    assert!(!earlier.exists(), "the earlier plan's table is still there");
     let _ = std::fs::remove_dir_all(&dir);
 }
 

@@ -222,7 +222,7 @@ impl Cdm {
                 }
             }
             for c in &sec.comments {
-                writeln!(w, "COMMENT {c}")?;
+                writeln!(w, "COMMENT {}", super::kvn_safe(c))?;
             }
             for e in entries {
                 put(w, e)?;
@@ -234,8 +234,14 @@ impl Cdm {
 
 fn put(w: &mut impl std::io::Write, e: &Entry) -> std::io::Result<()> {
     match &e.unit {
-        Some(u) => writeln!(w, "{:<28} = {} [{u}]", e.key, e.value),
-        None => writeln!(w, "{:<28} = {}", e.key, e.value),
+        Some(u) => writeln!(
+            w,
+            "{:<28} = {} [{}]",
+            e.key,
+            super::kvn_safe(&e.value),
+            super::kvn_safe(u)
+        ),
+        None => writeln!(w, "{:<28} = {}", e.key, super::kvn_safe(&e.value)),
     }
 }
 

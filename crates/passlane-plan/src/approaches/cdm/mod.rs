@@ -371,6 +371,16 @@ pub fn ccsds_identifier(text: &str, fallback: &str) -> String {
     }
 }
 
+/// A value or comment as it goes onto one KVN line (CDM, OEM): line breaks
+/// and every other control character become blanks, so no value can start
+/// a line of its own (a name holding `\nCOLLISION_PROBABILITY = 0` would
+/// otherwise forge a keyword). The writers apply it to every value.
+pub fn kvn_safe(text: &str) -> String {
+    text.chars()
+        .map(|c| if c.is_control() { ' ' } else { c })
+        .collect()
+}
+
 /// A free text value (names) in uppercase printable ASCII (6.2.3.3,
 /// 6.2.2.2); other characters become blanks.
 pub fn ccsds_text(text: &str, fallback: &str) -> String {

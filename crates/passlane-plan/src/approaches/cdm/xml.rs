@@ -51,6 +51,9 @@ pub fn xml_escape(s: &str) -> String {
             '>' => out.push_str("&gt;"),
             '"' => out.push_str("&quot;"),
             '\'' => out.push_str("&apos;"),
+            // XML 1.0 allows no NUL or other C0 control even escaped (§2.2);
+            // a line break in a name means nothing either: blanks.
+            c if c.is_control() => out.push(' '),
             c => out.push(c),
         }
     }

@@ -10,6 +10,10 @@
 //!
 //! The contents are built in memory: a week's plan for a few dozen
 //! spacecraft is a few megabytes of pointing tables.
+//!
+//! [`is_hand_off_path`] tells the file writer which paths of an existing
+//! folder belong to an earlier hand-off (it replaces such a folder as a
+//! whole and refuses any other).
 
 use std::io;
 
@@ -59,6 +63,66 @@ pub struct HandOffContext<'a> {
     /// Form and frame of the OEM files.
     pub oem_format: OemFormat,
     pub oem_frame: OemFrame,
+}
+
+/// Makes the paths unique ignoring case (a case-insensitive file system
+/// would merge `CS-A` and `cs-a`): names that two entries share, e.g. the
+/// antennas "CS A" and "CS-A" (both `CS-A` in a file name), get `-` and a
+/// short hash of what the file is for (the unshortened names) before the
+/// extension; the same for every run, whatever else the plan holds.
+fn unique_names(files: &mut [(String, String, Vec<u8>)]) {
+    use std::collections::{HashMap, HashSet};
+    let mut count: HashMap<String, usize> = HashMap::new();
+    for (p, _, _) in files.iter() {
+        *count.entry(p.to_lowercase()).or_default() += 1;
+    }
+    let mut taken: HashSet<String> = files
+        .iter()
+        .filter(|(p, _, _)| count[&p.to_lowercase()] == 1)
+        .map(|(p, _, _)| p.to_lowercase())
+        .collect();
+    for (p, key, _) in files.iter_mut() {
+        if count[&p.to_lowercase()] == 1 {
+            continue;
+        }
+        let (stem, ext) = match p.rfind('.') {
+            Some(i) => (p[..i].to_string(), p[i..].to_string()),
+            None => (p.clone(), String::new()),
+        };
+        let mut candidate = format!("{stem}-{}{ext}", super::short_hash(key));
+        let mut n = 2;
+        while !taken.insert(candidate.to_lowercase()) {
+            candidate = format!("{stem}-{}-{n}{ext}", super::short_hash(key));
+            n += 1;
+        }
+        *p = candidate;
+    }
+}
+
+/// Whether `relative` (`/`-separated; a folder ends in `/`) is a path a
+/// hand-off folder holds: the layout above, leftovers of an interrupted
+/// write, and the files some desktops drop into every folder they show
+/// (`.DS_Store`, `Thumbs.db`, `desktop.ini`: common practice).
+pub fn is_hand_off_path(relative: &str) -> bool {
+    let name = relative.rsplit('/').next().unwrap_or(relative);
+    if matches!(name, ".DS_Store" | "Thumbs.db" | "desktop.ini")
+        || name.contains(passlane_temp_marker())
+    {
+        return true;
+    }
+    match relative.split_once('/') {
+        None => matches!(relative, "plan.csv" | "plan.json" | "plan.ics"),
+        Some(("pointing", "")) | Some(("oem", "")) => true,
+        Some(("pointing", f)) => !f.contains('/') && f.ends_with(".csv"),
+        Some(("oem", f)) => !f.contains('/') && (f.ends_with(".oem") || f.ends_with(".xml")),
+        _ => false,
+    }
+}
+
+/// The marker of the file writer's temporaries (`passlane-files`, which this
+/// crate does not depend on: it does no I/O).
+fn passlane_temp_marker() -> &'static str {
+    ".passlane-tmp-"
 }
 
 fn render(fill: impl FnOnce(&mut Vec<u8>) -> io::Result<()>) -> Vec<u8> {
@@ -122,6 +186,13 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> Result<HandOff, 
         ) {
             Ok(rows) => files.push((
                 format!("pointing/{}", pointing_file_name(c)),
+                format!(
+                    "{}|{}|{}|{}",
+                    c.catalog_number,
+                    c.station,
+                    c.antenna,
+                    c.aos.to_iso_us()
+                ),
                 render(|w| write_pointing_csv(w, station, &rows)),
             )),
             Err(TableError::Step(e)) => return Err(e),
@@ -147,6 +218,7 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> Result<HandOff, 
                     super::oem::slug_name(&set.name),
                     oem_extension(ctx.oem_format)
                 ),
+                format!("{}|{}", set.catalog_number, set.name),
                 render(|w| {
                     write_oem(
                         w,
@@ -168,7 +240,8 @@ pub fn hand_off_files(plan: &Plan, ctx: &HandOffContext<'_>) -> Result<HandOff, 
             }
         }
     }
-    for (p, c) in files {
+    unique_names(&mut files);
+    for (p, _, c) in files {
         add(p, c);
     }
     h.warnings = warnings;

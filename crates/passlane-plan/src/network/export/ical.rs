@@ -19,6 +19,7 @@ use std::io::{self, Write};
 
 use passlane_orbit::UtcTime;
 
+use super::fnv1a_64;
 use crate::schedule::{Plan, PlannedContact};
 
 /// Writes the plan as one VCALENDAR.
@@ -104,17 +105,6 @@ pub fn contact_uid(c: &PlannedContact) -> String {
     )
 }
 
-/// 64-bit FNV-1a: fixed constants, the same on every platform and build
-/// (the standard library's hasher makes no such promise).
-fn fnv1a_64(bytes: &[u8]) -> u64 {
-    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
-    for &b in bytes {
-        h ^= u64::from(b);
-        h = h.wrapping_mul(0x0000_0100_0000_01b3);
-    }
-    h
-}
-
 /// `YYYYMMDDTHHMMSSZ`, rounded to the second.
 pub fn ical_time(t: UtcTime) -> String {
     t.to_iso_s()
@@ -123,7 +113,9 @@ pub fn ical_time(t: UtcTime) -> String {
         .collect()
 }
 
-/// TEXT escaping of RFC 5545 §3.3.11.
+/// TEXT escaping of RFC 5545 §3.3.11 (backslash, semicolon, comma, line
+/// break), control characters replaced; every text value of the calendar
+/// goes through it.
 pub fn escape_text(s: &str) -> String {
     let mut out = String::with_capacity(s.len());
     for ch in s.chars() {
@@ -133,6 +125,9 @@ pub fn escape_text(s: &str) -> String {
             ',' => out.push_str("\\,"),
             '\n' => out.push_str("\\n"),
             '\r' => {}
+            // TEXT excludes control characters other than HTAB (§3.3.11,
+            // §3.1 CONTROL): NUL, escape and the like become U+FFFD.
+            c if c.is_control() && c != '\t' => out.push('\u{FFFD}'),
             _ => out.push(ch),
         }
     }

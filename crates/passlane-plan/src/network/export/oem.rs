@@ -27,7 +27,7 @@ use passlane_orbit::ephemeris::OemFormat;
 use passlane_orbit::inertial::teme_to_eme2000;
 use passlane_orbit::{ElementSet, Propagator, StateTeme, UtcTime};
 
-use crate::cdm::{ccsds_identifier, ccsds_text, xml_escape};
+use crate::cdm::{ccsds_identifier, ccsds_text, kvn_safe, xml_escape};
 use crate::sampling::{TableError, row_count};
 
 /// Degree of the Lagrange interpolation the files recommend: with states a
@@ -222,7 +222,7 @@ pub fn write_oem(
         OemFormat::Kvn => {
             writeln!(w, "CCSDS_OEM_VERS = 3.0")?;
             for c in &notes {
-                writeln!(w, "COMMENT {c}")?;
+                writeln!(w, "COMMENT {}", kvn_safe(c))?;
             }
             writeln!(w, "CREATION_DATE = {}", oem_time(opts.created))?;
             writeln!(w, "ORIGINATOR = {originator}")?;
@@ -230,7 +230,7 @@ pub fn write_oem(
             writeln!(w)?;
             writeln!(w, "META_START")?;
             for (k, val) in &meta {
-                writeln!(w, "{k} = {val}")?;
+                writeln!(w, "{k} = {}", kvn_safe(val))?;
             }
             writeln!(w, "META_STOP")?;
             writeln!(w)?;
