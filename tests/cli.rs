@@ -329,8 +329,17 @@ fn screen_json_contract_and_cdm_round_trip() {
                 "in_track_km",
                 "cross_track_km",
                 "relative_speed_km_s",
+                "clipped",
+                "tca_inside_volume",
+                "volume_entry_clipped",
+                "volume_exit_clipped",
+                "interval_minima",
+                "interval_min_miss_km",
             ],
         );
+        // A sphere: the TCA is inside; these designed approaches are brief.
+        assert_eq!(e["tca_inside_volume"], true);
+        assert_eq!(e["interval_minima"], 1);
         let tca = e["tca"].as_str().unwrap().to_string();
         assert!(is_iso_us(&tca));
         assert!(tca >= prev);

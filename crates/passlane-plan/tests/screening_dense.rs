@@ -311,3 +311,23 @@ fn a_minimum_at_the_window_edge_is_reported_clipped() {
         assert!(e.miss_distance_km > whole.events[0].miss_distance_km);
     }
 }
+
+#[test]
+fn fleet_against_the_dense_subset_equals_brute_force() {
+    // Fleet-vs-catalog runs sample eccentric catalog objects only where they
+    // can be inside the fleet's radius band: ten SSO spacecraft against the
+    // dense subset (its 200 eccentric LEO-crossers included), 12 h, 10 km.
+    let fleet = catalog::element_sets(&catalog::sso_fleet_synth());
+    let objects = catalog::element_sets(&catalog::dense_subset_synth());
+    let start = catalog::epoch();
+    let request = ScreeningRequest {
+        primaries: &fleet,
+        secondaries: Some(&objects),
+        start,
+        end: start.add_s(12.0 * 3600.0),
+        settings: sphere(10.0),
+    };
+    let fast = screen(&request);
+    let n = assert_same(&fast, &screen_brute_force(&request, 10.0));
+    assert!(n > 0);
+}

@@ -12,7 +12,7 @@
 //! | shell C | 1,296 | 1,200 km ± 2 km, 87.9° ± 0.05°, 36 planes × 36 |
 //! | shell D | 1,344 | 530 km ± 1.5 km, 43.0° ± 0.05°, 28 planes × 48 |
 //! | debris band | 6,000 | perigee 750–900 km, e ≤ 0.01, inclination from five clouds (98.5°, 82°, 74°, 86.4°, 65°) ± 1° |
-//! | other LEO | 9,040 | 300–2,000 km (weighted low), e ≤ 0.02, 0–110° |
+//! | other LEO | 10,340 | 300–2,000 km (weighted low), e ≤ 0.02, 0–110° |
 //! | eccentric LEO-crossers | 1,800 (6 %) | perigee 250–700 km; a third transfer-like (apogee near GEO, 0–30°), a third 12-h orbits at 63.4° (a = 26,560 km), a third apogee 1,000–20,000 km at 0–100° |
 //! | MEO | 1,200 | 19,000–23,500 km, 55° / 64.8°, e ≤ 0.01 |
 //! | GEO and near-GEO | 1,500 | ± 200 km of GEO, 0–15°, e ≤ 0.003 |
@@ -178,7 +178,7 @@ pub fn realistic_synth() -> Vec<Synth> {
         );
         v.push(synth(Group::Debris, 0, rp, ra, inc, raan, m, b, &mut rng));
     }
-    for _ in 0..9_040 {
+    for _ in 0..10_340 {
         // Altitude weighted towards the low end (square of a uniform).
         let u = rng.uniform(0.0, 1.0);
         let rp = re + 300.0 + 1700.0 * u * u;

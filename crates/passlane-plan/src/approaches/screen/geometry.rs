@@ -331,7 +331,8 @@ pub(crate) fn build_event(
 ) -> Result<Option<Built>, PropagationError> {
     let (p1, p2) = (o1.1, o2.1);
     let g = relative_geometry(&s1, &s2);
-    if !(g.miss_distance_km <= volume.bounding_radius_km()) {
+    // A NaN distance (failed geometry) is no event either.
+    if g.miss_distance_km.is_nan() || g.miss_distance_km > volume.bounding_radius_km() {
         return Ok(None);
     }
     let m_tca = volume.measure(&[g.radial_km, g.in_track_km, g.cross_track_km]);

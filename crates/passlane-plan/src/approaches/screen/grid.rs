@@ -83,8 +83,19 @@ struct Hot {
     /// Samples before the first failure.
     valid: u32,
     group: u8,
+    /// Activity slots sampled (bit k), and samples per slot (0: all sampled).
+    mask: u32,
+    per_slot: u32,
     /// Bound on the interpolant's speed anywhere in the chunk, km/s.
     speed_max_km_s: f64,
+}
+
+impl Hot {
+    /// Whether the interval between samples m and m + 1 was sampled.
+    #[inline]
+    fn covers(&self, m: usize) -> bool {
+        self.per_slot == 0 || self.mask & (1 << (m / self.per_slot as usize)) != 0
+    }
 }
 
 /// The objects that share one sample step, with their samples interleaved by
@@ -101,12 +112,16 @@ impl Lane {
     /// Interpolated state of the object in `slot` (with `valid` samples) at
     /// `x` sample steps after the chunk start.
     #[inline]
-    fn at(&self, slot: usize, valid: usize, x: f64) -> Option<Sample> {
+    fn at(&self, slot: usize, hot: &Hot, x: f64) -> Option<Sample> {
+        let valid = hot.valid as usize;
         if valid < 2 || x > (valid - 1) as f64 + 1e-9 {
             return None;
         }
         // Truncation is the floor here: x is clamped to be non-negative.
         let m = (x.max(0.0) as usize).min(valid - 2);
+        if !hot.covers(m) {
+            return None;
+        }
         let n = self.objects.len();
         Some(hermite(
             &self.samples[m * n + slot],
@@ -148,7 +163,11 @@ impl Flat {
                 slot: slot as u32,
                 valid: oc.valid as u32,
                 group: o.group,
-                speed_max_km_s: speed_bound_km_s(&oc.samples[..oc.valid], o.sample_step_s),
+                mask: oc.mask,
+                per_slot: oc.per_slot as u32,
+                speed_max_km_s: speed_bound_km_s(&oc.samples[..oc.valid], o.sample_step_s, |m| {
+                    oc.covers(m)
+                }),
             });
         }
         for (lane, &len) in flat.lanes.iter_mut().zip(&lengths) {
@@ -189,9 +208,9 @@ impl Flat {
     /// covered by valid samples.
     #[inline]
     fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
-        let h = self.hot[i];
+        let h = &self.hot[i];
         let lane = &self.lanes[h.lane as usize];
-        lane.at(h.slot as usize, h.valid as usize, dt_s / lane.step_s)
+        lane.at(h.slot as usize, h, dt_s / lane.step_s)
     }
 }
 
@@ -199,10 +218,14 @@ impl Flat {
 /// two samples the interpolant's velocity is a quadratic whose Bézier control
 /// points are v₀, 3(r₁ − r₀)/h − v₀ − v₁ and v₁; the curve lies in their convex
 /// hull, so its speed never exceeds the largest of their norms.
-fn speed_bound_km_s(samples: &[Sample], step_s: f64) -> f64 {
-    let mut v_max = samples.first().map_or(0.0, |s| norm(&s.vel_km_s));
-    for w in samples.windows(2) {
+fn speed_bound_km_s(samples: &[Sample], step_s: f64, covers: impl Fn(usize) -> bool) -> f64 {
+    let mut v_max: f64 = 0.0;
+    for (m, w) in samples.windows(2).enumerate() {
+        if !covers(m) {
+            continue;
+        }
         let (a, b) = (&w[0], &w[1]);
+        v_max = v_max.max(norm(&a.vel_km_s));
         let mid: [f64; 3] = std::array::from_fn(|k| {
             3.0 * (b.pos_km[k] - a.pos_km[k]) / step_s - a.vel_km_s[k] - b.vel_km_s[k]
         });
@@ -249,8 +272,7 @@ impl ChunkContext<'_> {
         for lane in &self.flat.lanes {
             let x = mid_dt / lane.step_s;
             for (slot, &i) in lane.objects.iter().enumerate() {
-                let valid = self.flat.hot[i as usize].valid as usize;
-                scratch.states[i as usize] = lane.at(slot, valid, x);
+                scratch.states[i as usize] = lane.at(slot, &self.flat.hot[i as usize], x);
             }
         }
         // A pair closer than d at some time in the step is closer than

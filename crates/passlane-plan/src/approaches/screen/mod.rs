@@ -15,13 +15,25 @@
 //!      element set's mean-motion derivative implies over the window. In
 //!      fleet-vs-catalog mode a catalog object outside every fleet shell is
 //!      never propagated.
-//!   2. **SGP4 samples and Hermite interpolation.** Each object is propagated
+//!   2. **Radial time windows** (the perigee/apogee filter in time, fleet vs
+//!      catalog): a catalog object whose orbit reaches above the fleet's band
+//!      (the top of the fleet's padded shells plus 10 km) is sampled only in
+//!      the 8-minute activity slots where it can be inside the band. From
+//!      the SGP4 state at a slot's start, its radial speed obeys
+//!      ṙ² = 2ε + 2μ/r − h²/r² ≤ 2ε_max + 2μ/r − h_min²/r², with the energy
+//!      widened by three times the J2 potential at the band's top plus 1 %
+//!      and the angular momentum lowered by 2 % (SGP4's short-period terms
+//!      move both by ~0.1 %; drag only lowers the energy); integrating that
+//!      bound gives the shortest time to come down to the band, and a slot
+//!      shorter than it is skipped. Eccentric LEO-crossers (transfer stages,
+//!      12-hour orbits) are then sampled near their perigee passages only.
+//!   3. **SGP4 samples and Hermite interpolation.** Each object is propagated
 //!      once per sample step (60 s to half an hour, the longest power-of-two
 //!      multiple of the hash step whose estimated cubic Hermite error stays
 //!      under [`ScreeningSettings::interpolation_tolerance_km`]); everything
 //!      before the final evaluation uses the interpolant. Time is processed in
 //!      chunks so memory stays bounded whatever the window length.
-//!   3. **Spatial grid per time step.** The window is cut into steps of
+//!   4. **Spatial grid per time step.** The window is cut into steps of
 //!      [`ScreeningSettings::hash_step_s`]. At each step's midpoint every object
 //!      is put in a cubic cell of side L = D + m + (v₁ + v₂)·h/2, where D is the
 //!      volume's bounding radius, m the interpolation margin, h the step and
@@ -34,7 +46,7 @@
 //!      catalog, only the fleet goes into the grid (each fleet object in its
 //!      cell and the 26 around it) and each catalog object looks up its own
 //!      cell, after a radial-band test against the fleet's radii.
-//!   4. **Pair test and TCA.** Candidates pass a linear-motion bound, then the
+//!   5. **Pair test and TCA.** Candidates pass a linear-motion bound, then the
 //!      roots of Δr·Δv on the interpolant inside the step give the minima. A
 //!      pair within reach across a whole step (co-orbiting objects, formation
 //!      flyers, a deployer and its cubesats, slowly drifting pairs) is handed
@@ -43,7 +55,7 @@
 //!      the step (eight per step). A pair within reach at the window's start
 //!      with its distance already rising, or at the end with it still
 //!      falling, gets an *edge* seed: its smallest distance is on the edge.
-//!   5. **Final evaluation with direct SGP4**: the root of Δr·Δv inside the
+//!   6. **Final evaluation with direct SGP4**: the root of Δr·Δv inside the
 //!      interpolant's bracket (safeguarded regula falsi on SGP4 to 10 µs;
 //!      Newton from the interpolant's root when SGP4's signs do not bracket
 //!      it); miss distance, RIC and states come from SGP4 at the TCA, not
@@ -63,6 +75,11 @@
 //! - Shells: SGP4's radius stays within the padded perigee/apogee shell (short
 //!   period terms and decay are in the padding), and two objects closer than D
 //!   have radii within D of each other.
+//! - Radial time windows: the fall-time bound holds for two-body motion with
+//!   the widened energy and angular momentum; a skipped slot is one where
+//!   the object cannot be inside the fleet's band, so no fleet object can
+//!   be within D of it (`fleet_against_the_dense_subset_equals_brute_force`
+//!   checks it against brute force).
 //! - Interpolation: the interpolant is within m of SGP4 at every instant (m is
 //!   the per-object allowance, checked against SGP4 in the tests), so a pair
 //!   within D in SGP4 is within D + m on the interpolant.
@@ -134,7 +151,8 @@ use geometry::{Built, evaluate_seed, join_intervals};
 use grid::{Candidate, ChunkContext, Flat, Scratch};
 use hermite::{Sample, hermite};
 use objects::{
-    ObjectCursor, diagnostic, drop_unreachable_secondaries, prepare_objects, sample_step,
+    ObjectCursor, SLOT_HASH_STEPS, diagnostic, drop_unreachable_secondaries, fleet_band_top_km,
+    prepare_objects, sample_step,
 };
 
 /// The region around the primary that counts as "close".
@@ -401,6 +419,14 @@ pub fn screen_with_progress(
         result.stats.objects_filtered = before - objects.len();
     }
     let mut cursors: Vec<ObjectCursor<'_>> = objects.iter().map(ObjectCursor::new).collect();
+    // Fleet against catalog: eccentric catalog objects are sampled only in
+    // the activity slots where they can be inside the fleet's radius band.
+    let band_top_km = if request.secondaries.is_some() {
+        fleet_band_top_km(&objects)
+    } else {
+        None
+    };
+    let slot_s = settings.hash_step_s * f64::from(SLOT_HASH_STEPS);
 
     let h = settings.hash_step_s;
     let chunk_s = h * f64::from(CHUNK_HASH_STEPS);
@@ -416,10 +442,10 @@ pub fn screen_with_progress(
             .par_iter_mut()
             .zip(objects.par_iter())
             .for_each(|(oc, o)| {
-                oc.fill(o, chunk_start, chunk_end);
+                oc.fill(o, chunk_start, chunk_end, band_top_km, slot_s);
             });
         for (oc, o) in cursors.iter_mut().zip(objects.iter()) {
-            result.stats.sgp4_samples += oc.samples.len() as u64;
+            result.stats.sgp4_samples += oc.computed as u64;
             if let Some(e) = oc.error.take() {
                 result.diagnostics.push(diagnostic(o, &e));
             }

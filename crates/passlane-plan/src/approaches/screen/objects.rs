@@ -2,7 +2,8 @@
 //! sample steps; the perigee/apogee filter of fleet-vs-catalog runs; and the
 //! per-chunk SGP4 samples of each object.
 
-use passlane_orbit::constants::MU_WGS72_KM3_S2;
+use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
+use passlane_orbit::frames::{cross, norm};
 use passlane_orbit::summary::semi_major_axis_km;
 use passlane_orbit::{Cursor, ElementSet, PropagationError, Propagator, UtcTime};
 
@@ -150,12 +151,97 @@ pub(crate) fn diagnostic(o: &Object, e: &PropagationError) -> ObjectDiagnostic {
     }
 }
 
+/// Length of one activity slot of a chunk, in hash steps (16 × 30 s = 8 min
+/// by default): a catalog object on an eccentric orbit is sampled only in
+/// the slots where it can be inside the fleet's radius band. Chosen, not
+/// tuned: short enough that a 12-hour orbit's or a transfer stage's pass
+/// through LEO (10–20 minutes) takes two or three slots, long enough that the
+/// one SGP4 state per slot costs little; it divides the chunk (256 hash
+/// steps) and every sample step up to 16 hash steps.
+pub(super) const SLOT_HASH_STEPS: u32 = 16;
+
+/// The fleet's radius band for the radial time windows: the highest top of
+/// the fleet's padded shells plus a 10 km allowance for the interpolants
+/// (fleet-vs-catalog runs only), km.
+pub(super) fn fleet_band_top_km(objects: &[Object]) -> Option<f64> {
+    objects
+        .iter()
+        .filter(|o| o.group == 0)
+        .map(|o| o.shell_max_km)
+        .reduce(f64::max)
+        .map(|top| top + 10.0)
+}
+
+/// A lower bound on the time (s) an object at radius `r0_km` with specific
+/// orbital energy at most `energy_max` (km²/s²) and angular momentum at least
+/// `h_min` (km²/s) needs to come down to `r1_km` < `r0_km`. Its radial speed
+/// obeys ṙ² = 2ε + 2μ/r − h²/r² ≤ g(r) = 2ε_max + 2μ/r − h_min²/r², so on
+/// every sub-interval of [r1, r0] the time is at least its length over the
+/// square root of g's largest value there (g peaks at r = h²/μ). Where g < 0
+/// everywhere on a sub-interval the radius is out of reach: infinite time.
+pub(super) fn fall_time_lower_bound_s(r0_km: f64, r1_km: f64, energy_max: f64, h_min: f64) -> f64 {
+    if r0_km <= r1_km {
+        return 0.0;
+    }
+    let mu = MU_WGS72_KM3_S2;
+    let g = |r: f64| 2.0 * energy_max + 2.0 * mu / r - h_min * h_min / (r * r);
+    let r_peak = h_min * h_min / mu;
+    const N: usize = 32;
+    let dr = (r0_km - r1_km) / N as f64;
+    let mut t = 0.0;
+    for k in 0..N {
+        let (a, b) = (r1_km + k as f64 * dr, r1_km + (k + 1) as f64 * dr);
+        let g_max = g(r_peak.clamp(a, b)).max(g(a)).max(g(b));
+        if g_max <= 0.0 {
+            return f64::INFINITY;
+        }
+        t += dr / g_max.sqrt();
+    }
+    t
+}
+
+/// Whether an object whose SGP4 state is (r, v) can come down to
+/// `band_top_km` within `horizon_s`. The energy and angular momentum of the
+/// state are widened for what SGP4 adds to two-body motion over a slot: the
+/// J2 potential at the lowest radius in question (three times its size) plus
+/// 1 % of the energy, and 2 % less angular momentum (J2 short-period terms
+/// move both by ~0.1 %; drag only lowers the energy).
+fn can_reach_band(
+    pos_km: &[f64; 3],
+    vel_km_s: &[f64; 3],
+    band_top_km: f64,
+    horizon_s: f64,
+) -> bool {
+    let r = norm(pos_km);
+    if r <= band_top_km {
+        return true;
+    }
+    let mu = MU_WGS72_KM3_S2;
+    let v2 = vel_km_s.iter().map(|x| x * x).sum::<f64>();
+    let energy = 0.5 * v2 - mu / r;
+    let h = norm(&cross(pos_km, vel_km_s));
+    let j2_km2_s2 = 3.0 * mu * J2 * EARTH_RADIUS_WGS72_KM.powi(2) / band_top_km.powi(3);
+    let energy_max = energy + j2_km2_s2 + 0.01 * energy.abs();
+    fall_time_lower_bound_s(r, band_top_km, energy_max, 0.98 * h) < horizon_s
+}
+
+/// J2 of WGS-72 (the SGP4 constants).
+const J2: f64 = 0.001_082_616;
+
 /// One object's samples over the current chunk.
 pub(super) struct ObjectCursor<'a> {
     pub(super) cursor: Cursor<'a>,
+    /// Samples of the chunk; in the slots the object skips, placeholders.
     pub(super) samples: Vec<Sample>,
     /// Samples before the first failure.
     pub(super) valid: usize,
+    /// SGP4 samples actually computed in the chunk.
+    pub(super) computed: usize,
+    /// Activity slots of the chunk (bit k: slot k sampled); all ones for an
+    /// object sampled throughout.
+    pub(super) mask: u32,
+    /// Samples per activity slot (0: the object is sampled throughout).
+    pub(super) per_slot: usize,
     pub(super) failed: bool,
     pub(super) error: Option<PropagationError>,
 }
@@ -166,14 +252,32 @@ impl<'a> ObjectCursor<'a> {
             cursor: o.prop.cursor(),
             samples: Vec::new(),
             valid: 0,
+            computed: 0,
+            mask: u32::MAX,
+            per_slot: 0,
             failed: false,
             error: None,
         }
     }
 
-    pub(super) fn fill(&mut self, o: &Object, chunk_start: UtcTime, chunk_end: UtcTime) {
+    /// Samples over [chunk_start, chunk_end]. With `band_top_km` (a catalog
+    /// object of a fleet-vs-catalog run whose orbit reaches above the fleet's
+    /// band), only in the activity slots where the object can be inside the
+    /// band: a slot is skipped when, from the SGP4 state at its start, the
+    /// object cannot come down to the band before the slot ends.
+    pub(super) fn fill(
+        &mut self,
+        o: &Object,
+        chunk_start: UtcTime,
+        chunk_end: UtcTime,
+        band_top_km: Option<f64>,
+        slot_s: f64,
+    ) {
         self.samples.clear();
         self.valid = 0;
+        self.computed = 0;
+        self.mask = u32::MAX;
+        self.per_slot = 0;
         if self.failed {
             return;
         }
@@ -181,22 +285,86 @@ impl<'a> ObjectCursor<'a> {
             .ceil()
             .max(1.0) as usize
             + 1;
-        for m in 0..n {
-            match self
-                .cursor
-                .state_at(chunk_start.add_s(m as f64 * o.sample_step_s))
-            {
-                Ok(s) => self.samples.push(Sample {
-                    pos_km: s.position_km,
-                    vel_km_s: s.velocity_km_s,
-                }),
-                Err(e) => {
-                    self.failed = true;
-                    self.error = Some(e);
+        let per_slot = slot_s / o.sample_step_s;
+        let band = band_top_km
+            .filter(|&top| o.group == 1 && o.shell_max_km > top + 100.0 && per_slot.fract() == 0.0);
+        let Some(top) = band else {
+            for m in 0..n {
+                if !self.push_sample(chunk_start.add_s(m as f64 * o.sample_step_s)) {
                     break;
                 }
             }
+            self.valid = self.samples.len();
+            self.computed = self.valid;
+            return;
+        };
+        let per_slot = per_slot as usize;
+        self.per_slot = per_slot;
+        self.mask = 0;
+        self.samples.resize(n, Sample::default());
+        let mut k = 0;
+        while k * per_slot < n - 1 {
+            let (s0, s1) = (k * per_slot, ((k + 1) * per_slot).min(n - 1));
+            let t0 = chunk_start.add_s(s0 as f64 * o.sample_step_s);
+            let first = match self.cursor.state_at(t0) {
+                Ok(s) => s,
+                Err(e) => return self.fail(s0, e),
+            };
+            self.computed += 1;
+            let horizon_s = (s1 - s0) as f64 * o.sample_step_s;
+            if can_reach_band(&first.position_km, &first.velocity_km_s, top, horizon_s) {
+                self.mask |= 1 << k;
+                self.samples[s0] = Sample {
+                    pos_km: first.position_km,
+                    vel_km_s: first.velocity_km_s,
+                };
+                for m in s0 + 1..=s1 {
+                    match self
+                        .cursor
+                        .state_at(chunk_start.add_s(m as f64 * o.sample_step_s))
+                    {
+                        Ok(s) => {
+                            self.computed += 1;
+                            self.samples[m] = Sample {
+                                pos_km: s.position_km,
+                                vel_km_s: s.velocity_km_s,
+                            };
+                        }
+                        Err(e) => return self.fail(m, e),
+                    }
+                }
+            }
+            k += 1;
         }
-        self.valid = self.samples.len();
+        self.valid = n;
+    }
+
+    fn push_sample(&mut self, t: UtcTime) -> bool {
+        match self.cursor.state_at(t) {
+            Ok(s) => {
+                self.samples.push(Sample {
+                    pos_km: s.position_km,
+                    vel_km_s: s.velocity_km_s,
+                });
+                true
+            }
+            Err(e) => {
+                self.failed = true;
+                self.error = Some(e);
+                false
+            }
+        }
+    }
+
+    fn fail(&mut self, at: usize, e: PropagationError) {
+        self.failed = true;
+        self.error = Some(e);
+        self.valid = at;
+    }
+
+    /// Whether the interval between samples m and m + 1 was sampled.
+    #[inline]
+    pub(super) fn covers(&self, m: usize) -> bool {
+        self.per_slot == 0 || self.mask & (1 << (m / self.per_slot)) != 0
     }
 }
