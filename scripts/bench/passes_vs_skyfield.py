@@ -8,7 +8,10 @@ with getrusage(RUSAGE_CHILDREN). Prints each figure and the ratio.
 
 Run from the repo root after `cargo build --release` and
 `pip install -r scripts/fixtures/requirements.txt`:
-    python3 scripts/bench/passes_vs_skyfield.py
+    python3 scripts/bench/passes_vs_skyfield.py            # the demo fleet (6)
+    python3 scripts/bench/passes_vs_skyfield.py --fleet 12 # the first 12 of
+        tests/fixtures/bench-1000.tle (synthetic), as in the README's table
+The executable is target/release/passlane, or $PASSLANE_EXE if set.
 """
 import os
 import resource
@@ -47,9 +50,27 @@ def child_cpu(cmd):
     return cpu, out.stdout
 
 
+def fleet_file(n):
+    """The first n element sets of the synthetic benchmark catalog, as a
+    3-line TLE file in a temporary directory."""
+    import tempfile
+    src = os.path.join(REPO, "tests", "fixtures", "bench-1000.tle")
+    lines = [l.rstrip("\n") for l in open(src) if l.strip() and not l.startswith("#")]
+    if n * 3 > len(lines):
+        sys.exit(f"only {len(lines) // 3} element sets in {src}")
+    path = os.path.join(tempfile.mkdtemp(), f"fleet-{n}.tle")
+    with open(path, "w") as f:
+        f.write("\n".join(lines[: 3 * n]) + "\n")
+    return path
+
+
 def main():
-    tle = os.path.join(REPO, "scenarios", "demo-fleet.tle")
-    exe = os.path.join(REPO, "target", "release", "passlane")
+    import argparse
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--fleet", type=int, help="first N sets of tests/fixtures/bench-1000.tle")
+    args = ap.parse_args()
+    tle = fleet_file(args.fleet) if args.fleet else os.path.join(REPO, "scenarios", "demo-fleet.tle")
+    exe = os.environ.get("PASSLANE_EXE") or os.path.join(REPO, "target", "release", "passlane")
     if not os.path.exists(exe):
         sys.exit("build first: cargo build --release")
     station_args = []

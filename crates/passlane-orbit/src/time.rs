@@ -230,8 +230,31 @@ impl UtcTime {
         let (h, rest) = (of_day / (3_600 * per_s), of_day % (3_600 * per_s));
         let (min, rest) = (rest / (60 * per_s), rest % (60 * per_s));
         let (sec, frac) = (rest / per_s, rest % per_s);
-        let width = digits as usize;
-        format!("{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0width$}Z")
+        // Digits written straight into a buffer: `format!` with padded
+        // fields cost about ten times as much, and a pass listing writes
+        // tens of thousands of times.
+        let mut out = String::with_capacity(32);
+        if !(0..=9999).contains(&y) {
+            return format!(
+                "{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0width$}Z",
+                width = digits as usize
+            );
+        }
+        push_digits(&mut out, y, 4);
+        out.push('-');
+        push_digits(&mut out, i64::from(m), 2);
+        out.push('-');
+        push_digits(&mut out, i64::from(d), 2);
+        out.push('T');
+        push_digits(&mut out, h, 2);
+        out.push(':');
+        push_digits(&mut out, min, 2);
+        out.push(':');
+        push_digits(&mut out, sec, 2);
+        out.push('.');
+        push_digits(&mut out, frac, digits as usize);
+        out.push('Z');
+        out
     }
 
     /// ISO 8601 UTC rounded to the second, without fraction (for tables).
@@ -324,6 +347,17 @@ fn j2000_date() -> NaiveDate {
 
 fn j2000_noon() -> NaiveDateTime {
     j2000_date().and_hms_opt(12, 0, 0).unwrap_or_default()
+}
+
+/// Appends `value` (0 ≤ value < 10^width) with exactly `width` digits.
+fn push_digits(out: &mut String, value: i64, width: usize) {
+    let mut buf = [b'0'; 20];
+    let mut v = value.unsigned_abs();
+    for slot in buf[..width].iter_mut().rev() {
+        *slot = b'0' + (v % 10) as u8;
+        v /= 10;
+    }
+    out.extend(buf[..width].iter().map(|&b| char::from(b)));
 }
 
 #[cfg(test)]

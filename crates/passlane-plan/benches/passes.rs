@@ -10,7 +10,7 @@ use std::time::Instant;
 
 use passlane_orbit::{LoadOptions, UtcTime, elements};
 use passlane_plan::Silent;
-use passlane_plan::passes::{PassOptions, find_passes};
+use passlane_plan::passes::{PassOptions, find_passes, find_passes_on};
 use passlane_plan::station::Station;
 
 #[path = "../../passlane-orbit/benches/support/mod.rs"]
@@ -73,6 +73,28 @@ fn main() {
         per_run * 1e3,
         cpu_per_run * 1e3
     );
+
+    // Threads or not, by fleet size: the first N of the synthetic 1,000
+    // over the three demo stations, 7 days, on the calling thread and on
+    // rayon's pool (2 cores), CPU and wall per run. The threshold in
+    // `passes/mod.rs` is chosen from these figures.
+    println!("fleet size: serial ms CPU / wall | parallel ms CPU / wall");
+    for n in [1usize, 3, 6, 12, 24, 50, 100] {
+        let fleet = &big[..n];
+        let runs = (200 / n).max(4);
+        let mut row = format!("  {n:4}:");
+        for parallel in [false, true] {
+            let t0 = Instant::now();
+            let c0 = support::cpu_seconds();
+            for _ in 0..runs {
+                find_passes_on(fleet, &three, &options, &Silent, parallel);
+            }
+            let wall = t0.elapsed().as_secs_f64() / runs as f64;
+            let cpu = (support::cpu_seconds() - c0) / runs as f64;
+            row += &format!("  {:8.2} / {:8.2}", cpu * 1e3, wall * 1e3);
+        }
+        println!("{row}");
+    }
 
     let t0 = Instant::now();
     let c0 = support::cpu_seconds();
