@@ -1241,6 +1241,7 @@ fn ut1_utc_given_on_the_command_line_reads_an_earth_fixed_ephemeris() {
     assert!(unset > 100.0, "read with UT1-UTC = 0: {unset} m");
 }
 
+#[test]
 fn screening_again_updates_each_events_cdm_in_place() {
     // Issue 12 item 8: CDM files were named by their place in the run's
     // list, so a second screening with other events wrote a second file for
