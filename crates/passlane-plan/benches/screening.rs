@@ -202,7 +202,6 @@ fn compare(fast: &ScreeningResult, brute: &ScreeningResult) -> bool {
         (e.primary_catalog_number, e.secondary_catalog_number)
     };
     let mut same = fast.events.len() == brute.events.len();
-    let mut b = brute.events.iter().peekable();
     for a in &fast.events {
         let m = brute
             .events
@@ -223,7 +222,7 @@ fn compare(fast: &ScreeningResult, brute: &ScreeningResult) -> bool {
             }
         }
     }
-    while let Some(e) = b.next() {
+    for e in &brute.events {
         if !fast
             .events
             .iter()

@@ -93,6 +93,7 @@ pub fn mean_motion_rev_day(a_km: f64) -> f64 {
     (MU_KM3_S2 / a_km.powi(3)).sqrt() * 86_400.0 / std::f64::consts::TAU
 }
 
+#[allow(clippy::too_many_arguments)]
 fn synth(
     group: Group,
     plane: u32,

@@ -125,6 +125,12 @@
 //! - 2,000 objects over 6 h: 0.21 s CPU, 163× less CPU than brute-force
 //!   sampling at 10 s, identical events.
 //!
+//! On the realistic catalog (`benches/support/catalog.rs`: dense shells,
+//! debris band, eccentric LEO-crossers), 10 sun-synchronous spacecraft vs
+//! 30,000 over 7 days, 5 km: 28 s CPU, of which ~40 M SGP4 samples of the
+//! ~13,900 objects the perigee/apogee filter keeps are the larger part and
+//! the grid's per-step interpolation the rest (see the README's speed table).
+//!
 //! # What it deliberately does not do
 //! - No collision probability (no covariance here) and no manoeuvre planning.
 //! - No file I/O and no printing: results and per-object diagnostics are values.
