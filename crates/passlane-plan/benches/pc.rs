@@ -15,9 +15,7 @@
 
 use std::time::Instant;
 
-use passlane_plan::pc::{
-    Encounter2d, pc, pc_alfano, pc_chan, pc_foster, pc_max, pc_max_scan,
-};
+use passlane_plan::pc::{Encounter2d, pc, pc_alfano, pc_chan, pc_foster, pc_max, pc_max_scan};
 
 struct Rng(u64);
 impl Rng {
@@ -53,7 +51,11 @@ fn mix(n: usize) -> Vec<Encounter2d> {
                 let ar = rng.log_uniform(1.0, 30.0);
                 (rng.uniform(0.0, 5000.0), s * ar, s, rng.uniform(2.0, 20.0))
             };
-            let (sx, sy) = if rng.next_f64() < 0.5 { (sx, sy) } else { (sy, sx) };
+            let (sx, sy) = if rng.next_f64() < 0.5 {
+                (sx, sy)
+            } else {
+                (sy, sx)
+            };
             Encounter2d::new(miss * angle.cos(), miss * angle.sin(), sx, sy, r).expect("valid")
         })
         .collect()
@@ -65,7 +67,10 @@ fn per_event_us(events: &[Encounter2d], f: impl Fn(&Encounter2d) -> f64) -> (f64
     for e in events {
         check += f(e);
     }
-    (t0.elapsed().as_secs_f64() * 1e6 / events.len() as f64, check)
+    (
+        t0.elapsed().as_secs_f64() * 1e6 / events.len() as f64,
+        check,
+    )
 }
 
 fn main() {
@@ -75,7 +80,11 @@ fn main() {
         .copied()
         .filter(|e| e.sigma_x_m().min(e.sigma_y_m()) >= 30.0 && e.miss_m() <= 5000.0)
         .collect();
-    println!("Pc per event, one thread ({} encounters, {} operational):", events.len(), operational.len());
+    println!(
+        "Pc per event, one thread ({} encounters, {} operational):",
+        events.len(),
+        operational.len()
+    );
     for (name, set) in [("whole mix", &events), ("operational", &operational)] {
         let (t_pc, _) = per_event_us(set, pc);
         let (t_max, _) = per_event_us(set, |e| pc_max(e).pc_max);

@@ -138,7 +138,10 @@ fn fast_pc_matches_published_cases_and_the_reference_integral() {
         let e = encounter(c);
         let (got, reference) = (pc(&e), pc_foster(&e));
         assert!(rel_err(got, c.5) < 1e-3, "{c:?}: pc {got:e}");
-        assert!(rel_err(got, reference) < 1e-9, "{c:?}: pc {got:e} foster {reference:e}");
+        assert!(
+            rel_err(got, reference) < 1e-9,
+            "{c:?}: pc {got:e} foster {reference:e}"
+        );
     }
 }
 
@@ -355,9 +358,15 @@ fn fast_pc_matches_the_reference_integral_over_a_random_sweep() {
             assert!(got < 1e-300, "{e:?}: pc {got:e}, reference {reference:e}");
             continue;
         }
-        assert!(rel_err(got, reference) < 1e-6, "{e:?}: pc {got:e} reference {reference:e}");
+        assert!(
+            rel_err(got, reference) < 1e-6,
+            "{e:?}: pc {got:e} reference {reference:e}"
+        );
         if let Some(s) = series {
-            assert!(rel_err(s, reference) < 1e-6, "{e:?}: series {s:e} reference {reference:e}");
+            assert!(
+                rel_err(s, reference) < 1e-6,
+                "{e:?}: series {s:e} reference {reference:e}"
+            );
         } else {
             fallback += 1;
         }
@@ -371,7 +380,10 @@ fn fast_pc_matches_the_reference_integral_over_a_random_sweep() {
     assert!(tiny >= 20, "only {tiny} cases below 1e-30");
     assert!(large >= 10, "only {large} cases above 0.5");
     assert!(needle >= 20, "only {needle} needle cases");
-    assert!(anisotropic >= 20, "only {anisotropic} cases with aspect ratio > 1e3");
+    assert!(
+        anisotropic >= 20,
+        "only {anisotropic} cases with aspect ratio > 1e3"
+    );
     assert!(fallback >= 5, "the fallback was exercised {fallback} times");
 }
 
@@ -404,8 +416,14 @@ fn isotropic_max_has_the_closed_form_maximiser() {
             panic!("valid input")
         };
         let reference = pc_max_scan(&e);
-        assert!(rel_err(m.pc_max, reference.pc_max) < 1e-9, "{m:?} vs {reference:?}");
-        assert!(rel_err(m.sigma_x_m, reference.sigma_x_m) < 1e-3, "{m:?} vs {reference:?}");
+        assert!(
+            rel_err(m.pc_max, reference.pc_max) < 1e-9,
+            "{m:?} vs {reference:?}"
+        );
+        assert!(
+            rel_err(m.sigma_x_m, reference.sigma_x_m) < 1e-3,
+            "{m:?} vs {reference:?}"
+        );
     }
     // Small-body limit σ = d/√2 (Alfriend et al. 1999).
     assert!(rel_err(isotropic_max_sigma_m(1e6, 1.0), 1e6 / 2f64.sqrt()) < 1e-9);

@@ -113,7 +113,11 @@ pub fn pc_max(e: &Encounter2d) -> PcMax {
 pub fn isotropic_max_sigma_m(miss_m: f64, hard_body_radius_m: f64) -> f64 {
     let rho = hard_body_radius_m / miss_m;
     let (mut lo, mut hi) = (2.0 * rho, 2.0 * rho / ((1.0 - rho) * (1.0 + rho)));
-    let mut x = if rho < 0.5 { 2.0 * rho } else { 0.5 * (lo + hi) };
+    let mut x = if rho < 0.5 {
+        2.0 * rho
+    } else {
+        0.5 * (lo + hi)
+    };
     for _ in 0..100 {
         let r = bessel_i1_over_i0(x);
         let f = r - rho;
