@@ -242,9 +242,9 @@ impl UtcTime {
         }
         push_digits(&mut out, y, 4);
         out.push('-');
-        push_digits(&mut out, i64::from(m), 2);
+        push_digits(&mut out, m, 2);
         out.push('-');
-        push_digits(&mut out, i64::from(d), 2);
+        push_digits(&mut out, d, 2);
         out.push('T');
         push_digits(&mut out, h, 2);
         out.push(':');

@@ -329,7 +329,7 @@ pub fn assess_events_with_progress<'a>(
                 return Err(NOT_ASSESSED_CANCELLED.to_string());
             }
             let n = done.fetch_add(1, Ordering::Relaxed) + 1;
-            if n % REPORT_EVERY == 0 {
+            if n.is_multiple_of(REPORT_EVERY) {
                 progress.report(n as f64 / total);
             }
             assess_one(
