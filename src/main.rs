@@ -67,7 +67,10 @@ fn run(name: &str, command: impl FnOnce(&mut dyn Write) -> anyhow::Result<()>) -
         // A runtime error (a file, a value that makes no sense): the message
         // alone; the usage is for usage errors, which clap reports.
         Err(e) => {
-            eprintln!("passlane {name}: error: {e:#}");
+            eprintln!(
+                "passlane {name}: error: {}",
+                passlane_orbit::text::clean(&format!("{e:#}"), true)
+            );
             ExitCode::FAILURE
         }
     }

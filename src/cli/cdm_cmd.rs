@@ -9,7 +9,7 @@ use anyhow::{Context, Result, bail};
 use passlane_plan::cdm::{Cdm, trend_groups};
 
 use super::args::CdmArgs;
-use super::common::Format;
+use super::common::{self, Format};
 
 const CAUTION: &str = "Caution: screening on published mean elements is advisory. Defer to official conjunction \
 messages and coordinate with the other operator before acting.";
@@ -35,7 +35,7 @@ fn read_all(args: &CdmArgs) -> Result<Vec<(String, Cdm)>> {
             Ok(cdm) => messages.push((file, cdm)),
             Err(e) => {
                 failed += 1;
-                eprintln!("error: {e:#}");
+                common::say(format!("error: {e:#}"));
             }
         }
     }

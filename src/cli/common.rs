@@ -10,6 +10,13 @@ use passlane_plan::{Scenario, Station};
 
 use super::args::{FleetArgs, StationArgs, WindowArgs};
 
+/// Prints one line on stderr with every control character and terminal
+/// escape shown as `?`: the text may quote a file (names, excerpts), and a
+/// file must not be able to re-program the terminal.
+pub fn say(text: impl std::fmt::Display) {
+    eprintln!("{}", passlane_orbit::text::clean(&text.to_string(), true));
+}
+
 /// Loads element files, prints every diagnostic to stderr as `file:line: ...`,
 /// and returns the good sets. Fails only when nothing at all loaded.
 pub fn load_elements(paths: &[PathBuf], lenient: bool) -> Result<LoadReport> {
@@ -21,10 +28,10 @@ pub fn load_elements(paths: &[PathBuf], lenient: bool) -> Result<LoadReport> {
         report.merge(r);
     }
     for d in &report.diagnostics {
-        eprintln!("{d}");
+        say(d);
     }
     if let Some(note) = report.omitted_note() {
-        eprintln!("{note}");
+        say(note);
     }
     Ok(report)
 }
@@ -70,7 +77,7 @@ pub fn attach_ephemerides(
             .with_context(|| format!("cannot read ephemeris file {}", path.display()))?;
         let (eph, diagnostics) = load_oem(&bytes, &path.display().to_string(), eop);
         for d in &diagnostics {
-            eprintln!("{d}");
+            say(d);
         }
         if let Some(ephemeris) = eph {
             inputs.push(EphemerisInput {
@@ -80,7 +87,7 @@ pub fn attach_ephemerides(
         }
     }
     for d in attach_to_fleet(fleet, inputs) {
-        eprintln!("{d}");
+        say(d);
     }
     Ok(())
 }

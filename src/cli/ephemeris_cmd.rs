@@ -66,7 +66,7 @@ pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
         let prop = match Propagator::new(set) {
             Ok(p) => p,
             Err(e) => {
-                eprintln!("{}: {e}", set.name);
+                common::say(format!("{}: {e}", set.name));
                 failures += 1;
                 continue;
             }
@@ -77,7 +77,10 @@ pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
             let s = match cursor.state_at(t) {
                 Ok(s) => s,
                 Err(e) => {
-                    eprintln!("{}: {e}; no further states for this satellite", set.name);
+                    common::say(format!(
+                        "{}: {e}; no further states for this satellite",
+                        set.name
+                    ));
                     failures += 1;
                     break;
                 }

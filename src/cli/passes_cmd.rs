@@ -57,7 +57,10 @@ pub fn run(args: &PassesArgs, out: &mut dyn Write) -> Result<()> {
     let report = find_passes(&inputs.sets, &inputs.stations, &options, &bar);
     bar.finish();
     for f in &report.failures {
-        eprintln!("{} ({}): {}", f.satellite, f.catalog_number, f.message);
+        common::say(format!(
+            "{} ({}): {}",
+            f.satellite, f.catalog_number, f.message
+        ));
     }
     match format {
         Format::Json => {

@@ -38,7 +38,7 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
     bar.finish();
     let plan = plan.map_err(|e| anyhow::anyhow!("{}: {e}", scenario_path.display()))?;
     for w in &plan.warnings {
-        eprintln!("warning: {w}");
+        common::say(format!("warning: {w}"));
     }
     let created = UtcTime::now();
     let written = match &args.out {
@@ -102,7 +102,7 @@ fn write_outputs(
     )
     .map_err(|e| anyhow::anyhow!("--pointing-step-s: {e}"))?;
     for w in &hand_off.warnings {
-        eprintln!("warning: {w}");
+        common::say(format!("warning: {w}"));
     }
     let summary = passlane_files::folder::write_folder(
         dir,

@@ -107,7 +107,7 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
     let risks = &outcome.risks;
     let covariance = outcome.covariance;
     for d in &result.diagnostics {
-        eprintln!("{} ({}): {}", d.name, d.catalog_number, d.message);
+        common::say(format!("{} ({}): {}", d.name, d.catalog_number, d.message));
     }
     let label = covariance.label();
     let rows: Vec<EventRow> = result

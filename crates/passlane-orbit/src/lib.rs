@@ -21,6 +21,7 @@ pub mod numerical;
 pub mod propagate;
 pub mod summary;
 pub mod sun;
+pub mod text;
 pub mod time;
 
 pub use elements::{Diagnostic, ElementSet, LoadOptions, LoadReport, Severity, SourceRef};

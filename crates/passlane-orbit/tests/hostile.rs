@@ -455,3 +455,40 @@ fn times_outside_1957_to_2100_and_leap_seconds_are_refused_in_words() {
         );
     }
 }
+
+// ---------------------------------------------------------------------------
+// Control characters in names (issue 12, items 11 and 12): replaced at load,
+// with a warning naming the line and keyword.
+
+#[test]
+fn control_characters_in_omm_and_oem_names_are_replaced_and_named() {
+    for (format, text, value_line) in [
+        ("kvn", kvn(&pairs_with("OBJECT_NAME", "EVIL\u{1b}[2J\u{1b}]0;owned\u{7}")), 4),
+        ("xml", xml(&pairs_with("OBJECT_NAME", "EVIL&#10;COLLISION_PROBABILITY = 0&#155;")), 7),
+        ("json", json(&pairs_with("OBJECT_NAME", "EVIL\\nX\\u0000\\u001b[31m"), ""), 1),
+    ] {
+        let r = load(text.as_bytes(), format, STRICT);
+        assert_eq!(r.sets.len(), 1, "{format}: {:?}", r.diagnostics);
+        let name = &r.sets[0].name;
+        assert!(name.starts_with("EVIL?"), "{format}: {name:?}");
+        assert!(!name.chars().any(char::is_control), "{format}: {name:?}");
+        let w = r
+            .diagnostics
+            .iter()
+            .find(|d| d.field == "OBJECT_NAME")
+            .unwrap_or_else(|| panic!("{format}: no warning {:?}", r.diagnostics));
+        assert_eq!(w.severity, passlane_orbit::Severity::Warning);
+        assert_eq!(w.line, value_line, "{format}: {w}");
+        assert!(w.message.contains("U+"), "{w}");
+    }
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    let text = OEM.replace("OBJECT_NAME = X", "OBJECT_NAME = X\u{1b}[31mRED\u{0}");
+    let (eph, d) = load_oem(text.as_bytes(), "names.oem", &eop);
+    let eph = eph.unwrap();
+    assert_eq!(eph.segments[0].object_name, "X?[31mRED?");
+    assert!(
+        d.iter().any(|x| x.line == 5 && x.field == "OBJECT_NAME" && x.message.contains("U+001B")),
+        "{d:?}"
+    );
+}

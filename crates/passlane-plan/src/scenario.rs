@@ -299,6 +299,7 @@ impl Scenario {
 
     /// Checks every field the library relies on; returns (field path, reason).
     pub fn validate(&self) -> Result<(), (String, String)> {
+        self.check_text()?;
         if let Some(w) = &self.window
             && w.end <= w.start
         {
@@ -314,6 +315,22 @@ impl Scenario {
                 "earth_orientation.ut1_utc_s".into(),
                 format!("{} s is outside ±1 s", self.earth_orientation.ut1_utc_s),
             ));
+        }
+        // Polar motion stays within about 0.6 arcsec (IERS series since 1962,
+        // value from memory); 1 arcsec leaves room and catches a value given
+        // in milliarcseconds or radians by mistake.
+        for (f, v) in [
+            ("polar_x_arcsec", self.earth_orientation.polar_x_arcsec),
+            ("polar_y_arcsec", self.earth_orientation.polar_y_arcsec),
+        ] {
+            if !(v.is_finite() && v.abs() <= 1.0) {
+                return Err((
+                    format!("earth_orientation.{f}"),
+                    format!(
+                        "{v} arcsec is outside ±1 arcsec (polar motion is a fraction of an arcsecond)"
+                    ),
+                ));
+            }
         }
         StationSet::new(self.stations.clone())
             .map_err(|e| (format!("stations[{}].{}", e.index, e.field), e.message))?;
@@ -358,6 +375,14 @@ impl Scenario {
                 {
                     return Err((field(f), format!("{v} must not be negative")));
                 }
+            }
+            if let Some(r) = n.hard_body_radius_m
+                && !(r.is_finite() && r > 0.0)
+            {
+                return Err((
+                    field("hard_body_radius_m"),
+                    format!("{r} m must be positive (a radius of 0 or less makes every Pc 0)"),
+                ));
             }
         }
         let mut seen = std::collections::HashSet::new();
@@ -413,6 +438,74 @@ impl Scenario {
                 "screening.default_hard_body_radius_m".into(),
                 format!("{} must be positive", sc.default_hard_body_radius_m),
             ));
+        }
+        for (i, v) in sc.assumed_sigma_at_epoch_m.iter().enumerate() {
+            if !(v.is_finite() && *v > 0.0) {
+                return Err((
+                    format!("screening.assumed_sigma_at_epoch_m[{i}]"),
+                    format!("{v} m must be positive (a 1-sigma uncertainty)"),
+                ));
+            }
+        }
+        for (i, v) in sc.assumed_sigma_growth_m_per_day.iter().enumerate() {
+            if !(v.is_finite() && *v >= 0.0) {
+                return Err((
+                    format!("screening.assumed_sigma_growth_m_per_day[{i}]"),
+                    format!("{v} m/day must not be negative"),
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+impl Scenario {
+    /// Every name and path of the scenario is free of line breaks, NUL and
+    /// terminal escapes: they go into hand-off files (KVN, CSV, iCalendar)
+    /// and onto terminals.
+    fn check_text(&self) -> Result<(), (String, String)> {
+        let mut texts: Vec<(String, &str)> = vec![
+            ("name".into(), &self.name),
+            ("operator".into(), &self.operator),
+        ];
+        for (list, files) in [
+            ("element_files", &self.element_files),
+            ("catalog_files", &self.catalog_files),
+        ] {
+            for (i, f) in files.iter().enumerate() {
+                texts.push((format!("{list}[{i}]"), f));
+            }
+        }
+        for (i, e) in self.ephemeris_files.iter().enumerate() {
+            texts.push((format!("ephemeris_files[{i}].file"), &e.file));
+        }
+        for (i, st) in self.stations.iter().enumerate() {
+            texts.push((format!("stations[{i}].name"), &st.name));
+            for (j, a) in st.antennas.iter().enumerate() {
+                texts.push((format!("stations[{i}].antennas[{j}].name"), &a.name));
+            }
+            for (j, c) in st.channels.iter().enumerate() {
+                texts.push((format!("stations[{i}].channels[{j}].name"), &c.name));
+            }
+        }
+        for (list, refs) in [("pins", &self.pins), ("exclusions", &self.exclusions)] {
+            for (i, r) in refs.iter().enumerate() {
+                texts.push((format!("{list}[{i}].station"), &r.station));
+                if let Some(a) = &r.antenna {
+                    texts.push((format!("{list}[{i}].antenna"), a));
+                }
+            }
+        }
+        for (path, text) in texts {
+            if let Some(c) = passlane_orbit::text::first_unsafe_char(text) {
+                return Err((
+                    path,
+                    format!(
+                        "holds {}: names may not carry line breaks, NUL or terminal escapes",
+                        passlane_orbit::text::describe_char(c)
+                    ),
+                ));
+            }
         }
         Ok(())
     }

@@ -421,3 +421,51 @@ fn scenario_physical_quantities_out_of_range_are_refused_with_their_path() {
         Scenario::from_json(&serde_json::to_string(&edited).unwrap(), "ok.json").unwrap();
     }
 }
+
+/// Issue 12, items 11 and 12: a CDM whose names or comments carry line breaks,
+/// NUL or terminal escapes is refused with its line and keyword, and no
+/// error message repeats an escape sequence from the file.
+#[test]
+fn cdm_and_scenario_names_with_control_characters_are_refused_in_words() {
+    let line_of = |key: &str| {
+        GOOD_CDM
+            .lines()
+            .position(|l| l.starts_with(key))
+            .unwrap()
+            + 1
+    };
+    let name_line = GOOD_CDM
+        .lines()
+        .find(|l| l.starts_with("OBJECT_NAME"))
+        .unwrap();
+    let evil = GOOD_CDM.replacen(name_line, "OBJECT_NAME = EVIL\u{1b}[2J", 1);
+    let e = Cdm::parse(&evil, "evil.kvn").unwrap_err();
+    assert_eq!((e.keyword.as_str(), e.line), ("OBJECT_NAME", line_of("OBJECT_NAME")), "{e}");
+    assert!(e.to_string().contains("U+001B"), "{e}");
+    assert!(!e.to_string().contains('\u{1b}'), "{e:?}");
+    // A keyword made of an escape sequence: quoted without it.
+    let evil = GOOD_CDM.replacen(name_line, "\u{1b}]0;owned\u{7} = 1", 1);
+    let e = Cdm::parse(&evil, "evil.kvn").unwrap_err().to_string();
+    assert!(!e.chars().any(char::is_control), "{e:?}");
+    // A comment with a NUL.
+    let evil = GOOD_CDM.replacen(name_line, &format!("COMMENT bad\u{0}comment\n{name_line}"), 1);
+    let e = Cdm::parse(&evil, "evil.kvn").unwrap_err();
+    assert_eq!(e.keyword, "COMMENT", "{e}");
+
+    // The scenario: names and paths.
+    let demo: serde_json::Value = serde_json::from_str(DEMO_SCENARIO).unwrap();
+    for (pointer, path) in [
+        ("/operator", "operator"),
+        ("/stations/1/name", "stations[1].name"),
+        ("/stations/2/antennas/0/name", "stations[2].antennas[0].name"),
+        ("/stations/0/channels/1/name", "stations[0].channels[1].name"),
+        ("/element_files/0", "element_files[0]"),
+    ] {
+        let mut edited = demo.clone();
+        *edited.pointer_mut(pointer).unwrap() = "X\nCOLLISION_PROBABILITY = 0".into();
+        let text = serde_json::to_string(&edited).unwrap();
+        let e = Scenario::from_json(&text, "s.json").unwrap_err();
+        assert_eq!(e.field, path, "{e}");
+        assert!(e.message.contains("U+000A"), "{e}");
+    }
+}

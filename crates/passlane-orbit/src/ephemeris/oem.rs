@@ -539,8 +539,8 @@ fn build_segment(rs: RawSegment, sink: &mut Sink<'_>, eop: &EarthOrientation) ->
         .collect();
     Some(Segment {
         line: rs.line,
-        object_name: get("OBJECT_NAME").value,
-        object_id: get("OBJECT_ID").value,
+        object_name: safe_name(sink, get("OBJECT_NAME")),
+        object_id: safe_name(sink, get("OBJECT_ID")),
         ref_frame: frame,
         ref_frame_text: frame_kv.value,
         interpolation,
@@ -552,6 +552,26 @@ fn build_segment(rs: RawSegment, sink: &mut Sink<'_>, eop: &EarthOrientation) ->
         states,
         covariances,
     })
+}
+
+/// A name with line breaks, NUL or terminal escapes replaced by `?`, with a
+/// warning naming the line and keyword (names reach terminals and files).
+fn safe_name(sink: &mut Sink<'_>, kv: Kv) -> String {
+    match crate::text::first_unsafe_char(&kv.value) {
+        None => kv.value,
+        Some(c) => {
+            sink.push(
+                crate::elements::Severity::Warning,
+                kv.line,
+                &kv.key,
+                format!(
+                    "holds {}; such characters are replaced by '?'",
+                    crate::text::describe_char(c)
+                ),
+            );
+            crate::text::clean(&kv.value, false).into_owned()
+        }
+    }
 }
 
 fn covariance(

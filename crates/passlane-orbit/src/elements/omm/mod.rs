@@ -143,8 +143,8 @@ impl<'f> Record<'f> {
                 .into_iter()
                 .map(|k| (k, field(k, false)))
                 .collect();
-        let name = field("OBJECT_NAME", false).map(|(v, _)| v.to_string());
-        let object_id = field("OBJECT_ID", false).map(|(v, _)| v.to_string());
+        let name = field("OBJECT_NAME", false).map(|(v, l)| (v.to_string(), l));
+        let object_id = field("OBJECT_ID", false).map(|(v, l)| (v.to_string(), l));
         let classification = field("CLASSIFICATION_TYPE", false);
         let time_system = field("TIME_SYSTEM", false);
         let ref_frame = field("REF_FRAME", false);
@@ -269,6 +269,28 @@ impl<'f> Record<'f> {
                 ));
         }
 
+        // Names go to terminals, tables and other files: a line break, NUL
+        // or escape sequence in one is replaced, and said so.
+        let mut safe = |key: &str, value: Option<(String, usize)>| {
+            value.map(|(v, l)| match crate::text::first_unsafe_char(&v) {
+                None => v,
+                Some(c) => {
+                    warnings.push(diag(
+                        file,
+                        Severity::Warning,
+                        l,
+                        key,
+                        format!(
+                            "holds {}; such characters are replaced by '?'",
+                            crate::text::describe_char(c)
+                        ),
+                    ));
+                    crate::text::clean(&v, false).into_owned()
+                }
+            })
+        };
+        let name = safe("OBJECT_NAME", name);
+        let object_id = safe("OBJECT_ID", object_id);
         if !errors.is_empty() {
             return Err(errors);
         }

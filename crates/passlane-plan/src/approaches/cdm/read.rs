@@ -67,12 +67,19 @@ pub(super) fn table_of(key: &str) -> Option<(Section, Spec)> {
 
 /// At most `MAX` characters of `text` for an error message, so that a
 /// hostile line (megabytes without `=`, a giant value) is quoted, not copied.
+/// Control characters and terminal escapes are shown as `?` (the message
+/// goes to a terminal).
 pub(super) fn excerpt(text: &str) -> String {
     const MAX: usize = 60;
-    match text.char_indices().nth(MAX) {
-        None => text.to_string(),
-        Some((cut, _)) => format!("{}…", &text[..cut]),
+    let cut = match text.char_indices().nth(MAX) {
+        None => text,
+        Some((cut, _)) => &text[..cut],
+    };
+    let mut s = passlane_orbit::text::clean(cut, false).into_owned();
+    if cut.len() < text.len() {
+        s.push('…');
     }
+    s
 }
 
 pub(super) struct Ctx<'a> {
@@ -215,6 +222,24 @@ impl Fields<'_> {
     pub(super) fn check_all(&self) -> Result<(), CdmError> {
         let table = self.kind.table();
         let mut last: Option<(usize, &str)> = None;
+        // Comments are written back into other messages: a line break in one
+        // would forge a keyword line there.
+        if let Some(c) = self
+            .section
+            .comments
+            .iter()
+            .find_map(|t| passlane_orbit::text::first_unsafe_char(t))
+        {
+            return Err(self.ctx.err(
+                self.section.first_line,
+                "COMMENT",
+                format!(
+                    "a comment of the {} holds {}: comments may not carry line breaks, NUL or terminal escapes",
+                    self.what,
+                    passlane_orbit::text::describe_char(c)
+                ),
+            ));
+        }
         for kv in &self.section.items {
             let Some(pos) = table.iter().position(|s| s.key == kv.key) else {
                 return Err(self.ctx.err(
@@ -247,6 +272,17 @@ impl Fields<'_> {
                 }
                 Kind::Text => {
                     self.ctx.check_unit(kv, &s)?;
+                    // Names and identifiers reach terminals and other files.
+                    if let Some(c) = passlane_orbit::text::first_unsafe_char(&kv.value) {
+                        return Err(self.ctx.err(
+                            kv.line,
+                            &kv.key,
+                            format!(
+                                "the value holds {}: text values may not carry line breaks, NUL or terminal escapes",
+                                passlane_orbit::text::describe_char(c)
+                            ),
+                        ));
+                    }
                     if let Some((_, allowed)) = ENUMERATED.iter().find(|(k, _)| *k == kv.key) {
                         let v = normalise_text(&kv.value);
                         if !allowed.contains(&v.as_str()) {
