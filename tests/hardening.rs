@@ -621,3 +621,40 @@ fn clashing_and_very_long_names_give_every_file_and_the_count_on_disk() {
     );
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+#[test]
+fn text_from_files_reaches_the_terminal_without_escape_sequences() {
+    // Issue 12, items 11 and 12: an OMM name and a CDM line carrying
+    // terminal escapes; nothing the CLI prints may contain them.
+    let dir = scratch("escapes");
+    let omm = "CCSDS_OMM_VERS = 2.0\nCREATION_DATE = 2026-12-01T00:00:00\nORIGINATOR = TEST\n\
+OBJECT_NAME = EVIL\u{1b}]0;owned\u{7}\u{1b}[2J\nOBJECT_ID = 2026-901A\nCENTER_NAME = EARTH\n\
+REF_FRAME = TEME\nTIME_SYSTEM = UTC\nMEAN_ELEMENT_THEORY = SGP4\nEPOCH = 2026-12-01T05:07:30.000288\n\
+MEAN_MOTION = 15.20279803\nECCENTRICITY = 0.0010170\nINCLINATION = 97.4021\nRA_OF_ASC_NODE = 45.1200\n\
+ARG_OF_PERICENTER = 88.1000\nMEAN_ANOMALY = 272.0000\nNORAD_CAT_ID = 90001\nBSTAR = 0.00021\n";
+    std::fs::write(dir.join("evil.kvn"), omm).unwrap();
+    std::fs::write(
+        dir.join("evil.cdm"),
+        "CCSDS_CDM_VERS = 1.0\n\u{1b}[31mRED\u{1b}[0m = 1\n",
+    )
+    .unwrap();
+    let out = passlane(&["elements", &dir.join("evil.kvn").display().to_string()]);
+    assert!(out.status.success(), "{out:?}");
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(stdout.contains("EVIL?"), "{stdout}");
+    assert!(
+        stderr.contains("OBJECT_NAME") && stderr.contains("U+001B"),
+        "{stderr}"
+    );
+    let out = passlane(&["cdm", &dir.join("evil.cdm").display().to_string()]);
+    assert!(!out.status.success());
+    for text in [&out.stdout, &out.stderr] {
+        let text = String::from_utf8_lossy(text);
+        assert!(
+            !text.contains('\u{1b}') && !text.contains('\u{7}'),
+            "{text:?}"
+        );
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}

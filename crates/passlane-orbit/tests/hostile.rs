@@ -463,9 +463,27 @@ fn times_outside_1957_to_2100_and_leap_seconds_are_refused_in_words() {
 #[test]
 fn control_characters_in_omm_and_oem_names_are_replaced_and_named() {
     for (format, text, value_line) in [
-        ("kvn", kvn(&pairs_with("OBJECT_NAME", "EVIL\u{1b}[2J\u{1b}]0;owned\u{7}")), 4),
-        ("xml", xml(&pairs_with("OBJECT_NAME", "EVIL&#10;COLLISION_PROBABILITY = 0&#155;")), 7),
-        ("json", json(&pairs_with("OBJECT_NAME", "EVIL\\nX\\u0000\\u001b[31m"), ""), 1),
+        (
+            "kvn",
+            kvn(&pairs_with(
+                "OBJECT_NAME",
+                "EVIL\u{1b}[2J\u{1b}]0;owned\u{7}",
+            )),
+            4,
+        ),
+        (
+            "xml",
+            xml(&pairs_with(
+                "OBJECT_NAME",
+                "EVIL&#10;COLLISION_PROBABILITY = 0&#155;",
+            )),
+            7,
+        ),
+        (
+            "json",
+            json(&pairs_with("OBJECT_NAME", "EVIL\\nX\\u0000\\u001b[31m"), ""),
+            1,
+        ),
     ] {
         let r = load(text.as_bytes(), format, STRICT);
         assert_eq!(r.sets.len(), 1, "{format}: {:?}", r.diagnostics);
@@ -488,7 +506,8 @@ fn control_characters_in_omm_and_oem_names_are_replaced_and_named() {
     let eph = eph.unwrap();
     assert_eq!(eph.segments[0].object_name, "X?[31mRED?");
     assert!(
-        d.iter().any(|x| x.line == 5 && x.field == "OBJECT_NAME" && x.message.contains("U+001B")),
+        d.iter()
+            .any(|x| x.line == 5 && x.field == "OBJECT_NAME" && x.message.contains("U+001B")),
         "{d:?}"
     );
 }

@@ -427,20 +427,18 @@ fn scenario_physical_quantities_out_of_range_are_refused_with_their_path() {
 /// error message repeats an escape sequence from the file.
 #[test]
 fn cdm_and_scenario_names_with_control_characters_are_refused_in_words() {
-    let line_of = |key: &str| {
-        GOOD_CDM
-            .lines()
-            .position(|l| l.starts_with(key))
-            .unwrap()
-            + 1
-    };
+    let line_of = |key: &str| GOOD_CDM.lines().position(|l| l.starts_with(key)).unwrap() + 1;
     let name_line = GOOD_CDM
         .lines()
         .find(|l| l.starts_with("OBJECT_NAME"))
         .unwrap();
     let evil = GOOD_CDM.replacen(name_line, "OBJECT_NAME = EVIL\u{1b}[2J", 1);
     let e = Cdm::parse(&evil, "evil.kvn").unwrap_err();
-    assert_eq!((e.keyword.as_str(), e.line), ("OBJECT_NAME", line_of("OBJECT_NAME")), "{e}");
+    assert_eq!(
+        (e.keyword.as_str(), e.line),
+        ("OBJECT_NAME", line_of("OBJECT_NAME")),
+        "{e}"
+    );
     assert!(e.to_string().contains("U+001B"), "{e}");
     assert!(!e.to_string().contains('\u{1b}'), "{e:?}");
     // A keyword made of an escape sequence: quoted without it.
@@ -448,7 +446,11 @@ fn cdm_and_scenario_names_with_control_characters_are_refused_in_words() {
     let e = Cdm::parse(&evil, "evil.kvn").unwrap_err().to_string();
     assert!(!e.chars().any(char::is_control), "{e:?}");
     // A comment with a NUL.
-    let evil = GOOD_CDM.replacen(name_line, &format!("COMMENT bad\u{0}comment\n{name_line}"), 1);
+    let evil = GOOD_CDM.replacen(
+        name_line,
+        &format!("COMMENT bad\u{0}comment\n{name_line}"),
+        1,
+    );
     let e = Cdm::parse(&evil, "evil.kvn").unwrap_err();
     assert_eq!(e.keyword, "COMMENT", "{e}");
 
@@ -457,8 +459,14 @@ fn cdm_and_scenario_names_with_control_characters_are_refused_in_words() {
     for (pointer, path) in [
         ("/operator", "operator"),
         ("/stations/1/name", "stations[1].name"),
-        ("/stations/2/antennas/0/name", "stations[2].antennas[0].name"),
-        ("/stations/0/channels/1/name", "stations[0].channels[1].name"),
+        (
+            "/stations/2/antennas/0/name",
+            "stations[2].antennas[0].name",
+        ),
+        (
+            "/stations/0/channels/1/name",
+            "stations[0].channels[1].name",
+        ),
         ("/element_files/0", "element_files[0]"),
     ] {
         let mut edited = demo.clone();
