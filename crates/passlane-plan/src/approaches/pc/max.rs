@@ -16,6 +16,26 @@ pub struct PcMax {
     pub sigma_y_m: f64,
 }
 
+/// The two cases both maximisers answer without a search: no hard body
+/// (Pc 0 at any size) and a miss inside the hard-body disk (Pc tends to 1 as
+/// the covariance shrinks; returned with `sigma_scale` 0).
+fn edge_case(e: &Encounter2d) -> Option<PcMax> {
+    if e.hard_body_radius_m == 0.0 {
+        return Some(PcMax {
+            pc_max: 0.0,
+            sigma_scale: 1.0,
+            sigma_x_m: e.sigma_x_m,
+            sigma_y_m: e.sigma_y_m,
+        });
+    }
+    (e.miss_m() < e.hard_body_radius_m).then_some(PcMax {
+        pc_max: 1.0,
+        sigma_scale: 0.0,
+        sigma_x_m: 0.0,
+        sigma_y_m: 0.0,
+    })
+}
+
 /// Maximum probability over an unknown covariance size with the shape (axis
 /// directions and aspect ratio σy/σx) fixed by the caller: max over k > 0 of
 /// Pc with sigmas (kσx, kσy), Pc by the fast method [`pc`].
@@ -34,25 +54,12 @@ pub struct PcMax {
 /// If the miss is inside the hard-body disk the probability tends to 1 as the
 /// covariance shrinks; that supremum is returned with `sigma_scale` 0.
 pub fn pc_max(e: &Encounter2d) -> PcMax {
+    if let Some(edge) = edge_case(e) {
+        return edge;
+    }
     let r_m = e.hard_body_radius_m;
     let (sx, sy) = (e.sigma_x_m, e.sigma_y_m);
     let d_m = e.miss_m();
-    if r_m == 0.0 {
-        return PcMax {
-            pc_max: 0.0,
-            sigma_scale: 1.0,
-            sigma_x_m: sx,
-            sigma_y_m: sy,
-        };
-    }
-    if d_m < r_m {
-        return PcMax {
-            pc_max: 1.0,
-            sigma_scale: 0.0,
-            sigma_x_m: 0.0,
-            sigma_y_m: 0.0,
-        };
-    }
     let at_scale = |k: f64| e.with_sigma_scale(k).map(|s| pc(&s)).unwrap_or(0.0);
     if sx == sy && d_m > r_m {
         let k = isotropic_max_sigma_m(d_m, r_m) / sx;
@@ -169,25 +176,11 @@ fn bessel_i1_over_i0(x: f64) -> f64 {
 /// If the miss is inside the hard-body disk the probability tends to 1 as the
 /// covariance shrinks; that supremum is returned with `sigma_scale` 0.
 pub fn pc_max_scan(e: &Encounter2d) -> PcMax {
+    if let Some(edge) = edge_case(e) {
+        return edge;
+    }
     let r_m = e.hard_body_radius_m;
     let (sx, sy) = (e.sigma_x_m, e.sigma_y_m);
-    let d_m = e.miss_m();
-    if r_m == 0.0 {
-        return PcMax {
-            pc_max: 0.0,
-            sigma_scale: 1.0,
-            sigma_x_m: sx,
-            sigma_y_m: sy,
-        };
-    }
-    if d_m < r_m {
-        return PcMax {
-            pc_max: 1.0,
-            sigma_scale: 0.0,
-            sigma_x_m: 0.0,
-            sigma_y_m: 0.0,
-        };
-    }
     let pc_at = |ln_k: f64| -> f64 {
         e.with_sigma_scale(ln_k.exp())
             .map(|s| pc_foster(&s))
