@@ -9,8 +9,8 @@ use passlane_orbit::numerical::Drag;
 use passlane_orbit::{ElementSet, Propagator, StateTeme, UtcTime};
 use passlane_plan::avoid::{
     Burn, BurnEffect, Conjunction, ConsequenceRequest, ContactShift, CovarianceModel,
-    EncounterFigures, FromState, Manoeuvred, Motion, NewEvent, Trade, TradeRequest, burn_effect,
-    consequences, manoeuvred_entry, trade,
+    EncounterFigures, FromState, Motion, NewEvent, Trade, TradeRequest, burn_consequences,
+    burn_effect, trade,
 };
 use passlane_plan::cdm::Cdm;
 use passlane_plan::conjunction::{AssumedCovariance, hard_body_radius_m};
@@ -117,14 +117,8 @@ fn from_cdm(args: &AvoidArgs, path: &Path) -> Result<Setup> {
         bail!("--cdm gives the objects and the TCA: leave out --primary, --secondary and --tca");
     }
     let file = path.display().to_string();
-    let bytes = passlane_files::read_limited(path, 16 * 1024 * 1024)
+    let text = passlane_files::read_text_limited(path, passlane_plan::cdm::MAX_MESSAGE_BYTES)
         .with_context(|| format!("cannot read {file}"))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        anyhow::anyhow!(
-            "{file}: not UTF-8 text (byte {})",
-            e.utf8_error().valid_up_to()
-        )
-    })?;
     let cdm = Cdm::parse(&text, &file)?;
     let tca = cdm.relative.tca;
     // The numerical propagation needs an inertial frame; an Earth-fixed state
@@ -354,13 +348,8 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
     let horizon = burn.time.add_s(args.horizon_days * 86_400.0);
     let contacts_until = burn.time.add_s(args.contact_hours * 3_600.0).min(horizon);
     let consequences_of = |ps: &ElementSet| -> Result<(Vec<NewEvent>, Vec<ContactShift>)> {
-        let prop = Propagator::new(ps)?;
-        let moved = Manoeuvred::new(&prop, burn, conj.primary_drag, horizon)
-            .map_err(|err| anyhow::anyhow!("--horizon-days: {err}"))?;
-        let entry = manoeuvred_entry(ps, &moved, burn.time, horizon)
-            .map_err(|err| anyhow::anyhow!("--horizon-days: {err}"))?;
         let bar = Bar::new("new close approaches", args.quiet.quiet);
-        let out = consequences(
+        let out = burn_consequences(
             &ConsequenceRequest {
                 primary: ps,
                 others: &setup.others,
@@ -374,11 +363,12 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
                 stations: &setup.scenario.stations,
                 contacts_until,
             },
-            &entry,
+            burn,
+            conj.primary_drag,
             &bar,
         );
         bar.finish();
-        Ok(out)
+        out.map_err(|err| anyhow::anyhow!("--horizon-days: {err}"))
     };
     if !(args.horizon_days.is_finite() && args.horizon_days > 0.0 && args.horizon_days <= 30.0) {
         bail!("--horizon-days must be above 0 and at most 30");

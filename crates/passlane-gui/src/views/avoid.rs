@@ -15,8 +15,7 @@ use passlane_orbit::{ElementSet, OrbitSummary, Propagator, UtcTime};
 use passlane_plan::Progress;
 use passlane_plan::avoid::{
     Burn, BurnEffect, Conjunction, ConsequenceRequest, ContactShift, CovarianceModel,
-    EncounterFigures, Manoeuvred, NewEvent, Trade, TradeRequest, burn_effect, consequences,
-    manoeuvred_entry, trade,
+    EncounterFigures, NewEvent, Trade, TradeRequest, burn_consequences, burn_effect, trade,
 };
 use passlane_plan::conjunction::AssumedCovariance;
 use passlane_plan::screen::ScreeningVolume;
@@ -347,18 +346,8 @@ fn consequences_of(
     tca: UtcTime,
     progress: &dyn Progress,
 ) -> Answer<Consequences> {
-    let prop = Propagator::new(&inputs.primary).map_err(|e| e.to_string())?;
     let horizon = burn.time.add_s(HORIZON_DAYS * 86_400.0);
-    let moved = Manoeuvred::new(
-        &prop,
-        burn,
-        Drag::from_bstar(inputs.primary.bstar_per_earth_radii),
-        horizon,
-    )
-    .map_err(|e| e.to_string())?;
-    let entry =
-        manoeuvred_entry(&inputs.primary, &moved, burn.time, horizon).map_err(|e| e.to_string())?;
-    Ok(consequences(
+    burn_consequences(
         &ConsequenceRequest {
             primary: &inputs.primary,
             others: &inputs.others,
@@ -372,9 +361,11 @@ fn consequences_of(
             stations: &inputs.scenario.stations,
             contacts_until: burn.time.add_s(CONTACT_HOURS * 3_600.0),
         },
-        &entry,
+        burn,
+        Drag::from_bstar(inputs.primary.bstar_per_earth_radii),
         progress,
-    ))
+    )
+    .map_err(|e| e.to_string())
 }
 
 fn consequences_ui(ui: &mut Ui, events: &[NewEvent], shifts: &[ContactShift]) {

@@ -14,10 +14,11 @@ use passlane_orbit::elements::SourceRef;
 use passlane_orbit::ephemeris::{
     Ephemeris, EphemerisInput, Interpolation, OemFormat, Segment, SourceFrame, attach_to_fleet,
 };
-use passlane_orbit::{ElementSet, UtcTime};
+use passlane_orbit::numerical::Drag;
+use passlane_orbit::{ElementSet, Propagator, UtcTime};
 use serde::Serialize;
 
-use super::motion::{Manoeuvred, Motion, MotionError};
+use super::motion::{Burn, Manoeuvred, Motion, MotionError};
 use crate::conjunction::EventRisk;
 use crate::job::{ScreeningJob, screen_and_assess};
 use crate::passes::{Pass, PassOptions, find_passes};
@@ -174,6 +175,22 @@ pub struct ConsequenceRequest<'a> {
     pub stations: &'a [Station],
     /// Contacts compared up to this time.
     pub contacts_until: UtcTime,
+}
+
+/// What else a burn changes, as the shells ask it: the manoeuvred trajectory
+/// (the primary's own motion plus the burn's numerical effect, with the
+/// spacecraft's `drag`) from the burn to `req.to`, sampled as an ephemeris
+/// entry ([`manoeuvred_entry`]), then [`consequences`].
+pub fn burn_consequences(
+    req: &ConsequenceRequest<'_>,
+    burn: Burn,
+    drag: Option<Drag>,
+    progress: &dyn Progress,
+) -> Result<(Vec<NewEvent>, Vec<ContactShift>), MotionError> {
+    let prop = Propagator::new(req.primary).map_err(MotionError::Propagation)?;
+    let moved = Manoeuvred::new(&prop, burn, drag, req.to)?;
+    let entry = manoeuvred_entry(req.primary, &moved, burn.time, req.to)?;
+    Ok(consequences(req, &entry, progress))
 }
 
 /// Close approaches the burn creates or worsens, and the shifts of the

@@ -49,7 +49,8 @@ use crate::numeric::brent_root;
 use crate::pc::{pc, pc_max};
 
 pub use consequences::{
-    ConsequenceRequest, ContactShift, NewEvent, consequences, manoeuvred_entry, motion_entry,
+    ConsequenceRequest, ContactShift, NewEvent, burn_consequences, consequences, manoeuvred_entry,
+    motion_entry,
 };
 pub use motion::{Burn, FromState, Manoeuvred, Motion, MotionError};
 
