@@ -6,7 +6,7 @@
 use std::io::Write;
 
 use anyhow::{Context, Result, bail};
-use passlane_plan::cdm::{Cdm, trend_groups};
+use passlane_plan::cdm::{Cdm, MAX_MESSAGE_BYTES, trend_groups};
 
 use super::args::CdmArgs;
 use super::common::{self, Format};
@@ -21,16 +21,8 @@ fn read_all(args: &CdmArgs) -> Result<Vec<(String, Cdm)>> {
     let mut failed = 0;
     for path in &args.files {
         let file = path.display().to_string();
-        let text = passlane_files::read_limited(path, 16 * 1024 * 1024)
-            .with_context(|| format!("cannot read {file}"))
-            .and_then(|bytes| {
-                String::from_utf8(bytes).map_err(|e| {
-                    anyhow::anyhow!(
-                        "{file}: not UTF-8 text (byte {})",
-                        e.utf8_error().valid_up_to()
-                    )
-                })
-            });
+        let text = passlane_files::read_text_limited(path, MAX_MESSAGE_BYTES)
+            .with_context(|| format!("cannot read {file}"));
         match text.and_then(|t| Ok(Cdm::parse(&t, &file)?)) {
             Ok(cdm) => messages.push((file, cdm)),
             Err(e) => {

@@ -105,15 +105,8 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     // A save of this scenario that was interrupted (crash, power loss) leaves
     // a temporary beside it; the scenario itself is intact, so clear them.
     passlane_files::remove_stale_temporaries(path);
-    let bytes = passlane_files::read_limited(path, 64 * 1024 * 1024)
+    let text = passlane_files::read_text_limited(path, 64 * 1024 * 1024)
         .with_context(|| format!("cannot read scenario {}", path.display()))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        anyhow::anyhow!(
-            "{}: not UTF-8 text (byte {})",
-            path.display(),
-            e.utf8_error().valid_up_to()
-        )
-    })?;
     Ok(Scenario::from_json(&text, &path.display().to_string())?)
 }
 

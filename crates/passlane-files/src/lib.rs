@@ -73,6 +73,22 @@ pub fn write_atomic_with(
     result
 }
 
+/// Reads a whole text file (UTF-8), refusing files larger than
+/// `limit_bytes`; text that is not UTF-8 is an `InvalidData` error naming the
+/// file and the byte where it stops being UTF-8.
+pub fn read_text_limited(path: &Path, limit_bytes: u64) -> io::Result<String> {
+    String::from_utf8(read_limited(path, limit_bytes)?).map_err(|e| {
+        io::Error::new(
+            io::ErrorKind::InvalidData,
+            format!(
+                "{}: not UTF-8 text (byte {})",
+                path.display(),
+                e.utf8_error().valid_up_to()
+            ),
+        )
+    })
+}
+
 /// Reads a whole file, refusing files larger than `limit_bytes`.
 pub fn read_limited(path: &Path, limit_bytes: u64) -> io::Result<Vec<u8>> {
     let file = fs::File::open(path)?;

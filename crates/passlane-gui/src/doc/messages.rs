@@ -3,10 +3,7 @@
 
 use std::path::{Path, PathBuf};
 
-use passlane_plan::cdm::Cdm;
-
-/// Largest message file read, bytes (the command line's limit).
-const MAX_CDM_BYTES: u64 = 16 * 1024 * 1024;
+use passlane_plan::cdm::{Cdm, MAX_MESSAGE_BYTES};
 
 /// Extensions taken when a folder is named: KVN and XML messages.
 const MESSAGE_EXTENSIONS: [&str; 4] = ["cdm", "kvn", "xml", "txt"];
@@ -41,14 +38,8 @@ pub fn message_files(path: &Path) -> Result<Vec<PathBuf>, String> {
 /// and reason as the reader gives them.
 pub fn read_message(path: &Path) -> Result<(String, Cdm), String> {
     let file = path.display().to_string();
-    let bytes = passlane_files::read_limited(path, MAX_CDM_BYTES)
+    let text = passlane_files::read_text_limited(path, MAX_MESSAGE_BYTES)
         .map_err(|e| format!("{file}: cannot read: {e}"))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
-        format!(
-            "{file}: not UTF-8 text (byte {})",
-            e.utf8_error().valid_up_to()
-        )
-    })?;
     let cdm = Cdm::parse(&text, &file).map_err(|e| e.to_string())?;
     Ok((file, cdm))
 }

@@ -142,9 +142,9 @@ impl Document {
         // A save interrupted by a crash or power loss may have left its
         // temporary beside the file; the file itself is intact (atomic rename).
         passlane_files::remove_stale_temporaries(path);
-        let bytes = passlane_files::read_limited(path, MAX_SCENARIO_BYTES)
-            .map_err(|e| anyhow::anyhow!("{}: {e}", path.display()))?;
-        let text = String::from_utf8_lossy(&bytes);
+        // Refused, not repaired, when it is not UTF-8 (as on the command line).
+        let text = passlane_files::read_text_limited(path, MAX_SCENARIO_BYTES)
+            .map_err(|e| anyhow::anyhow!("cannot read scenario {}: {e}", path.display()))?;
         let scenario = Scenario::from_json(&text, &path.display().to_string())?;
         let mut doc = Document {
             scenario,

@@ -276,6 +276,10 @@ impl Cdm {
     }
 }
 
+/// Largest conjunction message the shells read, bytes (a CDM is a few KB;
+/// this only stops a wrong path to a huge file).
+pub const MAX_MESSAGE_BYTES: u64 = 16 * 1024 * 1024;
+
 /// Combined hard-body radius when neither the command line nor the message
 /// gives one, m (this tool's default; no standard fixes one).
 pub const DEFAULT_HARD_BODY_RADIUS_M: f64 = 10.0;
