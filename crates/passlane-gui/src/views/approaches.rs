@@ -355,7 +355,12 @@ impl ApproachesView {
         let wide = ui.available_width() >= 900.0;
         let draw_range = |ui: &mut egui::Ui, w: f32, axes: &(AxisTicks, AxisTicks)| {
             axes::readable(
-                Plot::new("approach-range").height(height).width(w),
+                Plot::new("approach-range")
+                    .height(height)
+                    .width(w)
+                    // The wheel scrolls the page, not the plot into negative ranges
+                    // (zoom stays on Ctrl + wheel).
+                    .allow_scroll(false),
                 "minutes from TCA",
                 "range (km)",
                 &axes.0,
