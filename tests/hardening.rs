@@ -3,47 +3,13 @@
 
 #![allow(clippy::unwrap_used, clippy::panic)]
 
-use std::path::{Path, PathBuf};
+mod support;
+
+use std::path::Path;
 use std::process::{Command, Output, Stdio};
 use std::time::{Duration, Instant};
 
-fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("passlane-hardening-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn passlane(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_passlane"))
-        .args(args)
-        .stdin(Stdio::null())
-        .output()
-        .unwrap()
-}
-
-/// Runs the CLI on a hostile file: it must fail or warn, in words, without a
-/// panic and within a few seconds.
-fn refuses(args: &[&str]) -> String {
-    let started = Instant::now();
-    let out = passlane(args);
-    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
-    assert!(
-        !stderr.contains("panicked at"),
-        "passlane {args:?} panicked: {stderr}"
-    );
-    assert!(
-        !out.status.success() || !stderr.is_empty(),
-        "passlane {args:?}: no diagnostics"
-    );
-    assert!(!stderr.trim().is_empty(), "passlane {args:?}: silent");
-    assert!(
-        started.elapsed() < Duration::from_secs(60),
-        "passlane {args:?} took {:?}",
-        started.elapsed()
-    );
-    stderr
-}
+use support::{demo, demo_scenario_in, passlane, refuses, scratch};
 
 #[test]
 fn the_cli_refuses_hostile_files_in_words() {
@@ -350,15 +316,6 @@ fn steps_below_a_millisecond_or_tables_over_the_row_cap_are_refused_naming_the_f
     std::fs::remove_dir_all(&dir).unwrap();
 }
 
-/// The repository's demo scenario (relative to the workspace root).
-fn demo(file: &str) -> String {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("scenarios")
-        .join(file)
-        .display()
-        .to_string()
-}
-
 #[test]
 fn the_cli_refuses_years_outside_1957_to_2100_and_leap_seconds() {
     // Issue 12, item 4: `--start -2026-...` was read as the year -2026 and ran
@@ -400,29 +357,6 @@ fn the_cli_refuses_years_outside_1957_to_2100_and_leap_seconds() {
     ]);
     assert!(stderr.contains("year 2226"), "{stderr}");
     std::fs::remove_dir_all(&dir).unwrap();
-}
-
-/// The demo scenario with its element files named by absolute path, saved
-/// in `dir`, after `edit`.
-fn demo_scenario_in(dir: &Path, edit: impl FnOnce(&mut serde_json::Value)) -> String {
-    let repo = PathBuf::from(env!("CARGO_MANIFEST_DIR"));
-    let mut v: serde_json::Value =
-        serde_json::from_str(&std::fs::read_to_string(repo.join("scenarios/demo.json")).unwrap())
-            .unwrap();
-    for key in ["element_files", "catalog_files"] {
-        for f in v[key].as_array_mut().unwrap() {
-            *f = repo
-                .join("scenarios")
-                .join(f.as_str().unwrap())
-                .display()
-                .to_string()
-                .into();
-        }
-    }
-    edit(&mut v);
-    let path = dir.join("scenario.json");
-    std::fs::write(&path, serde_json::to_string_pretty(&v).unwrap()).unwrap();
-    path.display().to_string()
 }
 
 /// Files under `dir` (relative paths), links and hidden entries included.

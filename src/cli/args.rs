@@ -178,6 +178,9 @@ pub struct WindowArgs {
     /// Window end, ISO 8601 UTC, after the start [default: the scenario's window.end]
     #[arg(long, value_name = "ISO", value_parser = utc_time, help_heading = "Window", allow_hyphen_values = true)]
     pub end: Option<UtcTime>,
+    /// Compute even with element sets more than 30 days from the window (refused otherwise: their results are confident and wrong)
+    #[arg(long, help_heading = "Window")]
+    pub allow_stale: bool,
 }
 
 #[derive(Debug, Args)]
@@ -338,6 +341,9 @@ pub struct TrackArgs {
     /// A time in the pass, or up to 30 minutes before its AOS, ISO 8601 UTC [required]
     #[arg(long, value_name = "ISO", value_parser = utc_time, help_heading = "Pass", allow_hyphen_values = true)]
     pub pass_start: UtcTime,
+    /// Compute even with element sets more than 30 days from the pass (refused otherwise: their results are confident and wrong)
+    #[arg(long, help_heading = "Pass")]
+    pub allow_stale: bool,
     /// Lowest elevation of a contact, degrees, -5 to 90 [default: the station's min_elevation_deg]
     #[arg(long, value_name = "DEG", value_parser = finite_f64, help_heading = "Pass", allow_hyphen_values = true)]
     pub min_elevation: Option<f64>,
@@ -462,6 +468,9 @@ pub struct AvoidArgs {
     /// Time of the burn, ISO 8601 UTC, before the TCA
     #[arg(long, value_name = "ISO", value_parser = utc_time, help_heading = "Burn", allow_hyphen_values = true)]
     pub burn_time: Option<UtcTime>,
+    /// Compute even with element sets more than 30 days from the TCA (refused otherwise: their results are confident and wrong)
+    #[arg(long, help_heading = "Encounter")]
+    pub allow_stale: bool,
     /// Velocity change radial, in-track, cross-track in the primary's frame at the burn, m/s
     #[arg(
         long,

@@ -190,6 +190,7 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
         start: None,
         end: None,
         lenient: args.fleet.lenient,
+        allow_stale: args.allow_stale,
         ut1_utc_s: None,
     };
     let inputs = common::gather(&sources, false)?;
@@ -220,6 +221,13 @@ fn from_elements(args: &AvoidArgs) -> Result<Setup> {
             })
     };
     let (ps, ss) = (find(p, "--primary")?, find(s, "--secondary")?);
+    common::check_element_age(
+        &[ps.clone(), ss.clone()],
+        tca,
+        tca,
+        args.allow_stale,
+        "the TCA",
+    )?;
     // SGP4 running backwards far from epoch is a guess; common practice is a
     // few days to a couple of weeks of trust either side of the epoch.
     const MAX_BACKWARDS_DAYS: f64 = 14.0;

@@ -131,6 +131,9 @@ pub struct Sources<'a> {
     pub start: Option<UtcTime>,
     pub end: Option<UtcTime>,
     pub lenient: bool,
+    /// `--allow-stale`: compute even with element sets beyond
+    /// [`passlane_orbit::REFUSE_AFTER_DAYS`] from the window.
+    pub allow_stale: bool,
     /// `--ut1-utc-s`, where the command has it: also used to turn an
     /// Earth-fixed (ITRF) ephemeris into TEME at load.
     pub ut1_utc_s: Option<f64>,
@@ -147,6 +150,7 @@ impl<'a> Sources<'a> {
             start: window.and_then(|w| w.start),
             end: window.and_then(|w| w.end),
             lenient: fleet.lenient,
+            allow_stale: window.is_some_and(|w| w.allow_stale),
             ut1_utc_s: None,
         }
     }
@@ -171,6 +175,7 @@ pub struct Inputs {
     pub stations: Vec<Station>,
     pub start: Option<UtcTime>,
     pub end: Option<UtcTime>,
+    pub allow_stale: bool,
 }
 
 pub fn gather(sources: &Sources, need_stations: bool) -> Result<Inputs> {
@@ -274,6 +279,7 @@ pub fn gather(sources: &Sources, need_stations: bool) -> Result<Inputs> {
         stations,
         start,
         end,
+        allow_stale: sources.allow_stale,
     })
 }
 
@@ -284,7 +290,67 @@ pub fn window(inputs: &Inputs) -> Result<(UtcTime, UtcTime)> {
     if end <= start {
         bail!("--end {end} is not after --start {start}");
     }
+    check_element_age(&inputs.sets, start, end, inputs.allow_stale, "the window")?;
     Ok((start, end))
+}
+
+/// Warns on stderr about element sets more than
+/// [`passlane_orbit::STALE_AFTER_DAYS`] from `[start, end]`, and refuses
+/// (unless `allow_stale`) when any is more than
+/// [`passlane_orbit::REFUSE_AFTER_DAYS`] away: an old set gives confident,
+/// wrong answers. `what` names the span in the messages ("the window").
+pub fn check_element_age(
+    sets: &[ElementSet],
+    start: UtcTime,
+    end: UtcTime,
+    allow_stale: bool,
+    what: &str,
+) -> Result<()> {
+    use passlane_orbit::{REFUSE_AFTER_DAYS, STALE_AFTER_DAYS};
+    let stale = passlane_orbit::stale_sets(sets, start, end);
+    let Some(&(_, worst)) = stale.first() else {
+        return Ok(());
+    };
+    const SHOWN: usize = 5;
+    let list = |v: &[(&ElementSet, f64)]| {
+        let mut t = v
+            .iter()
+            .take(SHOWN)
+            .map(|(s, d)| format!("{} ({}) {d:.1} d", s.name, s.catalog_number))
+            .collect::<Vec<_>>()
+            .join(", ");
+        if v.len() > SHOWN {
+            t.push_str(&format!(" and {} more", v.len() - SHOWN));
+        }
+        t
+    };
+    let too_old: Vec<(&ElementSet, f64)> = stale
+        .iter()
+        .copied()
+        .filter(|(_, d)| *d > REFUSE_AFTER_DAYS)
+        .collect();
+    if !too_old.is_empty() && !allow_stale {
+        bail!(
+            "{} element set(s) are more than {REFUSE_AFTER_DAYS:.0} days from {what} (up to {worst:.0} days): {}. \
+             Their passes and close approaches would look precise and be wrong; load newer element sets, \
+             or give --allow-stale to compute anyway",
+            too_old.len(),
+            list(&too_old)
+        );
+    }
+    say(format!(
+        "warning: {} element set(s) are more than {STALE_AFTER_DAYS:.0} days from {what} (up to {worst:.1} days): {}. \
+         Common practice: SGP4 element sets degrade by about 1-3 km a day in LEO, so times and distances \
+         that rest on them can be well off{}",
+        stale.len(),
+        list(&stale),
+        if worst > REFUSE_AFTER_DAYS {
+            " (computed anyway: --allow-stale)"
+        } else {
+            ""
+        }
+    ));
+    Ok(())
 }
 
 /// Picks one satellite by catalog number or (case-insensitive) name.

@@ -213,6 +213,13 @@ pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
         .with_ut1_utc_s(args.earth_orientation.ut1_utc_s);
     let inputs = common::gather(&sources, true)?;
     let sat = common::pick_satellite(&inputs.sets, &args.satellite)?;
+    common::check_element_age(
+        std::slice::from_ref(sat),
+        args.pass_start,
+        args.pass_start,
+        args.allow_stale,
+        "--pass-start",
+    )?;
     let station: &Station = if inputs.stations.len() == 1 {
         &inputs.stations[0]
     } else {

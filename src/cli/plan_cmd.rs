@@ -22,6 +22,7 @@ pub fn run(args: &PlanArgs, out: &mut dyn Write) -> Result<()> {
         start: args.window.start,
         end: args.window.end,
         lenient: args.lenient,
+        allow_stale: args.window.allow_stale,
         ut1_utc_s: None,
     };
     let inputs = common::gather(&sources, true)?;

@@ -86,6 +86,13 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
         Some(common::load_fleet(&catalog_paths, args.fleet.lenient)?)
     };
     let catalog = catalog.unwrap_or_default();
+    common::check_element_age(
+        &catalog,
+        start,
+        end,
+        args.window.allow_stale,
+        "the window (catalog)",
+    )?;
     let default_scenario = passlane_plan::Scenario::default();
     let assumptions = scenario.unwrap_or(&default_scenario);
     let bar = Bar::new("screening", args.quiet.quiet);

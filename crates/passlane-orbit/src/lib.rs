@@ -30,6 +30,9 @@ pub use propagate::{
     Cursor, GravityModel, PropagationError, Propagator, StateTeme, TimeGrid, propagate_grid,
     propagate_grid_with,
 };
-pub use summary::{OrbitSummary, element_age_days};
+pub use summary::{
+    OrbitSummary, REFUSE_AFTER_DAYS, STALE_AFTER_DAYS, days_outside_window, element_age_days,
+    result_element_age_days, stale_sets, window_element_age_days,
+};
 pub use sun::{Illumination, shadow, shadow_margins, shadow_state, sun_position_teme_km};
 pub use time::UtcTime;

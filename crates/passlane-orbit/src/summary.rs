@@ -71,3 +71,83 @@ impl OrbitSummary {
 pub fn element_age_days(set: &ElementSet, at: UtcTime) -> f64 {
     at.s_since(set.epoch) / 86_400.0
 }
+
+/// Element sets whose epoch is more than this many days from the window are
+/// flagged. Common practice: SGP4 element sets degrade by about 1–3 km a day
+/// in LEO, so three days away the along-track error is already several km
+/// (seconds on a contact's AOS, a whole screening volume on a miss distance).
+pub const STALE_AFTER_DAYS: f64 = 3.0;
+
+/// Beyond this many days from the window the command line refuses to compute
+/// unless told to (`--allow-stale`). The value is this project's choice, not
+/// a standard: at 1–3 km a day (common practice, above) a 30-day-old set is
+/// tens of km off and the error grows faster than linearly with drag, past any
+/// screening volume and any contact timing an operator could act on.
+pub const REFUSE_AFTER_DAYS: f64 = 30.0;
+
+/// Days from an epoch to the nearest instant of the window `[start, end]`
+/// (0 when the epoch is inside it).
+pub fn days_outside_window(epoch: UtcTime, start: UtcTime, end: UtcTime) -> f64 {
+    if epoch < start {
+        start.s_since(epoch) / 86_400.0
+    } else if epoch > end {
+        epoch.s_since(end) / 86_400.0
+    } else {
+        0.0
+    }
+}
+
+/// How far a fleet entry's element set is from the window, days; `None` when
+/// no instant of the window rests on the element set (an operator ephemeris
+/// covers the whole window, so its epoch does not matter).
+pub fn window_element_age_days(set: &ElementSet, start: UtcTime, end: UtcTime) -> Option<f64> {
+    if let Some(src) = &set.ephemeris {
+        let spans = src.ephemeris.spans();
+        if spans.iter().any(|s| s.start <= start && end <= s.stop) {
+            return None;
+        }
+    }
+    Some(days_outside_window(set.epoch, start, end))
+}
+
+/// Age of the element set behind a result that rests on `set` over
+/// `[start, end]`, taken at `at` (signed, days, as [`element_age_days`]);
+/// `None` when an operator ephemeris covers the whole span, so no element set
+/// is involved.
+pub fn result_element_age_days(
+    set: &ElementSet,
+    start: UtcTime,
+    end: UtcTime,
+    at: UtcTime,
+) -> Option<f64> {
+    window_element_age_days(set, start, end).map(|_| element_age_days(set, at))
+}
+
+/// The entries of `sets` whose element set is more than [`STALE_AFTER_DAYS`]
+/// from the window, with their distance in days, the farthest first.
+pub fn stale_sets(sets: &[ElementSet], start: UtcTime, end: UtcTime) -> Vec<(&ElementSet, f64)> {
+    let mut v: Vec<(&ElementSet, f64)> = sets
+        .iter()
+        .filter_map(|s| window_element_age_days(s, start, end).map(|d| (s, d)))
+        .filter(|(_, d)| *d > STALE_AFTER_DAYS)
+        .collect();
+    v.sort_by(|a, b| b.1.total_cmp(&a.1));
+    v
+}
+
+#[cfg(test)]
+mod age_tests {
+    use super::*;
+
+    #[test]
+    fn distance_to_the_window_is_zero_inside_and_counts_from_the_nearest_end() {
+        let start = UtcTime::parse_iso("2026-12-01T00:00:00Z").unwrap();
+        let end = UtcTime::parse_iso("2026-12-08T00:00:00Z").unwrap();
+        let inside = UtcTime::parse_iso("2026-12-03T00:00:00Z").unwrap();
+        let before = UtcTime::parse_iso("2026-11-21T00:00:00Z").unwrap();
+        let after = UtcTime::parse_iso("2026-12-10T12:00:00Z").unwrap();
+        assert_eq!(days_outside_window(inside, start, end), 0.0);
+        assert!((days_outside_window(before, start, end) - 10.0).abs() < 1e-9);
+        assert!((days_outside_window(after, start, end) - 2.5).abs() < 1e-9);
+    }
+}

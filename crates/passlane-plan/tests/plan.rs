@@ -132,6 +132,7 @@ fn build(spec: &Spec) -> Problem {
             los: start.add_s(off + d),
             max_elevation_deg: 30.0,
             volume_mb: d * 1e6 / 8e6,
+            element_age_days: Some(0.0),
         })
         .collect();
     let n = candidates.len();

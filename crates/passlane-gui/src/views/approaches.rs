@@ -29,8 +29,8 @@ use crate::palette;
 use crate::state::{AppState, time_label};
 use crate::views::avoid::{AvoidInputs, AvoidPanel};
 use crate::views::cdm_trend::CdmTrendView;
-use crate::views::fleet::STALE_AFTER_DAYS;
 use crate::widgets;
+use passlane_orbit::STALE_AFTER_DAYS;
 
 /// What "Pc max" is, where it is shown.
 pub const PC_MAX_EXPLAINED: &str = "Pc max: the largest collision probability over every size of the covariance (its shape kept). Element sets carry no covariance, so the Pc beside it rests on an assumed one; Pc max does not depend on that assumption's size, which makes it the honest upper figure here.";

@@ -10,7 +10,10 @@
 use std::path::PathBuf;
 
 use eframe::egui::{self, CollapsingHeader, Grid, Ui};
-use passlane_orbit::{OrbitSummary, Severity, UtcTime, element_age_days};
+use passlane_orbit::{
+    OrbitSummary, REFUSE_AFTER_DAYS, STALE_AFTER_DAYS, Severity, UtcTime, days_outside_window,
+    element_age_days,
+};
 use passlane_plan::scenario::SatelliteNeeds;
 
 use crate::palette;
@@ -224,57 +227,47 @@ fn diagnostics_ui(ui: &mut Ui, index: usize, f: &crate::doc::LoadedFile) {
         });
 }
 
-/// Element sets more than this many days from the window are flagged (common
-/// practice: SGP4 element sets degrade by about 1–3 km a day in LEO).
-pub const STALE_AFTER_DAYS: f64 = 3.0;
-
-/// Days from an element set's epoch to the nearest instant of the window
-/// (0 when the epoch is inside it).
-pub fn days_outside_window(epoch: UtcTime, start: UtcTime, end: UtcTime) -> f64 {
-    if epoch < start {
-        start.s_since(epoch) / 86_400.0
-    } else if epoch > end {
-        epoch.s_since(end) / 86_400.0
-    } else {
-        0.0
-    }
-}
-
 /// The fleet's element sets whose epoch is more than [`STALE_AFTER_DAYS`]
-/// from the window: (name, days).
+/// from the window (an entry whose operator ephemeris covers the window does
+/// not count): (name, days), the farthest first.
 pub fn stale_sets(state: &AppState) -> Vec<(String, f64)> {
     let (start, end) = state.doc.window();
-    state
-        .doc
-        .fleet
-        .iter()
-        .map(|s| (s.name.clone(), days_outside_window(s.epoch, start, end)))
-        .filter(|(_, d)| *d > STALE_AFTER_DAYS)
+    passlane_orbit::stale_sets(&state.doc.fleet, start, end)
+        .into_iter()
+        .map(|(s, d)| (s.name.clone(), d))
         .collect()
 }
 
-/// A badge where passes or a plan rest on stale element sets.
+/// A badge where passes or a plan rest on stale element sets; beyond
+/// [`REFUSE_AFTER_DAYS`] (where the command line refuses without
+/// `--allow-stale`) it says the results are not usable.
 pub fn stale_warning(ui: &mut Ui, state: &AppState) {
     let stale = stale_sets(state);
     if stale.is_empty() {
         return;
     }
     let worst = stale.iter().map(|(_, d)| *d).fold(0.0, f64::max);
-    ui.colored_label(
-        palette::VERMILLION,
+    let text = if worst > REFUSE_AFTER_DAYS {
+        format!(
+            "Stale elements: {} spacecraft have element sets up to {worst:.0} days from the window, \
+             beyond {REFUSE_AFTER_DAYS:.0} days: their passes and close approaches are not usable.",
+            stale.len()
+        )
+    } else {
         format!(
             "Stale elements: {} spacecraft have element sets up to {worst:.1} days from the window; their passes can be minutes off.",
             stale.len()
-        ),
-    )
-    .on_hover_text(format!(
-        "{}\nCommon practice: element sets degrade by about 1-3 km a day in LEO. Load newer ones in Fleet and stations.",
-        stale
-            .iter()
-            .map(|(n, d)| format!("{n}: {d:.1} days"))
-            .collect::<Vec<_>>()
-            .join("\n")
-    ));
+        )
+    };
+    ui.colored_label(palette::VERMILLION, text)
+        .on_hover_text(format!(
+            "{}\nCommon practice: element sets degrade by about 1-3 km a day in LEO. Load newer ones in Fleet and stations.",
+            stale
+                .iter()
+                .map(|(n, d)| format!("{n}: {d:.1} days"))
+                .collect::<Vec<_>>()
+                .join("\n")
+        ));
 }
 
 fn spacecraft(ui: &mut Ui, state: &mut AppState) {

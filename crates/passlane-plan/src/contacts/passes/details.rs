@@ -148,6 +148,12 @@ pub(super) fn describe_pass(
         doppler,
         illumination,
         mount_warnings,
+        element_age_days: passlane_orbit::result_element_age_days(
+            set,
+            t0.add_s(aos_s),
+            t0.add_s(los_s),
+            tmax,
+        ),
     }
 }
 

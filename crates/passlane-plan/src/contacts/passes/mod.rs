@@ -182,6 +182,11 @@ pub struct Pass {
     pub doppler: Vec<ChannelDoppler>,
     pub illumination: Vec<IlluminationSpan>,
     pub mount_warnings: Vec<MountWarning>,
+    /// Days from the element set's epoch to the culmination (negative:
+    /// before the epoch); `None` when an operator ephemeris covers the pass.
+    /// Common practice: SGP4 element sets degrade by about 1–3 km a day in
+    /// LEO, so an old set moves AOS and LOS by seconds or more.
+    pub element_age_days: Option<f64>,
 }
 
 /// A satellite that could not be searched to the end.

@@ -27,6 +27,8 @@ pub struct Candidate {
     pub max_elevation_deg: f64,
     /// Expected downlink volume, MB (usable duration × station rate).
     pub volume_mb: f64,
+    /// The pass's [`Pass::element_age_days`].
+    pub element_age_days: Option<f64>,
 }
 
 impl Candidate {
@@ -129,6 +131,7 @@ pub fn build_candidates(
                     los,
                     max_elevation_deg: pass.max_elevation_deg,
                     volume_mb: duration_s * ant.downlink_rate_bps / 8e6,
+                    element_age_days: pass.element_age_days,
                 });
             }
             (out, dropped, None)

@@ -40,6 +40,9 @@ pub struct PlannedContact {
     pub pinned: bool,
     /// Index into [`Problem::candidates`].
     pub candidate: usize,
+    /// Days from the element set's epoch to the pass's culmination; `None`
+    /// when an operator ephemeris covers the pass.
+    pub element_age_days: Option<f64>,
 }
 
 /// Shortfall of one spacecraft on one day.
@@ -176,6 +179,7 @@ pub(super) fn describe(
                 volume_mb: cand.volume_mb,
                 pinned: pinned[c],
                 candidate: c,
+                element_age_days: cand.element_age_days,
             }
         })
         .collect();
