@@ -628,6 +628,7 @@ fn passes_help_lists_every_option_with_a_description_unit_and_default() {
         "quiet",
         "ut1-utc-s",
         "ephemeris",
+        "allow-stale",
         "help",
     ];
     expected.sort();

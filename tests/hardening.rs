@@ -592,3 +592,17 @@ ARG_OF_PERICENTER = 88.1000\nMEAN_ANOMALY = 272.0000\nNORAD_CAT_ID = 90001\nBSTA
     }
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+#[test]
+fn elements_fails_when_nothing_loaded() {
+    // Issue 12, item 15: `elements` exited 0 on a file with no good record.
+    let dir = scratch("nothing-loaded");
+    let bad = dir.join("junk.tle");
+    std::fs::write(&bad, "1 this is not\n2 an element set\n").unwrap();
+    let out = passlane(&["elements", &bad.display().to_string()]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(!out.status.success(), "{stderr}");
+    assert!(stderr.contains("no element set loaded from"), "{stderr}");
+    assert!(stderr.contains("junk.tle:1"), "{stderr}");
+    std::fs::remove_dir_all(&dir).unwrap();
+}

@@ -41,6 +41,11 @@ pub fn run(args: &ElementsArgs, out: &mut dyn Write) -> Result<()> {
     let at = args.at.unwrap_or_else(UtcTime::now);
     let paths: &[PathBuf] = &args.files;
     let report = common::load_elements(paths, args.lenient)?;
+    if report.sets.is_empty() {
+        // The diagnostics are on stderr already; a script must not read an
+        // empty listing as success.
+        anyhow::bail!("no element set loaded from {}", common::join_paths(paths));
+    }
     let rows: Vec<Row> = report
         .sets
         .iter()
