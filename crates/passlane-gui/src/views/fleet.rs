@@ -11,8 +11,8 @@ use std::path::PathBuf;
 
 use eframe::egui::{self, CollapsingHeader, Grid, Ui};
 use passlane_orbit::{
-    OrbitSummary, REFUSE_AFTER_DAYS, STALE_AFTER_DAYS, Severity, UtcTime, days_outside_window,
-    element_age_days,
+    OrbitSummary, REFUSE_AFTER_DAYS, STALE_AFTER_DAYS, Severity, UtcTime, element_age_days,
+    window_element_age_days,
 };
 use passlane_plan::scenario::SatelliteNeeds;
 
@@ -304,7 +304,9 @@ fn spacecraft(ui: &mut Ui, state: &mut AppState) {
                 ui.label(set.catalog_number.to_string());
                 ui.label(time_label(set.epoch));
                 ui.label(format!("{:.1}", element_age_days(set, now)));
-                let off = days_outside_window(set.epoch, start, end);
+                // As the badge counts it: an ephemeris covering the window
+                // leaves no element set to age.
+                let off = window_element_age_days(set, start, end).unwrap_or(0.0);
                 let at_start = element_age_days(set, start);
                 if off > STALE_AFTER_DAYS {
                     ui.colored_label(palette::VERMILLION, format!("{at_start:.1} (stale)"))
