@@ -107,7 +107,12 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     passlane_files::remove_stale_temporaries(path);
     let text = passlane_files::read_text_limited(path, 64 * 1024 * 1024)
         .with_context(|| format!("cannot read scenario {}", path.display()))?;
-    Ok(Scenario::from_json(&text, &path.display().to_string())?)
+    let (scenario, warnings) =
+        Scenario::from_json_with_warnings(&text, &path.display().to_string())?;
+    for w in warnings {
+        eprintln!("warning: {w}");
+    }
+    Ok(scenario)
 }
 
 /// Paths in a scenario are relative to the scenario file's folder.

@@ -123,7 +123,10 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
         .zip(risks)
         .map(|(e, r)| EventRow::new(e, r))
         .collect();
-    if let Some(dir) = &args.cdm_dir {
+    // The CDM files are written before the results are printed, but a
+    // failure there (full disk, a folder that cannot be made) must not hide
+    // the results: it is reported, and the command fails, after them.
+    let cdm_outcome = args.cdm_dir.as_ref().map(|dir| -> Result<()> {
         std::fs::create_dir_all(dir).with_context(|| format!("cannot create {}", dir.display()))?;
         let now = UtcTime::now();
         let originator = args.originator.as_str();
@@ -139,6 +142,7 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
         // one pair in the same second get the TCA's milliseconds as well.
         let mut names = std::collections::HashSet::new();
         let mut written = 0usize;
+        let mut failed: Vec<anyhow::Error> = Vec::new();
         for (e, r) in result.events.iter().zip(risks) {
             let (Some(p), Some(s)) = (
                 by_number.get(&e.primary_catalog_number),
@@ -169,7 +173,7 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                 );
                 names.insert(message_id.clone());
             }
-            let cdm = event_to_cdm(
+            let cdm = match event_to_cdm(
                 e,
                 p,
                 s,
@@ -184,12 +188,19 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                     volume,
                     earth_orientation: scenario.map(|s| s.earth_orientation).unwrap_or_default(),
                 },
-            )?;
+            ) {
+                Ok(c) => c,
+                Err(err) => {
+                    failed.push(anyhow::Error::from(err).context(format!("CDM {message_id}")));
+                    continue;
+                }
+            };
             let xml = args.cdm_format == MessageFormat::Xml;
             let path = dir.join(format!("{message_id}.{}", if xml { "xml" } else { "cdm" }));
             // Temporaries from an interrupted earlier run would otherwise pile up.
             passlane_files::remove_stale_temporaries(&path);
-            passlane_files::write_atomic_with(&path, |w| {
+            // One event's failure leaves the others' files to be written.
+            match passlane_files::write_atomic_with(&path, |w| {
                 let mut buf = Vec::new();
                 if xml {
                     cdm.write_xml(&mut buf)?;
@@ -197,12 +208,26 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
                     cdm.write_kvn(&mut buf)?;
                 }
                 w.write_all(&buf)
-            })
-            .with_context(|| format!("cannot write {}", path.display()))?;
-            written += 1;
+            }) {
+                Ok(()) => written += 1,
+                Err(err) => failed.push(
+                    anyhow::Error::from(err).context(format!("cannot write {}", path.display())),
+                ),
+            }
         }
         eprintln!("wrote {written} CDM file(s) to {}", dir.display());
-    }
+        match failed.len() {
+            0 => Ok(()),
+            n => {
+                let first = failed.swap_remove(0);
+                Err(first.context(format!(
+                    "{n} of {} CDM file(s) not written to {}",
+                    n + written,
+                    dir.display()
+                )))
+            }
+        }
+    });
     match format {
         Format::Json => {
             serde_json::to_writer_pretty(&mut *out, &rows)?;
@@ -328,7 +353,11 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
             writeln!(out, "{CAUTION}")?;
         }
     }
-    Ok(())
+    out.flush()?;
+    match cdm_outcome {
+        Some(Err(e)) => Err(e.context("the results above are complete; the CDM files are not")),
+        _ => Ok(()),
+    }
 }
 
 fn describe_volume(v: &ScreeningVolume) -> String {

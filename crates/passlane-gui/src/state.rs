@@ -44,13 +44,18 @@ pub type NextContact = Option<(UtcTime, String)>;
 impl AppState {
     pub fn new(doc: Document) -> Self {
         let (start, _) = doc.window();
+        let status = match doc.open_warnings.as_slice() {
+            [] => String::new(),
+            [one] => format!("Warning: {one}"),
+            [first, rest @ ..] => format!("Warning: {first} (and {} more)", rest.len()),
+        };
         AppState {
             doc,
             passes: PassReport::default(),
             passes_revision: None,
             cursor: start,
             selected_pass: None,
-            status: String::new(),
+            status,
             info: String::new(),
             passes_blocked: None,
             focus_approach: None,

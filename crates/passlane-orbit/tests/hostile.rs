@@ -511,3 +511,54 @@ fn control_characters_in_omm_and_oem_names_are_replaced_and_named() {
         "{d:?}"
     );
 }
+
+#[test]
+fn a_perigee_below_the_surface_loads_with_a_warning() {
+    // Mean motion 15.2 rev/day gives a ≈ 6,880 km (Kepler's third law); with
+    // e = 0.2 the perigee radius is ≈ 5,500 km, inside the Earth.
+    let pairs = pairs_with("ECCENTRICITY", "0.2");
+    for (name, text) in [
+        ("kvn", kvn(&pairs)),
+        ("xml", xml(&pairs)),
+        ("json", json(&pairs, "")),
+    ] {
+        let r = load(text.as_bytes(), name, STRICT);
+        assert_eq!(r.sets.len(), 1, "{name}: {:?}", r.diagnostics);
+        let w: Vec<_> = r
+            .diagnostics
+            .iter()
+            .filter(|d| d.field == "perigee")
+            .collect();
+        assert_eq!(w.len(), 1, "{name}: {:?}", r.diagnostics);
+        assert!(
+            w[0].message.contains("below the Earth's surface"),
+            "{}",
+            w[0]
+        );
+        assert!(w[0].line > 0, "{}", w[0]);
+    }
+    // The unchanged record (perigee ≈ 500 km) gives no such warning.
+    let r = load(ormivel().as_bytes(), "good.tle", STRICT);
+    assert!(r.diagnostics.is_empty(), "{:?}", r.diagnostics);
+}
+
+#[test]
+fn one_bad_omm_with_many_faults_is_one_rejected_record() {
+    // Every numeric field unreadable: many findings, one record.
+    let mut pairs = pairs_with("", "");
+    for (k, v) in pairs.iter_mut() {
+        if NUMERIC.iter().any(|(n, _)| n == k) {
+            *v = "x".to_string();
+        }
+    }
+    for (name, text) in [("kvn", kvn(&pairs)), ("xml", xml(&pairs))] {
+        let bad_then_good = format!("{}\n{}", text, kvn(&pairs_with("", "")));
+        let r = if name == "kvn" {
+            load(bad_then_good.as_bytes(), name, STRICT)
+        } else {
+            load(text.as_bytes(), name, STRICT)
+        };
+        assert_eq!(r.rejected_records, 1, "{name}: {:?}", r.diagnostics);
+        assert!(r.error_count() > 5, "{name}: {}", r.error_count());
+    }
+}

@@ -23,6 +23,7 @@ pub mod numeric;
 pub mod progress;
 pub mod sampling;
 pub mod scenario;
+pub mod scenario_keys;
 
 // Each job's modules, also reachable from the crate root.
 pub use approaches::{avoid, cdm, conjunction, encounter, job, pc, screen};

@@ -222,7 +222,24 @@ impl std::error::Error for ScenarioError {}
 
 impl Scenario {
     /// Parses, migrates and validates a scenario from JSON text.
+    ///
+    /// Unknown keys are ignored here; [`Scenario::from_json_with_warnings`]
+    /// names them, and is what a reader of the user's files should call.
     pub fn from_json(text: &str, file: &str) -> Result<Scenario, ScenarioError> {
+        Scenario::from_json_with_warnings(text, file).map(|(s, _)| s)
+    }
+
+    /// As [`Scenario::from_json`], and also returns one warning per key the
+    /// reader does not know (with a "did you mean" where a known key is
+    /// close), each prefixed by the file name.
+    ///
+    /// A leading UTF-8 byte-order mark (some editors on Windows write one) is
+    /// accepted and skipped.
+    pub fn from_json_with_warnings(
+        text: &str,
+        file: &str,
+    ) -> Result<(Scenario, Vec<String>), ScenarioError> {
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         let err = |line, column, field: &str, message: String| ScenarioError {
             file: file.to_string(),
             line,
@@ -268,7 +285,11 @@ impl Scenario {
         for s in &mut scenario.stations {
             s.normalise();
         }
-        Ok(scenario)
+        let warnings = crate::scenario_keys::unknown_keys(&value)
+            .iter()
+            .map(|k| format!("{file}: {k}"))
+            .collect();
+        Ok((scenario, warnings))
     }
 
     /// Pretty JSON, ending with a newline.

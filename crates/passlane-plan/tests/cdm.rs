@@ -492,3 +492,21 @@ fn the_reader_enforces_the_standards_rules() {
     assert_ne!(zero, GOOD);
     assert!(Cdm::parse(&zero, "zero.kvn").is_ok());
 }
+
+#[test]
+fn a_byte_order_mark_is_accepted_in_both_forms() {
+    // Some editors start a UTF-8 file with U+FEFF; it is not content.
+    assert_eq!(parse_ok(&format!("\u{feff}{GOOD}")), parse_ok(GOOD));
+    let mut bytes = Vec::new();
+    parse_ok(GOOD).write_xml(&mut bytes).unwrap();
+    let xml = String::from_utf8(bytes).unwrap();
+    assert_eq!(parse_ok(&format!("\u{feff}{xml}")), parse_ok(&xml));
+}
+
+#[test]
+fn a_reference_frame_outside_the_standards_list_is_rejected() {
+    // CCSDS 508.0-B-1 Table 3-3: REF_FRAME is EME2000, GCRF or ITRF.
+    let e = parse_err(&GOOD.replace("= EME2000", "= BOGUS"), "bogus.kvn");
+    assert_eq!(e.keyword, "REF_FRAME", "{e}");
+    assert!(e.line > 0, "{e}");
+}

@@ -82,6 +82,9 @@ pub struct Document {
     pub files: Vec<LoadedFile>,
     /// Bumped on every change that invalidates derived results (passes, tracks).
     pub revision: u64,
+    /// What the scenario reader warned about when the file was opened
+    /// (unknown keys); shown once in the status line.
+    pub open_warnings: Vec<String>,
 }
 
 /// What a save did, in words (shown to the user).
@@ -116,6 +119,7 @@ impl Document {
             catalog: Vec::new(),
             files: Vec::new(),
             revision: 0,
+            open_warnings: Vec::new(),
         }
     }
 
@@ -145,9 +149,11 @@ impl Document {
         // Refused, not repaired, when it is not UTF-8 (as on the command line).
         let text = passlane_files::read_text_limited(path, MAX_SCENARIO_BYTES)
             .map_err(|e| anyhow::anyhow!("cannot read scenario {}: {e}", path.display()))?;
-        let scenario = Scenario::from_json(&text, &path.display().to_string())?;
+        let (scenario, warnings) =
+            Scenario::from_json_with_warnings(&text, &path.display().to_string())?;
         let mut doc = Document {
             scenario,
+            open_warnings: warnings,
             path: Some(path.to_path_buf()),
             base_dir: path.parent().map(paths::absolute),
             ..Document::new_empty()

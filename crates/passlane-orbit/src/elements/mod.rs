@@ -238,7 +238,33 @@ pub fn load_records(bytes: &[u8], file: &str, options: LoadOptions) -> LoadRepor
         Some(_) if contains(bytes, b"CCSDS_OMM_VERS") => omm::load_kvn(bytes, file, &mut report),
         Some(_) => tle::load_tle(bytes, file, options, &mut report),
     }
+    warn_perigee_below_surface(&mut report);
     report
+}
+
+/// A set whose perigee (from its Kozai mean motion and eccentricity) lies
+/// below the Earth's equatorial radius describes an orbit that meets the
+/// ground: a re-entered object or a wrong set. It still loads (SGP4 may
+/// propagate it, and the user may want to see it), with a warning.
+fn warn_perigee_below_surface(report: &mut LoadReport) {
+    let low: Vec<Diagnostic> = report
+        .sets
+        .iter()
+        .filter_map(|s| {
+            let perigee_km = crate::summary::OrbitSummary::of(s).perigee_altitude_km;
+            (perigee_km < 0.0).then(|| Diagnostic {
+                severity: Severity::Warning,
+                file: s.source.file.clone(),
+                line: s.source.line,
+                field: "perigee".to_string(),
+                message: format!(
+                    "{} ({}): perigee altitude {perigee_km:.0} km, below the Earth's surface: re-entered or a wrong element set; results for it are not physical",
+                    s.catalog_number, s.name
+                ),
+            })
+        })
+        .collect();
+    low.into_iter().for_each(|d| report.push(d));
 }
 
 fn contains(hay: &[u8], needle: &[u8]) -> bool {

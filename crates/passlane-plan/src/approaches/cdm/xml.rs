@@ -444,6 +444,8 @@ impl Cdm {
 
     /// Reads a CDM in either form: XML when the text starts with `<`, else KVN.
     pub fn parse(text: &str, file: &str) -> Result<Cdm, CdmError> {
+        // A UTF-8 byte-order mark (written by some editors) is not content.
+        let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         let start = text.trim_start_matches(['\u{feff}', ' ', '\t', '\r', '\n']);
         if start.starts_with('<') {
             Cdm::parse_xml(text, file)
