@@ -562,3 +562,53 @@ fn one_bad_omm_with_many_faults_is_one_rejected_record() {
         assert!(r.error_count() > 5, "{name}: {}", r.error_count());
     }
 }
+
+#[test]
+fn xml_entities_are_never_expanded_and_a_break_keeps_the_records_before_it() {
+    // A DTD entity (the basis of expansion attacks) is refused in the record
+    // that uses it; the record after it still loads.
+    let good = xml(&pairs_with("", ""));
+    let body = |name: &str| {
+        let start = good.find("<omm").unwrap();
+        let end = good.find("</omm>").unwrap() + "</omm>".len();
+        good[start..end].replace("KRSL-1 ORMIVEL", name)
+    };
+    let other = body("SECOND").replace(">90001<", ">90002<");
+    let text = format!(
+        "<?xml version=\"1.0\"?>\n<!DOCTYPE ndm [<!ENTITY big \"AAAAAAAAAA\">]>\n<ndm>\n{}\n{}\n</ndm>\n",
+        body("&big;"),
+        other
+    );
+    let r = load(text.as_bytes(), "entity.xml", STRICT);
+    assert_eq!(r.sets.len(), 1, "{:?}", r.diagnostics);
+    assert_eq!(r.sets[0].name, "SECOND");
+    assert_eq!(r.rejected_records, 1);
+    assert!(
+        r.diagnostics.iter().any(|d| d.field == "OBJECT_NAME"
+            && d.message.contains("&big;")
+            // <omm> on line 4, then header, body, metadata, data lines.
+            && d.line == 9),
+        "{:?}",
+        r.diagnostics
+    );
+    // The five predefined entities and character references are text.
+    let r = load(body("A &amp; B &#x43;").as_bytes(), "refs.xml", STRICT);
+    assert_eq!(r.sets.len(), 1, "{:?}", r.diagnostics);
+    assert_eq!(r.sets[0].name, "A & B C");
+    // A document cut inside its second message keeps the first, and names
+    // where reading stopped.
+    let cut = format!("<ndm>\n{}\n{}", body("FIRST"), &other[..other.len() / 2]);
+    let r = load(cut.as_bytes(), "cut.xml", STRICT);
+    assert_eq!(r.sets.len(), 1, "{:?}", r.diagnostics);
+    assert_eq!(r.sets[0].name, "FIRST");
+    assert!(r.error_count() >= 1, "{:?}", r.diagnostics);
+    assert!(r.errors().all(|d| d.line > 1), "{:?}", r.diagnostics);
+    // A namespace prefix on the tags does not hide the message.
+    let prefixed = body("PREFIXED").replace("<", "<n:").replace("<n:/", "</n:");
+    let r = load(
+        format!("<n:ndm xmlns:n=\"urn:x\">{prefixed}</n:ndm>").as_bytes(),
+        "ns.xml",
+        STRICT,
+    );
+    assert_eq!(r.sets.len(), 1, "{:?}", r.diagnostics);
+}

@@ -2,85 +2,222 @@
 //! inside an `<ndm>` wrapper. Keywords are found wherever they are nested
 //! (`<header>`, `<metadata>`, `<meanElements>`, `<tleParameters>`, ...), so
 //! the reader does not depend on the exact schema version.
+//!
+//! The text is read as a stream of tags (quick-xml), one `<omm>` at a time,
+//! so memory holds only the record being read, whatever the file's size
+//! (a tree of the whole document cost ~6× the good records). Lines are
+//! counted forwards as the reader advances, so the time is linear. A
+//! document that stops being well-formed keeps the records read before the
+//! fault, and the error names its line. Entity references other than XML's
+//! five predefined ones and character references are refused in the record
+//! that uses them (no DTD entity is ever expanded).
+
+use quick_xml::events::{BytesRef, Event};
 
 use super::super::{LoadReport, Severity};
 use super::{KEYWORDS, Record, diag, line_at, note_if_empty, utf8};
+
+/// The keyword element being read inside an `<omm>`.
+struct OpenKeyword {
+    name: String,
+    line: usize,
+    value: String,
+    /// Element depth of the keyword's start tag.
+    depth: usize,
+    /// Something in it was refused (a nested element, an unknown entity):
+    /// its value is not recorded; the error is already on the record.
+    refused: bool,
+}
+
+/// The `<omm>` element being read.
+struct OpenMessage<'f> {
+    record: Record<'f>,
+    depth: usize,
+    keyword: Option<OpenKeyword>,
+}
 
 pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadReport) {
     let (sets_before, diags_before) = (report.sets.len(), report.finding_count());
     let Some(text) = utf8(bytes, file, report) else {
         return;
     };
-    let doc = match roxmltree::Document::parse(text) {
-        Ok(doc) => doc,
-        Err(e) => {
-            let pos = e.pos();
-            report.push(diag(
-                file,
-                Severity::Error,
-                pos.row as usize,
-                "",
-                format!(
-                    "not well-formed XML (column {}): {e}; nothing loaded from it",
-                    pos.col
-                ),
-            ));
-            return;
-        }
-    };
-    // Lines are counted forwards from the last node asked about: nodes come
-    // in document order, so the whole file is scanned once. (roxmltree's
-    // `text_pos_at` counts from the start of the text on every call, which
-    // made this reader quadratic: 2 MB took 11 s, 8 MB 158 s.)
     let bytes = text.as_bytes();
+    // Lines counted forwards from the last offset asked about (offsets only
+    // grow), so the whole file is scanned once.
     let mut cursor = (0usize, 1usize);
-    let mut line_of = |node: roxmltree::Node<'_, '_>| {
-        let offset = node.range().start;
+    let mut line_of = |offset: u64| {
+        let offset = usize::try_from(offset).unwrap_or(usize::MAX);
         let from = if offset >= cursor.0 { cursor } else { (0, 1) };
         let line = line_at(bytes, from, offset);
-        cursor = (offset, line);
+        cursor = (offset.min(bytes.len()), line);
         line
     };
+    let mut reader = quick_xml::Reader::from_str(text);
+    let mut root: Option<String> = None;
     let mut found = false;
-    for omm in doc
-        .descendants()
-        .filter(|n| n.is_element() && n.tag_name().name().eq_ignore_ascii_case("omm"))
-    {
-        found = true;
-        let mut rec = Record::new(file, line_of(omm));
-        for node in omm.descendants().filter(|n| n.is_element()) {
-            let name = node.tag_name().name();
-            if !KEYWORDS.contains(&name) {
-                continue;
+    let mut open: Option<OpenMessage<'_>> = None;
+    let mut depth = 0usize;
+    loop {
+        let tag_start = reader.buffer_position();
+        let event = match reader.read_event() {
+            Ok(e) => e,
+            Err(e) => {
+                let line = line_of(reader.error_position());
+                if let Some(m) = open.take() {
+                    m.record.abandon(report);
+                }
+                report.push(diag(
+                    file,
+                    Severity::Error,
+                    line,
+                    "",
+                    format!(
+                        "not well-formed XML: {e}; reading stopped here (the records before it are kept)"
+                    ),
+                ));
+                break;
             }
-            if node.children().any(|c| c.is_element()) {
-                rec.error(
-                    line_of(node),
-                    name,
-                    format!("<{name}> holds elements, expected a value; record skipped"),
-                );
-                continue;
+        };
+        match event {
+            Event::Start(ref e) | Event::Empty(ref e) => {
+                let empty = matches!(event, Event::Empty(_));
+                depth += 1;
+                let name = e.local_name();
+                let name: &str = name.as_ref();
+                root.get_or_insert_with(|| name.to_string());
+                match open.as_mut() {
+                    None if name.eq_ignore_ascii_case("omm") => {
+                        found = true;
+                        open = Some(OpenMessage {
+                            record: Record::new(file, line_of(tag_start)),
+                            depth,
+                            keyword: None,
+                        });
+                    }
+                    None => {}
+                    Some(m) => match m.keyword.as_mut() {
+                        Some(k) => {
+                            if !k.refused {
+                                k.refused = true;
+                                let message = format!(
+                                    "<{}> holds elements, expected a value; record skipped",
+                                    k.name
+                                );
+                                m.record.error(k.line, &k.name, message);
+                            }
+                        }
+                        None if KEYWORDS.contains(&name) => {
+                            m.keyword = Some(OpenKeyword {
+                                name: name.to_string(),
+                                line: line_of(tag_start),
+                                value: String::new(),
+                                depth,
+                                refused: false,
+                            });
+                        }
+                        None => {}
+                    },
+                }
+                if empty {
+                    close_element(&mut open, depth, report);
+                    depth -= 1;
+                }
             }
-            let value: String = node
-                .children()
-                .filter(|c| c.is_text())
-                .filter_map(|c| c.text())
-                .collect();
-            rec.insert(name, value, line_of(node));
+            Event::End(_) => {
+                close_element(&mut open, depth, report);
+                depth = depth.saturating_sub(1);
+            }
+            Event::Text(t) => push_text(&mut open, depth, &t.xml10_content()),
+            Event::CData(c) => push_text(&mut open, depth, &c.xml10_content()),
+            Event::GeneralRef(r) => {
+                let line = line_of(tag_start);
+                if let Some(m) = open.as_mut()
+                    && let Some(k) = m.keyword.as_mut()
+                    && k.depth == depth
+                {
+                    match resolve_reference(&r) {
+                        Some(s) => k.value.push_str(&s),
+                        None => {
+                            k.refused = true;
+                            let message = format!(
+                                "the entity reference &{}; is not one of XML's predefined five; record skipped",
+                                crate::text::clean(&r.xml10_content(), false)
+                            );
+                            m.record.error(line, &k.name, message);
+                        }
+                    }
+                }
+            }
+            Event::Eof => break,
+            _ => {}
         }
-        rec.finish(report);
     }
-    if !found {
+    if let Some(m) = open.take() {
+        let line = m.record.line;
+        m.record.abandon(report);
         report.push(diag(
             file,
             Severity::Error,
-            line_of(doc.root_element()),
+            line,
             "",
-            format!(
-                "no <omm> element in this XML (the root is <{}>)",
-                doc.root_element().tag_name().name()
-            ),
+            "this <omm> is not closed before the end of the file; record skipped".to_string(),
+        ));
+    }
+    if !found && report.finding_count() == diags_before {
+        report.push(diag(
+            file,
+            Severity::Error,
+            1,
+            "",
+            match &root {
+                Some(r) => format!(
+                    "no <omm> element in this XML (the root is <{}>)",
+                    crate::text::clean(r, false)
+                ),
+                None => "no <omm> element in this XML".to_string(),
+            },
         ));
     }
     note_if_empty(report, file, sets_before, diags_before);
+}
+
+/// Ends the element at `depth`: a keyword's value goes into its record, an
+/// `<omm>` is validated into an element set or its diagnostics.
+fn close_element(open: &mut Option<OpenMessage<'_>>, depth: usize, report: &mut LoadReport) {
+    let Some(m) = open.as_mut() else {
+        return;
+    };
+    if m.keyword.as_ref().is_some_and(|k| k.depth == depth) {
+        if let Some(k) = m.keyword.take()
+            && !k.refused
+        {
+            m.record.insert(&k.name, k.value, k.line);
+        }
+    } else if m.depth == depth
+        && let Some(m) = open.take()
+    {
+        m.record.finish(report);
+    }
+}
+
+/// Text directly inside the keyword being read (text elsewhere is layout).
+fn push_text(open: &mut Option<OpenMessage<'_>>, depth: usize, text: &str) {
+    if let Some(k) = open.as_mut().and_then(|m| m.keyword.as_mut())
+        && k.depth == depth
+        && !k.refused
+    {
+        k.value.push_str(text);
+    }
+}
+
+/// A character reference (`&#48;`, `&#x30;`) or one of the five predefined
+/// entities; `None` for anything else (a DTD entity is never expanded).
+fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
+    match r.resolve_char_ref() {
+        Ok(Some(c)) => Some(c.to_string()),
+        Ok(None) => {
+            quick_xml::escape::resolve_predefined_entity(&r.xml10_content()).map(str::to_string)
+        }
+        Err(_) => None,
+    }
 }
