@@ -248,10 +248,27 @@ fn timed(label: &str, f: impl FnOnce() -> ScreeningResult) -> (ScreeningResult, 
 
 fn realistic_cases(which: &str, arg: Option<&str>) {
     let epoch = catalog::epoch();
-    let settings = ScreeningSettings {
-        volume: ScreeningVolume::Sphere { radius_km: 5.0 },
-        ..Default::default()
+    // Sweeps of the method's tuning (the figures behind the defaults):
+    // SCREEN_HASH_STEP_S and SCREEN_TOLERANCE_KM override the defaults.
+    let env = |k: &str| std::env::var(k).ok().and_then(|v| v.parse::<f64>().ok());
+    let sphere = ScreeningVolume::Sphere { radius_km: 5.0 };
+    // Each mode's own defaults, as the command uses them.
+    let defaults = if which == "real-sso" || which == "real-fleet" {
+        ScreeningSettings::fleet_vs_catalog(sphere)
+    } else {
+        ScreeningSettings::default()
     };
+    let settings = ScreeningSettings {
+        volume: sphere,
+        hash_step_s: env("SCREEN_HASH_STEP_S").unwrap_or(defaults.hash_step_s),
+        interpolation_tolerance_km: env("SCREEN_TOLERANCE_KM")
+            .unwrap_or(defaults.interpolation_tolerance_km),
+        ..defaults
+    };
+    println!(
+        "hash step {} s, interpolation tolerance {} km",
+        settings.hash_step_s, settings.interpolation_tolerance_km
+    );
     fn request<'a>(
         primaries: &'a [ElementSet],
         secondaries: Option<&'a [ElementSet]>,

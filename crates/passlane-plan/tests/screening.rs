@@ -188,8 +188,11 @@ fn interpolation_allowance_covers_the_actual_error() {
     // For every demo object (LEO and the eccentric KRSL-6), the error of the
     // interpolant at the sample step the screening picks stays below the
     // allowance that widens the search.
-    let settings = ScreeningSettings::default();
-    for set in demo_objects() {
+    let fleet = ScreeningSettings::fleet_vs_catalog(ScreeningSettings::default().volume);
+    for (settings, set) in [ScreeningSettings::default(), fleet]
+        .into_iter()
+        .flat_map(|s| demo_objects().into_iter().map(move |o| (s, o)))
+    {
         let plan = interpolation_plan(&set, &settings);
         let p = Propagator::new(&set).unwrap();
         let start = t("2026-12-01T00:00:00Z");

@@ -325,9 +325,58 @@ fn fleet_against_the_dense_subset_equals_brute_force() {
         secondaries: Some(&objects),
         start,
         end: start.add_s(12.0 * 3600.0),
-        settings: sphere(10.0),
+        // The tuning the command uses for a fleet against a catalog.
+        settings: ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 10.0 }),
     };
     let fast = screen(&request);
     let n = assert_same(&fast, &screen_brute_force(&request, 10.0));
     assert!(n > 0);
+}
+
+#[test]
+fn interpolation_allowance_covers_the_dense_subset_in_both_tunings() {
+    // Every object of the dense realistic subset (shells, debris band,
+    // eccentric LEO-crossers, deep space) over 12 h: the Hermite error at the
+    // sample step each tuning picks stays below the allowance that widens
+    // the search.
+    use passlane_plan::screen::{hermite_state, interpolation_plan};
+    let objects = catalog::element_sets(&catalog::dense_subset_synth());
+    let start = catalog::epoch();
+    for settings in [
+        ScreeningSettings::default(),
+        ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 5.0 }),
+    ] {
+        for set in &objects {
+            let plan = interpolation_plan(set, &settings);
+            let p = Propagator::new(set).unwrap();
+            let n = (12.0 * 3600.0 / plan.sample_step_s).ceil() as usize;
+            let mut worst_km: f64 = 0.0;
+            for k in 0..n {
+                let t0 = start.add_s(plan.sample_step_s * k as f64);
+                let (Ok(a), Ok(b)) = (p.state_at(t0), p.state_at(t0.add_s(plan.sample_step_s)))
+                else {
+                    break;
+                };
+                for s in 1..8 {
+                    let tt = t0.add_s(plan.sample_step_s * s as f64 / 8.0);
+                    let h = hermite_state(&a, &b, tt);
+                    let Ok(d) = p.state_at(tt) else { break };
+                    let e = (0..3)
+                        .map(|i| (h.position_km[i] - d.position_km[i]).powi(2))
+                        .sum::<f64>()
+                        .sqrt();
+                    worst_km = worst_km.max(e);
+                }
+            }
+            assert!(
+                worst_km < plan.margin_km,
+                "{} ({}): step {} s, error {worst_km} km, allowance {} km (hash step {} s)",
+                set.name,
+                set.catalog_number,
+                plan.sample_step_s,
+                plan.margin_km,
+                settings.hash_step_s
+            );
+        }
+    }
 }

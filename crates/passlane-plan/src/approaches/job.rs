@@ -62,9 +62,13 @@ pub fn screen_and_assess(job: &ScreeningJob<'_>, progress: &dyn Progress) -> Scr
         secondaries,
         start: job.start,
         end: job.end,
-        settings: ScreeningSettings {
-            volume: job.volume,
-            ..ScreeningSettings::default()
+        settings: if secondaries.is_some() {
+            ScreeningSettings::fleet_vs_catalog(job.volume)
+        } else {
+            ScreeningSettings {
+                volume: job.volume,
+                ..ScreeningSettings::default()
+            }
         },
     };
     let own_pairs = secondaries.is_some() && primaries.len() > 1;
