@@ -296,11 +296,15 @@ fn realistic_cases(which: &str, arg: Option<&str>) {
         }
         "real-sso" | "real-fleet" => {
             let cat = catalog::realistic(30_000);
-            let fleet = if which == "real-sso" {
+            let mut fleet = if which == "real-sso" {
                 catalog::element_sets(&catalog::sso_fleet_synth())
             } else {
                 catalog::element_sets(&catalog::fleet_100_synth())
             };
+            // SCREEN_FLEET_N: the first N of the fleet (fleet-size sweeps).
+            if let Some(n) = env("SCREEN_FLEET_N") {
+                fleet.truncate(n as usize);
+            }
             let req = request(&fleet, Some(&cat), 7.0 * 24.0, settings);
             timed(
                 &format!("realistic {} vs 30,000 x 7 d, 5 km", fleet.len()),

@@ -334,6 +334,42 @@ fn fleet_against_the_dense_subset_equals_brute_force() {
 }
 
 #[test]
+fn a_small_fleet_against_the_dense_subset_equals_brute_force() {
+    // A fleet of three takes the direct scan (each catalog object against
+    // each spacecraft, skipping the steps it cannot use) instead of the
+    // grid; with formation companions of the fleet in the catalog
+    // (co-orbiting and drifting), 12 h, 10 km.
+    let fleet: Vec<ElementSet> = catalog::element_sets(&catalog::sso_fleet_synth())
+        .into_iter()
+        .take(3)
+        .collect();
+    let mut objects = catalog::element_sets(&catalog::dense_subset_synth());
+    objects.extend(formation_pairs(&fleet));
+    let start = catalog::epoch();
+    let request = ScreeningRequest {
+        primaries: &fleet,
+        secondaries: Some(&objects),
+        start,
+        end: start.add_s(12.0 * 3600.0),
+        settings: ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 10.0 }),
+    };
+    let fast = screen(&request);
+    let n = assert_same(&fast, &screen_brute_force(&request, 10.0));
+    // Each spacecraft's companions are found.
+    for f in &fleet {
+        assert!(
+            fast.events
+                .iter()
+                .any(|e| e.primary_catalog_number == f.catalog_number
+                    && e.secondary_catalog_number >= 95_000),
+            "no companion event for {}",
+            f.name
+        );
+    }
+    assert!(n > 3);
+}
+
+#[test]
 fn interpolation_allowance_covers_the_dense_subset_in_both_tunings() {
     // Every object of the dense realistic subset (shells, debris band,
     // eccentric LEO-crossers, deep space) over 12 h: the Hermite error at the

@@ -96,16 +96,15 @@ pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadR
                     }
                     None => {}
                     Some(m) => match m.keyword.as_mut() {
-                        Some(k) => {
-                            if !k.refused {
-                                k.refused = true;
-                                let message = format!(
-                                    "<{}> holds elements, expected a value; record skipped",
-                                    k.name
-                                );
-                                m.record.error(k.line, &k.name, message);
-                            }
+                        Some(k) if !k.refused => {
+                            k.refused = true;
+                            let message = format!(
+                                "<{}> holds elements, expected a value; record skipped",
+                                k.name
+                            );
+                            m.record.error(k.line, &k.name, message);
                         }
+                        Some(_) => {}
                         None if KEYWORDS.contains(&name) => {
                             m.keyword = Some(OpenKeyword {
                                 name: name.to_string(),

@@ -248,6 +248,17 @@ pub(super) struct ChunkContext<'a> {
     pub(super) window: (UtcTime, UtcTime),
 }
 
+/// The fleet's interpolated midpoint states at every hash step of a chunk,
+/// for [`ChunkContext::fleet_scan`].
+pub(super) struct FleetTrack {
+    /// Each step's start, end and half length (s).
+    steps: Vec<(UtcTime, UtcTime, f64)>,
+    /// The fleet's object indices.
+    fleet: Vec<usize>,
+    /// `states[k * fleet.len() + f]`: fleet object f at step k's midpoint.
+    states: Vec<Option<Sample>>,
+}
+
 /// The bounds of one hash step [a, b] (see the module docs of [`super`]).
 #[derive(Clone, Copy)]
 struct StepBounds {
@@ -263,6 +274,33 @@ struct StepBounds {
 }
 
 impl ChunkContext<'_> {
+    /// The fleet (group 0) at every step midpoint of the chunk.
+    pub(super) fn fleet_track(&self, n_steps: usize, chunk_end: UtcTime) -> FleetTrack {
+        let h = self.settings.hash_step_s;
+        let steps: Vec<(UtcTime, UtcTime, f64)> = (0..n_steps)
+            .map(|k| {
+                let a = self.chunk_start.add_s(k as f64 * h);
+                let b = a.add_s(h).min(chunk_end);
+                (a, b, 0.5 * b.s_since(a))
+            })
+            .collect();
+        let fleet: Vec<usize> = (0..self.flat.hot.len())
+            .filter(|&i| self.flat.hot[i].group == 0)
+            .collect();
+        let states = steps
+            .iter()
+            .flat_map(|&(a, _, half_s)| {
+                let mid_dt = a.s_since(self.chunk_start) + half_s;
+                fleet.iter().map(move |&i| self.flat.at(i, mid_dt))
+            })
+            .collect();
+        FleetTrack {
+            steps,
+            fleet,
+            states,
+        }
+    }
+
     /// All candidate minima of the hash step [a, b].
     pub(super) fn step(&self, a: UtcTime, b: UtcTime, scratch: &mut Scratch) -> Vec<Candidate> {
         let half_s = 0.5 * b.s_since(a);
@@ -377,6 +415,64 @@ impl ChunkContext<'_> {
                 }
             }
         }
+    }
+
+    /// Fleet against catalog for a small fleet, over the whole chunk: each
+    /// catalog object is tested against every fleet object directly, and
+    /// skips the hash steps where it cannot be within a cell of any of them.
+    ///
+    /// The bound: on the interpolants, the distance of a pair changes by at
+    /// most `v_pair_km_s` (the chunk's closing-speed bound, see
+    /// [`Flat::pair_speed_km_s`]) per second, so a pair at distance d at one
+    /// step's midpoint is farther than the cell at every midpoint less than
+    /// (d − cell)/(v_pair·h) steps later. The pairs it tests, and the tests,
+    /// are those of [`Self::fleet_step`] (whose cut is the cell too); only
+    /// steps where no pair can pass the cut are skipped.
+    pub(super) fn fleet_scan(&self, track: &FleetTrack, catalog: &[usize]) -> Vec<Candidate> {
+        let h = self.settings.hash_step_s;
+        let d = self.settings.volume.bounding_radius_km() + self.margin_km;
+        let a_pair = 2.0 * MAX_ACCELERATION_KM_S2;
+        let FleetTrack {
+            steps,
+            fleet,
+            states: fleet_states,
+        } = track;
+        let n_steps = steps.len();
+        // The widest cell of the chunk (a full step) bounds every step's cut.
+        let cell_full_km = d + self.v_pair_km_s * 0.5 * h + 1e-3;
+        let closing_per_step_km = (self.v_pair_km_s * h).max(1e-9);
+        let mut out = Vec::new();
+        for &j in catalog {
+            let mut k = 0;
+            while k < n_steps {
+                let (a, b, half_s) = steps[k];
+                let Some(sj) = self.flat.at(j, a.s_since(self.chunk_start) + half_s) else {
+                    k += 1;
+                    continue;
+                };
+                let cell_km = d + self.v_pair_km_s * half_s + 1e-3;
+                let reach_km = d + 0.5 * a_pair * half_s * half_s;
+                let mut nearest_km = f64::INFINITY;
+                for (f, &i) in fleet.iter().enumerate() {
+                    let Some(si) = &fleet_states[k * fleet.len() + f] else {
+                        continue;
+                    };
+                    let dr = sub(&sj.pos_km, &si.pos_km);
+                    let dist = dot(&dr, &dr).sqrt();
+                    nearest_km = nearest_km.min(dist);
+                    if dist <= cell_km {
+                        self.pair_at(i, j, si, &sj, a, b, reach_km, cell_km, &mut out);
+                    }
+                }
+                let skip = ((nearest_km - cell_full_km) / closing_per_step_km).floor();
+                k += if skip >= 2.0 {
+                    (skip as usize).min(n_steps)
+                } else {
+                    1
+                };
+            }
+        }
+        out
     }
 
     /// All against all: every object goes into the grid; pairs come from each
@@ -504,6 +600,23 @@ impl ChunkContext<'_> {
         let (Some(si), Some(sj)) = (&states[i], &states[j]) else {
             return;
         };
+        self.pair_at(i, j, si, sj, a, b, reach_km, cut_km, out);
+    }
+
+    /// [`Self::pair`] with the two midpoint states given.
+    #[allow(clippy::too_many_arguments)]
+    fn pair_at(
+        &self,
+        i: usize,
+        j: usize,
+        si: &Sample,
+        sj: &Sample,
+        a: UtcTime,
+        b: UtcTime,
+        reach_km: f64,
+        cut_km: f64,
+        out: &mut Vec<Candidate>,
+    ) {
         // Cheapest test first: farther apart than anything can close in half a step.
         let dr = sub(&sj.pos_km, &si.pos_km);
         if dot(&dr, &dr) > cut_km * cut_km {
