@@ -1,5 +1,6 @@
 //! Element loader speed and peak memory on 50 MB files of each format: TLE,
-//! OMM KVN, OMM XML and OMM JSON, with bad records mixed in (the test
+//! OMM KVN, OMM XML and OMM JSON, and the operator-ephemeris reader on OEM
+//! KVN and XML (one segment of states 10 s apart), with bad records mixed in (the test
 //! `tests/huge_input.rs` checks what loads; this measures how fast, and how
 //! much memory a reader takes beside the input).
 //!
@@ -28,7 +29,9 @@ use std::time::Instant;
 use passlane_orbit::{ElementSet, LoadOptions, elements};
 
 const TARGET_BYTES: usize = 50 * 1024 * 1024;
-const FORMATS: [&str; 4] = ["tle", "omm-kvn", "omm-xml", "omm-json"];
+const FORMATS: [&str; 6] = [
+    "tle", "omm-kvn", "omm-xml", "omm-json", "oem-kvn", "oem-xml",
+];
 const CHILD_VAR: &str = "PASSLANE_LOADER_BENCH_FORMAT";
 
 fn main() {
@@ -148,7 +151,124 @@ fn push_record(out: &mut String, format: &str, i: usize, sets: &[ElementSet], tl
     }
 }
 
+/// One OEM of `states` states 10 s apart from 2026-12-01 (a circular orbit
+/// in TEME), every tenth state with a non-number; returns the text and the
+/// bytes of its good state lines.
+fn oem_text(xml: bool) -> (String, usize, usize) {
+    let mut text = String::with_capacity(TARGET_BYTES + 64 * 1024);
+    let per_state = if xml { 250 } else { 110 };
+    let states = TARGET_BYTES / per_state;
+    let start = passlane_orbit::UtcTime::parse_iso("2026-12-01T00:00:00Z").unwrap();
+    let stop = start.add_s(10.0 * (states - 1) as f64);
+    let iso = |t: passlane_orbit::UtcTime| t.to_iso_ms().trim_end_matches('Z').to_string();
+    let meta = [
+        ("OBJECT_NAME", "BENCH".to_string()),
+        ("OBJECT_ID", "2026-901A".into()),
+        ("CENTER_NAME", "EARTH".into()),
+        ("REF_FRAME", "TEME".into()),
+        ("TIME_SYSTEM", "UTC".into()),
+        ("START_TIME", iso(start)),
+        ("STOP_TIME", iso(stop)),
+        ("INTERPOLATION", "LAGRANGE".into()),
+        ("INTERPOLATION_DEGREE", "5".into()),
+    ];
+    if xml {
+        text.push_str("<?xml version=\"1.0\"?>\n<oem id=\"CCSDS_OEM_VERS\" version=\"3.0\">\n<header><CREATION_DATE>2026-11-30T12:00:00</CREATION_DATE><ORIGINATOR>BENCH</ORIGINATOR></header>\n<body><segment><metadata>\n");
+        for (k, v) in &meta {
+            let _ = writeln!(text, "<{k}>{v}</{k}>");
+        }
+        text.push_str("</metadata><data>\n");
+    } else {
+        text.push_str("CCSDS_OEM_VERS = 3.0\nCREATION_DATE = 2026-11-30T12:00:00\nORIGINATOR = BENCH\nMETA_START\n");
+        for (k, v) in &meta {
+            let _ = writeln!(text, "{k} = {v}");
+        }
+        text.push_str("META_STOP\n");
+    }
+    let (r, w) = (7000.0f64, 7.546 / 7000.0);
+    let mut good_bytes = 0;
+    let mut good = 0;
+    for i in 0..states {
+        let t = 10.0 * i as f64;
+        let (s, c) = (w * t).sin_cos();
+        let v = [r * c, r * s, 0.0, -7.546 * s, 7.546 * c, 0.0];
+        let x = if i % 10 == 3 {
+            "NaN".to_string()
+        } else {
+            format!("{:.6}", v[0])
+        };
+        let before = text.len();
+        if xml {
+            let _ = writeln!(
+                text,
+                "<stateVector><EPOCH>{}</EPOCH><X>{x}</X><Y>{:.6}</Y><Z>{:.6}</Z><X_DOT>{:.9}</X_DOT><Y_DOT>{:.9}</Y_DOT><Z_DOT>{:.9}</Z_DOT></stateVector>",
+                iso(start.add_s(t)),
+                v[1],
+                v[2],
+                v[3],
+                v[4],
+                v[5]
+            );
+        } else {
+            let _ = writeln!(
+                text,
+                "{} {x} {:.6} {:.6} {:.9} {:.9} {:.9}",
+                iso(start.add_s(t)),
+                v[1],
+                v[2],
+                v[3],
+                v[4],
+                v[5]
+            );
+        }
+        if i % 10 != 3 {
+            good_bytes += text.len() - before;
+            good += 1;
+        }
+    }
+    if xml {
+        text.push_str("</data></segment></body></oem>\n");
+    }
+    (text, good_bytes, good)
+}
+
+/// The OEM cases: load time (best of 3) and memory beside the input.
+fn one_oem(format: &str) {
+    let (text, good_bytes, good) = oem_text(format == "oem-xml");
+    let bytes = text.into_bytes();
+    let eop = passlane_orbit::EarthOrientation::default();
+    let peak_before_mb = support::max_rss_mb();
+    let mut best = f64::INFINITY;
+    let mut grown_mb = f64::NAN;
+    let mut loaded = (0usize, 0usize);
+    for run in 0..3 {
+        let t0 = Instant::now();
+        let (eph, diagnostics) = passlane_orbit::ephemeris::load_oem(&bytes, "bench-50mb", &eop);
+        best = best.min(t0.elapsed().as_secs_f64());
+        if run == 0 {
+            grown_mb = support::max_rss_mb() - peak_before_mb;
+        }
+        loaded = (
+            eph.map(|e| e.segments.iter().map(|s| s.node_count()).sum())
+                .unwrap_or(0),
+            diagnostics.len(),
+        );
+    }
+    let mb = bytes.len() as f64 / 1e6;
+    let good_mb = good_bytes as f64 / 1e6;
+    println!(
+        "loader {format:>8}: {mb:.1} MB, {good} good states, {} loaded, {} diagnostics kept; {best:.3} s (best of 3) = {:.0} MB/s; peak memory +{grown_mb:.1} MB beside the input = {:.2}× the good records ({good_mb:.1} MB)",
+        loaded.0,
+        loaded.1,
+        mb / best,
+        grown_mb / good_mb,
+    );
+}
+
 fn one(format: &str) {
+    if format.starts_with("oem") {
+        return one_oem(format);
+    }
     let (sets, tle) = fixture();
     let mut text = String::with_capacity(TARGET_BYTES + 64 * 1024);
     let (open, close) = match format {

@@ -612,3 +612,80 @@ fn xml_entities_are_never_expanded_and_a_break_keeps_the_records_before_it() {
     );
     assert_eq!(r.sets.len(), 1, "{:?}", r.diagnostics);
 }
+
+/// An XML OEM of `n` states 10 s apart (circular orbit), the state at
+/// `bad` (if any) with a non-number in X.
+fn oem_xml(n: usize, bad: Option<usize>) -> String {
+    let start = passlane_orbit::UtcTime::parse_iso("2026-12-01T00:00:00Z").unwrap();
+    let iso = |t: passlane_orbit::UtcTime| t.to_iso_ms().trim_end_matches('Z').to_string();
+    let mut s = format!(
+        "<?xml version=\"1.0\"?>\n<oem id=\"CCSDS_OEM_VERS\" version=\"3.0\">\n<header><CREATION_DATE>2026-11-30T12:00:00</CREATION_DATE><ORIGINATOR>TEST</ORIGINATOR></header>\n<body><segment><metadata>\n<OBJECT_NAME>X</OBJECT_NAME>\n<OBJECT_ID>2026-901A</OBJECT_ID>\n<CENTER_NAME>EARTH</CENTER_NAME>\n<REF_FRAME>TEME</REF_FRAME>\n<TIME_SYSTEM>UTC</TIME_SYSTEM>\n<START_TIME>{}</START_TIME>\n<STOP_TIME>{}</STOP_TIME>\n<INTERPOLATION>LAGRANGE</INTERPOLATION>\n<INTERPOLATION_DEGREE>5</INTERPOLATION_DEGREE>\n</metadata><data>\n",
+        iso(start),
+        iso(start.add_s(10.0 * (n - 1) as f64))
+    );
+    let w = 7.546 / 7000.0;
+    for i in 0..n {
+        let t = 10.0 * i as f64;
+        let (sn, c) = (w * t).sin_cos();
+        let x = if Some(i) == bad {
+            "x".to_string()
+        } else {
+            format!("{:.6}", 7000.0 * c)
+        };
+        s.push_str(&format!(
+            "<stateVector><EPOCH>{}</EPOCH><X>{x}</X><Y>{:.6}</Y><Z>0</Z><X_DOT>{:.9}</X_DOT><Y_DOT>{:.9}</Y_DOT><Z_DOT>0</Z_DOT></stateVector>\n",
+            iso(start.add_s(t)),
+            7000.0 * sn,
+            -7.546 * sn,
+            7.546 * c
+        ));
+    }
+    s.push_str("</data></segment></body></oem>\n");
+    s
+}
+
+#[test]
+fn a_large_xml_oem_reads_in_linear_time_with_lines_counted() {
+    // 20,000 states (5 MB): the tree reader asked for the line of every
+    // state from the start of the text (quadratic: a 50 MB file ran for
+    // more than nine minutes). The bad state's line is still exact.
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    let text = oem_xml(20_000, Some(15_000));
+    let (eph, d) = load_oem(text.as_bytes(), "big.xml", &eop);
+    let eph = eph.unwrap();
+    assert_eq!(eph.segments[0].node_count(), 19_999);
+    let errors: Vec<_> = d
+        .iter()
+        .filter(|x| x.message.contains("not a finite"))
+        .collect();
+    assert_eq!(errors.len(), 1, "{d:?}");
+    // The first state is on line 15 (declaration, <oem>, header, body,
+    // nine metadata lines, <data>).
+    assert_eq!(errors[0].line, 15 + 15_000, "{}", errors[0]);
+}
+
+#[test]
+fn an_xml_oem_never_expands_a_dtd_entity() {
+    use passlane_orbit::ephemeris::load_oem;
+    let eop = passlane_orbit::EarthOrientation::default();
+    let text = oem_xml(10, None)
+        .replacen(
+            "<?xml version=\"1.0\"?>\n",
+            "<?xml version=\"1.0\"?><!DOCTYPE oem [<!ENTITY e \"7000\">]>",
+            1,
+        )
+        .replacen("<X>7000.000000</X>", "<X>&e;</X>", 1);
+    assert!(text.contains("&e;"));
+    let (eph, d) = load_oem(text.as_bytes(), "entity.xml", &eop);
+    assert!(eph.is_none());
+    assert!(d[0].message.contains("&e;"), "{d:?}");
+    // The predefined entities and character references are text.
+    let refs = oem_xml(10, None).replacen(
+        "<OBJECT_NAME>X</OBJECT_NAME>",
+        "<OBJECT_NAME>A&amp;B&#x43;</OBJECT_NAME>",
+        1,
+    );
+    let (eph, d) = load_oem(refs.as_bytes(), "refs.xml", &eop);
+    assert!(eph.is_some(), "{d:?}");
+}

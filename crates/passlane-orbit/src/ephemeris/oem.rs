@@ -444,7 +444,8 @@ fn build_segment(rs: RawSegment, sink: &mut Sink<'_>, eop: &EarthOrientation) ->
     let mut times = Vec::with_capacity(rs.data.len());
     let mut states: Vec<[f64; 6]> = Vec::with_capacity(rs.data.len());
     let margin_s = 1e-3;
-    for (line, fields) in &rs.data {
+    for (line, text) in &rs.data {
+        let fields: Vec<&str> = text.split_whitespace().collect();
         if fields.len() != 7 && fields.len() != 10 {
             sink.error(*line, "data line", format!("{} fields, expected the epoch and 6 numbers (or 9 with accelerations), 502.0-B-3 5.2.4.1; line skipped", fields.len()));
             continue;
@@ -452,7 +453,7 @@ fn build_segment(rs: RawSegment, sink: &mut Sink<'_>, eop: &EarthOrientation) ->
         let t = match to_utc(
             &Kv {
                 key: "EPOCH".into(),
-                value: fields[0].clone(),
+                value: fields[0].to_string(),
                 line: *line,
             },
             &system,

@@ -3,6 +3,10 @@
 //! lines and covariance blocks, each with its line), checked and converted
 //! afterwards by [`super::oem`].
 
+use std::borrow::Cow;
+
+use quick_xml::events::{BytesRef, Event};
+
 use super::oem::{COV_XML_KEYS, OemFormat};
 use crate::elements::{Diagnostic, MAX_DIAGNOSTICS_KEPT, Severity, thousands};
 
@@ -22,18 +26,20 @@ pub(super) struct RawCov {
 }
 
 #[derive(Debug, Default)]
-pub(super) struct RawSegment {
+pub(super) struct RawSegment<'t> {
     pub(super) line: usize,
     pub(super) meta: Vec<Kv>,
-    /// Data lines: line number and the fields (epoch first).
-    pub(super) data: Vec<(usize, Vec<String>)>,
+    /// Data lines: line number and the fields (epoch first) separated by
+    /// blanks; a KVN line is borrowed from the text (memory follows the
+    /// states, not a string per field).
+    pub(super) data: Vec<(usize, Cow<'t, str>)>,
     pub(super) covs: Vec<RawCov>,
 }
 
-pub(super) struct RawOem {
+pub(super) struct RawOem<'t> {
     pub(super) format: OemFormat,
     pub(super) header: Vec<Kv>,
-    pub(super) segments: Vec<RawSegment>,
+    pub(super) segments: Vec<RawSegment<'t>>,
 }
 
 /// Collects findings: the first [`MAX_DIAGNOSTICS_KEPT`] in full, the rest
@@ -123,7 +129,7 @@ pub(super) fn excerpt(text: &str) -> String {
     }
 }
 
-pub(super) fn read_kvn(text: &str, sink: &mut Sink<'_>) -> Option<RawOem> {
+pub(super) fn read_kvn<'t>(text: &'t str, sink: &mut Sink<'_>) -> Option<RawOem<'t>> {
     #[derive(PartialEq)]
     enum Mode {
         Header,
@@ -193,10 +199,7 @@ pub(super) fn read_kvn(text: &str, sink: &mut Sink<'_>) -> Option<RawOem> {
         match (&mode, kv, raw.segments.last_mut()) {
             (Mode::Header, Some(kv), _) => raw.header.push(kv),
             (Mode::Meta, Some(kv), Some(seg)) => seg.meta.push(kv),
-            (Mode::Data, None, Some(seg)) => {
-                seg.data
-                    .push((n, l.split_whitespace().map(str::to_string).collect()));
-            }
+            (Mode::Data, None, Some(seg)) => seg.data.push((n, Cow::Borrowed(l))),
             (Mode::Cov, Some(kv), Some(seg)) if kv.key == "EPOCH" => seg.covs.push(RawCov {
                 line: n,
                 epoch: Some(kv),
@@ -244,128 +247,347 @@ pub(super) fn read_kvn(text: &str, sink: &mut Sink<'_>) -> Option<RawOem> {
     Some(raw)
 }
 
-fn elements<'a, 'i>(n: roxmltree::Node<'a, 'i>) -> Vec<roxmltree::Node<'a, 'i>> {
-    n.children().filter(|c| c.is_element()).collect()
+/// Where the XML reader is: the elements that matter, by their place.
+#[derive(Clone, Copy, PartialEq)]
+enum Place {
+    Oem,
+    Header,
+    Body,
+    Segment,
+    Metadata,
+    Data,
+    State,
+    Covariance,
+    /// A keyword whose text is being read.
+    Value,
+    /// Inside an element reported or ignored: its content is skipped.
+    Skipped,
 }
 
-pub(super) fn read_xml(text: &str, sink: &mut Sink<'_>) -> Option<RawOem> {
-    let doc = match roxmltree::Document::parse(text) {
-        Ok(d) => d,
-        Err(e) => {
-            sink.error(
-                e.pos().row as usize,
-                "",
-                format!(
-                    "not well-formed XML (column {}): {e}; nothing loaded",
-                    e.pos().col
-                ),
-            );
-            return None;
+/// What a value being read belongs to.
+#[derive(Clone, Copy, PartialEq)]
+enum ValueOf {
+    Header,
+    Metadata,
+    State,
+    CovarianceKey,
+    CovarianceValue,
+}
+
+/// Reads an XML OEM as a stream of tags (quick-xml): memory follows the
+/// states, and lines are counted forwards as the reader advances, so the
+/// time is linear in the file's size. Only XML's five predefined entities
+/// and character references are read; a DTD entity is never expanded.
+pub(super) fn read_xml<'t>(text: &'t str, sink: &mut Sink<'_>) -> Option<RawOem<'t>> {
+    let bytes = text.as_bytes();
+    let mut cursor = (0usize, 1usize);
+    let mut line_of = |offset: u64| -> usize {
+        let offset = usize::try_from(offset)
+            .unwrap_or(usize::MAX)
+            .min(bytes.len());
+        let (from, mut line) = if offset >= cursor.0 { cursor } else { (0, 1) };
+        line += bytes[from..offset].iter().filter(|&&b| b == b'\n').count();
+        cursor = (offset, line);
+        line
+    };
+    let mut reader = quick_xml::Reader::from_str(text);
+    let mut raw = RawOem {
+        format: OemFormat::Xml,
+        header: Vec::new(),
+        segments: Vec::new(),
+    };
+    // The place of every open element (the stack of the document's path).
+    let mut stack: Vec<Place> = Vec::new();
+    // The value being read: its key, line, text and owner.
+    let mut value: Option<(String, usize, String, ValueOf)> = None;
+    let mut fields = String::new();
+    let mut state_line = 0usize;
+    loop {
+        let at = reader.buffer_position();
+        let event = match reader.read_event() {
+            Ok(e) => e,
+            Err(e) => {
+                let line = line_of(reader.error_position());
+                sink.error(
+                    line,
+                    "",
+                    format!("not well-formed XML: {e}; nothing loaded"),
+                );
+                return None;
+            }
+        };
+        match event {
+            Event::Start(ref e) | Event::Empty(ref e) => {
+                let empty = matches!(event, Event::Empty(_));
+                let local = e.local_name();
+                let name: &str = local.as_ref();
+                let line = line_of(at);
+                let parent = stack.last().copied();
+                let place = match parent {
+                    None => {
+                        if name != "oem" {
+                            sink.error(
+                                line,
+                                name,
+                                "the root element of an XML OEM is <oem>; nothing loaded",
+                            );
+                            return None;
+                        }
+                        let version = e
+                            .try_get_attribute("version")
+                            .ok()
+                            .flatten()
+                            .and_then(|a| {
+                                a.normalized_value(quick_xml::XmlVersion::Implicit1_0)
+                                    .ok()
+                                    .map(|v| v.into_owned())
+                            })
+                            .unwrap_or_default();
+                        raw.header.push(Kv {
+                            key: "CCSDS_OEM_VERS".to_string(),
+                            value: version,
+                            line,
+                        });
+                        Place::Oem
+                    }
+                    Some(Place::Oem) => match name {
+                        "header" => Place::Header,
+                        "body" => Place::Body,
+                        _ => {
+                            sink.error(line, name, "not an element of <oem>");
+                            Place::Skipped
+                        }
+                    },
+                    Some(Place::Header) | Some(Place::Metadata) if name == "COMMENT" => {
+                        Place::Skipped
+                    }
+                    Some(p @ (Place::Header | Place::Metadata)) => {
+                        let owner = if p == Place::Header {
+                            ValueOf::Header
+                        } else {
+                            ValueOf::Metadata
+                        };
+                        value = Some((name.to_string(), line, String::new(), owner));
+                        Place::Value
+                    }
+                    Some(Place::Body) => {
+                        if name == "segment" {
+                            raw.segments.push(RawSegment {
+                                line,
+                                ..Default::default()
+                            });
+                            Place::Segment
+                        } else {
+                            sink.error(line, name, "<body> holds <segment> elements only");
+                            Place::Skipped
+                        }
+                    }
+                    Some(Place::Segment) => match name {
+                        "metadata" => Place::Metadata,
+                        "data" => Place::Data,
+                        _ => {
+                            sink.error(line, name, "not an element of <segment>");
+                            Place::Skipped
+                        }
+                    },
+                    Some(Place::Data) => match name {
+                        "COMMENT" => Place::Skipped,
+                        "stateVector" => {
+                            fields.clear();
+                            state_line = line;
+                            Place::State
+                        }
+                        "covarianceMatrix" => {
+                            if let Some(seg) = raw.segments.last_mut() {
+                                seg.covs.push(RawCov {
+                                    line,
+                                    ..Default::default()
+                                });
+                            }
+                            Place::Covariance
+                        }
+                        _ => {
+                            sink.error(line, name, "not an element of <data>");
+                            Place::Skipped
+                        }
+                    },
+                    Some(Place::State) => {
+                        value = Some((name.to_string(), line, String::new(), ValueOf::State));
+                        Place::Value
+                    }
+                    Some(Place::Covariance) => match name {
+                        "COMMENT" => Place::Skipped,
+                        "EPOCH" | "COV_REF_FRAME" => {
+                            value = Some((
+                                name.to_string(),
+                                line,
+                                String::new(),
+                                ValueOf::CovarianceKey,
+                            ));
+                            Place::Value
+                        }
+                        _ if COV_XML_KEYS.contains(&name) => {
+                            value = Some((
+                                name.to_string(),
+                                line,
+                                String::new(),
+                                ValueOf::CovarianceValue,
+                            ));
+                            Place::Value
+                        }
+                        _ => {
+                            sink.error(
+                                line,
+                                name,
+                                "not a covariance element (502.0-B-3 Table 5-4)",
+                            );
+                            Place::Skipped
+                        }
+                    },
+                    // Elements inside a value or a skipped element: their
+                    // text is not the value's (as a tree reader taking only
+                    // the value's own text would have it).
+                    Some(Place::Value) | Some(Place::Skipped) => Place::Skipped,
+                };
+                stack.push(place);
+                if empty {
+                    close(&mut stack, &mut value, &mut fields, state_line, &mut raw);
+                }
+            }
+            Event::End(_) => close(&mut stack, &mut value, &mut fields, state_line, &mut raw),
+            Event::Text(t) => {
+                if stack.last() == Some(&Place::Value)
+                    && let Some(v) = value.as_mut()
+                {
+                    v.2.push_str(&t.xml10_content());
+                }
+            }
+            Event::CData(c) => {
+                if stack.last() == Some(&Place::Value)
+                    && let Some(v) = value.as_mut()
+                {
+                    v.2.push_str(&c.xml10_content());
+                }
+            }
+            Event::GeneralRef(r) => {
+                if stack.last() == Some(&Place::Value)
+                    && let Some(v) = value.as_mut()
+                {
+                    match resolve_reference(&r) {
+                        Some(s) => v.2.push_str(&s),
+                        None => {
+                            sink.error(
+                                line_of(at),
+                                &v.0,
+                                format!(
+                                    "the entity reference &{}; is not one of XML's predefined five; nothing loaded",
+                                    excerpt(&r.xml10_content())
+                                ),
+                            );
+                            return None;
+                        }
+                    }
+                }
+            }
+            Event::Eof => break,
+            _ => {}
         }
-    };
-    let line = |n: roxmltree::Node<'_, '_>| doc.text_pos_at(n.range().start).row as usize;
-    let text_of = |n: roxmltree::Node<'_, '_>| -> String {
-        n.children()
-            .filter(|c| c.is_text())
-            .filter_map(|c| c.text())
-            .collect::<String>()
-            .trim()
-            .to_string()
-    };
-    let kv = |n: roxmltree::Node<'_, '_>| Kv {
-        key: n.tag_name().name().to_string(),
-        value: text_of(n),
-        line: line(n),
-    };
-    let root = doc.root_element();
-    if root.tag_name().name() != "oem" {
+    }
+    if stack.is_empty() && raw.header.is_empty() {
+        sink.error(1, "", "no <oem> element in this XML; nothing loaded");
+        return None;
+    }
+    if !stack.is_empty() {
         sink.error(
-            line(root),
-            root.tag_name().name(),
-            "the root element of an XML OEM is <oem>; nothing loaded",
+            line_of(bytes.len() as u64),
+            "",
+            "not well-formed XML: the file ends before its open elements are closed; nothing loaded",
         );
         return None;
     }
-    let mut raw = RawOem {
-        format: OemFormat::Xml,
-        header: vec![Kv {
-            key: "CCSDS_OEM_VERS".to_string(),
-            value: root.attribute("version").unwrap_or("").to_string(),
-            line: line(root),
-        }],
-        segments: Vec::new(),
+    Some(raw)
+}
+
+/// Ends the innermost open element: a finished value goes to its owner, a
+/// finished state vector becomes one data line.
+fn close(
+    stack: &mut Vec<Place>,
+    value: &mut Option<(String, usize, String, ValueOf)>,
+    fields: &mut String,
+    state_line: usize,
+    raw: &mut RawOem<'_>,
+) {
+    let Some(place) = stack.pop() else {
+        return;
     };
-    for part in elements(root) {
-        match part.tag_name().name() {
-            "header" => raw.header.extend(
-                elements(part)
-                    .into_iter()
-                    .filter(|e| e.tag_name().name() != "COMMENT")
-                    .map(kv),
-            ),
-            "body" => {
-                for seg in elements(part) {
-                    if seg.tag_name().name() != "segment" {
-                        sink.error(
-                            line(seg),
-                            seg.tag_name().name(),
-                            "<body> holds <segment> elements only",
-                        );
-                        continue;
+    match place {
+        Place::Value => {
+            let Some((key, line, text, owner)) = value.take() else {
+                return;
+            };
+            let text = text.trim().to_string();
+            let seg = raw.segments.last_mut();
+            match owner {
+                ValueOf::Header => raw.header.push(Kv {
+                    key,
+                    value: text,
+                    line,
+                }),
+                ValueOf::Metadata => {
+                    if let Some(seg) = seg {
+                        seg.meta.push(Kv {
+                            key,
+                            value: text,
+                            line,
+                        });
                     }
-                    let mut rs = RawSegment {
-                        line: line(seg),
-                        ..Default::default()
-                    };
-                    for block in elements(seg) {
-                        match block.tag_name().name() {
-                            "metadata" => rs.meta.extend(
-                                elements(block)
-                                    .into_iter()
-                                    .filter(|e| e.tag_name().name() != "COMMENT")
-                                    .map(kv),
-                            ),
-                            "data" => {
-                                for item in elements(block) {
-                                    match item.tag_name().name() {
-                                        "COMMENT" => {}
-                                        "stateVector" => {
-                                            let fields =
-                                                elements(item).into_iter().map(text_of).collect();
-                                            rs.data.push((line(item), fields));
-                                        }
-                                        "covarianceMatrix" => {
-                                            let mut c = RawCov {
-                                                line: line(item),
-                                                ..Default::default()
-                                            };
-                                            for e in elements(item) {
-                                                match e.tag_name().name() {
-                                                    "COMMENT" => {}
-                                                    "EPOCH" => c.epoch = Some(kv(e)),
-                                                    "COV_REF_FRAME" => c.frame = Some(kv(e)),
-                                                    name if COV_XML_KEYS.contains(&name) => {
-                                                        c.values.push((line(e), text_of(e)))
-                                                    }
-                                                    name => sink.error(line(e), name, "not a covariance element (502.0-B-3 Table 5-4)"),
-                                                }
-                                            }
-                                            rs.covs.push(c);
-                                        }
-                                        name => {
-                                            sink.error(line(item), name, "not an element of <data>")
-                                        }
-                                    }
-                                }
-                            }
-                            name => sink.error(line(block), name, "not an element of <segment>"),
+                }
+                ValueOf::State => {
+                    if !fields.is_empty() {
+                        fields.push(' ');
+                    }
+                    // An empty value still counts as a field (the checks
+                    // then name it), so it is written as a lone marker.
+                    fields.push_str(if text.is_empty() { "\u{2205}" } else { &text });
+                }
+                ValueOf::CovarianceKey => {
+                    if let Some(c) = seg.and_then(|s| s.covs.last_mut()) {
+                        let kv = Kv {
+                            key: key.clone(),
+                            value: text,
+                            line,
+                        };
+                        if key == "EPOCH" {
+                            c.epoch = Some(kv);
+                        } else {
+                            c.frame = Some(kv);
                         }
                     }
-                    raw.segments.push(rs);
+                }
+                ValueOf::CovarianceValue => {
+                    if let Some(c) = seg.and_then(|s| s.covs.last_mut()) {
+                        c.values.push((line, text));
+                    }
                 }
             }
-            name => sink.error(line(part), name, "not an element of <oem>"),
         }
+        Place::State => {
+            if let Some(seg) = raw.segments.last_mut() {
+                seg.data
+                    .push((state_line, Cow::Owned(std::mem::take(fields))));
+            }
+        }
+        _ => {}
     }
-    Some(raw)
+}
+
+/// A character reference or one of the five predefined entities.
+fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
+    match r.resolve_char_ref() {
+        Ok(Some(c)) => Some(c.to_string()),
+        Ok(None) => {
+            quick_xml::escape::resolve_predefined_entity(&r.xml10_content()).map(str::to_string)
+        }
+        Err(_) => None,
+    }
 }

@@ -185,7 +185,7 @@ impl OrbitBounds {
         // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
         // the same ω·Δt product for faster or slower orbits.
         let omega_p = vp / rp;
-        let step_s = (60.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
+        let step_s = (120.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
         OrbitBounds {
             step_s,
             max_radius_km: ra,
