@@ -210,11 +210,25 @@ type Node<'a, 'i> = roxmltree::Node<'a, 'i>;
 struct XmlReader<'a, 'i> {
     ctx: &'a Ctx<'a>,
     doc: &'a roxmltree::Document<'i>,
+    /// The last (byte offset, line) asked about: lines are counted forwards
+    /// from it (nodes are mostly asked about in document order), so the
+    /// reader stays linear. `Document::text_pos_at` counts from the start of
+    /// the text on every call: 400,000 comments in a 10 MB message took
+    /// four and a half minutes.
+    cursor: std::cell::Cell<(usize, usize)>,
 }
 
 impl<'a, 'i> XmlReader<'a, 'i> {
     fn line(&self, n: Node<'_, '_>) -> usize {
-        self.doc.text_pos_at(n.range().start).row as usize
+        let text = self.doc.input_text().as_bytes();
+        let offset = n.range().start.min(text.len());
+        let (from, mut line) = match self.cursor.get() {
+            (o, l) if o <= offset => (o, l),
+            _ => (0, 1),
+        };
+        line += text[from..offset].iter().filter(|&&b| b == b'\n').count();
+        self.cursor.set((offset, line));
+        line
     }
 
     fn elements(n: Node<'a, 'i>) -> impl Iterator<Item = Node<'a, 'i>> {
@@ -356,6 +370,7 @@ impl Cdm {
         let r = XmlReader {
             ctx: &ctx,
             doc: &doc,
+            cursor: std::cell::Cell::new((0, 1)),
         };
         let root = doc.root_element();
         let root_line = r.line(root);
