@@ -8,10 +8,9 @@
 //!    half-angle λmax for the orbit's highest radius and the station's lowest
 //!    horizon), it jumps ahead by (λ − λmax) divided by an upper bound on how
 //!    fast λ can shrink; it cannot miss a pass because λ cannot reach λmax sooner.
-//! 3. Near a station it samples at a step chosen from the orbit (about 120 s
-//!    in LEO), and in between it interpolates the Earth-fixed state with a
-//!    cubic Hermite polynomial through position and velocity (~6 m in LEO;
-//!    the interpolant only brackets what step 4 puts on direct SGP4).
+//! 3. Near a station it samples at a step chosen from the orbit (about 60 s in
+//!    LEO), and in between it interpolates the Earth-fixed state with a cubic
+//!    Hermite polynomial through position and velocity (sub-metre in LEO).
 //! 4. Every local maximum of the horizon clearance among the samples is refined
 //!    by a golden-section search, so a grazing pass shorter than a step is found;
 //!    every sign change is refined to 0.1 ms by Brent's method on the

