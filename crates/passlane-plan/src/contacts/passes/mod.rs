@@ -414,22 +414,34 @@ fn scan_segment(
         if !reachable_at.iter().any(|&r| r) {
             continue;
         }
-        let f: Vec<f64> = track
+        // Where the clearance is known: the samples, and for a station with
+        // a mask the instants the azimuth crosses a corner of the horizon,
+        // so that between two of these points the clearance is smooth and
+        // a dip below the mask shows as a local minimum among them (without
+        // the corners, a dip of a minute between two samples was missed and
+        // two passes reported as one).
+        let mut base: Vec<(f64, f64, bool)> = track
             .states
             .iter()
-            .map(|s| st.clearance(&s.position_km))
+            .zip(&reachable_at)
+            .enumerate()
+            .map(|(i, (s, &r))| (track.time(i), st.clearance(&s.position_km), r))
             .collect();
-        // Points where the clearance is known: samples plus refined extrema.
-        let mut points: Vec<(f64, f64)> = (0..n).map(|i| (track.time(i), f[i])).collect();
-        for i in 1..n - 1 {
+        if st.has_mask {
+            base.extend(corner_crossings(st, track, &reachable_at));
+            base.sort_by(|a, b| a.0.total_cmp(&b.0));
+        }
+        let f: Vec<f64> = base.iter().map(|b| b.1).collect();
+        let mut points: Vec<(f64, f64)> = base.iter().map(|b| (b.0, b.1)).collect();
+        for i in 1..base.len().saturating_sub(1) {
             let is_max = f[i] >= f[i - 1] && f[i] >= f[i + 1];
             let is_min = f[i] <= f[i - 1] && f[i] <= f[i + 1];
-            let reachable = reachable_at[i - 1] || reachable_at[i] || reachable_at[i + 1];
+            let reachable = base[i - 1].2 || base[i].2 || base[i + 1].2;
             if is_max && f[i] <= 0.0 && reachable {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.at(t).position_km),
-                    track.time(i - 1),
-                    track.time(i + 1),
+                    base[i - 1].0,
+                    base[i + 1].0,
                     true,
                 );
                 if v > 0.0 {
@@ -438,8 +450,8 @@ fn scan_segment(
             } else if is_min && f[i] >= 0.0 {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.at(t).position_km),
-                    track.time(i - 1),
-                    track.time(i + 1),
+                    base[i - 1].0,
+                    base[i + 1].0,
                     false,
                 );
                 if v < 0.0 {
@@ -489,6 +501,49 @@ fn scan_segment(
             ));
         }
     }
+}
+
+/// The instants (with the clearance there) at which the satellite's azimuth
+/// from a masked station crosses a corner of its horizon, between samples
+/// where the satellite could be near the horizon (below the highest horizon
+/// at either end; above it the mask cannot matter, and there the azimuth can
+/// swing fast near the zenith). Each is found to 1 ms on the interpolant.
+fn corner_crossings(
+    st: &PreparedStation,
+    track: &Track,
+    reachable_at: &[bool],
+) -> Vec<(f64, f64, bool)> {
+    let wrap = |d: f64| (d + 180.0).rem_euclid(360.0) - 180.0;
+    let sin_top = st.highest_horizon_deg.to_radians().sin();
+    let az: Vec<f64> = track
+        .states
+        .iter()
+        .map(|s| st.azimuth_deg(&s.position_km))
+        .collect();
+    let low: Vec<bool> = track
+        .states
+        .iter()
+        .map(|s| st.site.sin_elevation(&s.position_km) <= sin_top)
+        .collect();
+    let mut out = Vec::new();
+    for i in 0..track.times_s.len().saturating_sub(1) {
+        if !(reachable_at[i] || reachable_at[i + 1]) || !(low[i] || low[i + 1]) {
+            continue;
+        }
+        let (ta, tb) = (track.time(i), track.time(i + 1));
+        for &corner in &st.corners_deg {
+            let (da, db) = (wrap(az[i] - corner), wrap(az[i + 1] - corner));
+            // A sign change through the corner itself, not through the
+            // opposite azimuth (where the difference jumps by 360°).
+            if (da < 0.0) == (db < 0.0) || (db - da).abs() >= 180.0 {
+                continue;
+            }
+            let g = |t: f64| wrap(st.azimuth_deg(&track.at(t).position_km) - corner);
+            let t = brent_root(g, ta, tb, da, db, 1e-3);
+            out.push((t, st.clearance(&track.at(t).position_km), true));
+        }
+    }
+    out
 }
 
 /// Moves a horizon crossing found on the interpolated track onto direct SGP4:

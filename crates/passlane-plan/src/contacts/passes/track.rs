@@ -21,6 +21,13 @@ pub(super) struct PreparedStation {
     pub(super) lowest_horizon_deg: f64,
     pub(super) has_mask: bool,
     pub(super) sin_min_elevation: f64,
+    /// Azimuths (deg) where the effective horizon has a corner: the mask's
+    /// points, and where a mask segment crosses the minimum elevation.
+    /// Between two corners the horizon is linear in azimuth, so the
+    /// clearance is smooth in time.
+    pub(super) corners_deg: Vec<f64>,
+    /// The highest effective horizon, deg: above it the mask cannot matter.
+    pub(super) highest_horizon_deg: f64,
 }
 
 impl PreparedStation {
@@ -36,7 +43,24 @@ impl PreparedStation {
         station.normalise();
         let site = station.site();
         let r = norm(&site.position_km);
+        let mask = &station.horizon_mask;
+        let mut corners_deg: Vec<f64> = mask.iter().map(|p| p.azimuth_deg).collect();
+        for (k, a) in mask.iter().enumerate() {
+            let b = &mask[(k + 1) % mask.len()];
+            let span = (b.azimuth_deg - a.azimuth_deg).rem_euclid(360.0);
+            let (ea, eb, m) = (a.elevation_deg, b.elevation_deg, station.min_elevation_deg);
+            if span > 0.0 && (ea - m) * (eb - m) < 0.0 {
+                let u = (m - ea) / (eb - ea);
+                corners_deg.push((a.azimuth_deg + u * span).rem_euclid(360.0));
+            }
+        }
+        let highest_horizon_deg = mask
+            .iter()
+            .map(|p| p.elevation_deg)
+            .fold(station.min_elevation_deg, f64::max);
         PreparedStation {
+            corners_deg,
+            highest_horizon_deg,
             index,
             up_geocentric: [
                 site.position_km[0] / r,
@@ -72,6 +96,12 @@ impl PreparedStation {
         }
         let az = e.atan2(n).to_degrees().rem_euclid(360.0);
         sin_el - self.station.horizon_deg(az).to_radians().sin()
+    }
+
+    /// Azimuth of an Earth-fixed position from the station, deg in [0, 360).
+    pub(super) fn azimuth_deg(&self, r_ecef: &Vec3) -> f64 {
+        let [e, n, _] = self.site.to_enu(&sub(r_ecef, &self.site.position_km));
+        e.atan2(n).to_degrees().rem_euclid(360.0)
     }
 
     /// Cosine of the Earth central angle between the station and a position.
@@ -185,7 +215,7 @@ impl OrbitBounds {
         // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
         // the same ω·Δt product for faster or slower orbits.
         let omega_p = vp / rp;
-        let step_s = (120.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
+        let step_s = (60.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
         OrbitBounds {
             step_s,
             max_radius_km: ra,
