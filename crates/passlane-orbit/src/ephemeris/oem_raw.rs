@@ -5,7 +5,7 @@
 
 use std::borrow::Cow;
 
-use quick_xml::events::{BytesRef, Event};
+use quick_xml::events::Event;
 
 use super::oem::{COV_XML_KEYS, OemFormat};
 use crate::elements::{Diagnostic, MAX_DIAGNOSTICS_KEPT, Severity, thousands};
@@ -279,17 +279,8 @@ enum ValueOf {
 /// time is linear in the file's size. Only XML's five predefined entities
 /// and character references are read; a DTD entity is never expanded.
 pub(super) fn read_xml<'t>(text: &'t str, sink: &mut Sink<'_>) -> Option<RawOem<'t>> {
-    let bytes = text.as_bytes();
-    let mut cursor = (0usize, 1usize);
-    let mut line_of = |offset: u64| -> usize {
-        let offset = usize::try_from(offset)
-            .unwrap_or(usize::MAX)
-            .min(bytes.len());
-        let (from, mut line) = if offset >= cursor.0 { cursor } else { (0, 1) };
-        line += bytes[from..offset].iter().filter(|&&b| b == b'\n').count();
-        cursor = (offset, line);
-        line
-    };
+    let mut lines = crate::xml::ForwardLines::new(text);
+    let mut line_of = |offset: u64| lines.line_at(offset);
     let mut reader = quick_xml::Reader::from_str(text);
     let mut raw = RawOem {
         format: OemFormat::Xml,
@@ -473,7 +464,7 @@ pub(super) fn read_xml<'t>(text: &'t str, sink: &mut Sink<'_>) -> Option<RawOem<
                 if stack.last() == Some(&Place::Value)
                     && let Some(v) = value.as_mut()
                 {
-                    match resolve_reference(&r) {
+                    match crate::xml::resolve_reference(&r) {
                         Some(s) => v.2.push_str(&s),
                         None => {
                             sink.error(
@@ -499,7 +490,7 @@ pub(super) fn read_xml<'t>(text: &'t str, sink: &mut Sink<'_>) -> Option<RawOem<
     }
     if !stack.is_empty() {
         sink.error(
-            line_of(bytes.len() as u64),
+            line_of(text.len() as u64),
             "",
             "not well-formed XML: the file ends before its open elements are closed; nothing loaded",
         );
@@ -578,16 +569,5 @@ fn close(
             }
         }
         _ => {}
-    }
-}
-
-/// A character reference or one of the five predefined entities.
-fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
-    match r.resolve_char_ref() {
-        Ok(Some(c)) => Some(c.to_string()),
-        Ok(None) => {
-            quick_xml::escape::resolve_predefined_entity(&r.xml10_content()).map(str::to_string)
-        }
-        Err(_) => None,
     }
 }

@@ -12,10 +12,10 @@
 //! five predefined ones and character references are refused in the record
 //! that uses them (no DTD entity is ever expanded).
 
-use quick_xml::events::{BytesRef, Event};
+use quick_xml::events::Event;
 
 use super::super::{LoadReport, Severity};
-use super::{KEYWORDS, Record, diag, line_at, note_if_empty, utf8};
+use super::{KEYWORDS, Record, diag, note_if_empty, utf8};
 
 /// The keyword element being read inside an `<omm>`.
 struct OpenKeyword {
@@ -41,17 +41,9 @@ pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadR
     let Some(text) = utf8(bytes, file, report) else {
         return;
     };
-    let bytes = text.as_bytes();
-    // Lines counted forwards from the last offset asked about (offsets only
-    // grow), so the whole file is scanned once.
-    let mut cursor = (0usize, 1usize);
-    let mut line_of = |offset: u64| {
-        let offset = usize::try_from(offset).unwrap_or(usize::MAX);
-        let from = if offset >= cursor.0 { cursor } else { (0, 1) };
-        let line = line_at(bytes, from, offset);
-        cursor = (offset.min(bytes.len()), line);
-        line
-    };
+    // Lines counted forwards as the reader advances: the file is scanned once.
+    let mut lines = crate::xml::ForwardLines::new(text);
+    let mut line_of = |offset: u64| lines.line_at(offset);
     let mut reader = quick_xml::Reader::from_str(text);
     let mut root: Option<String> = None;
     let mut found = false;
@@ -134,7 +126,7 @@ pub(in crate::elements) fn load_xml(bytes: &[u8], file: &str, report: &mut LoadR
                     && let Some(k) = m.keyword.as_mut()
                     && k.depth == depth
                 {
-                    match resolve_reference(&r) {
+                    match crate::xml::resolve_reference(&r) {
                         Some(s) => k.value.push_str(&s),
                         None => {
                             k.refused = true;
@@ -206,17 +198,5 @@ fn push_text(open: &mut Option<OpenMessage<'_>>, depth: usize, text: &str) {
         && !k.refused
     {
         k.value.push_str(text);
-    }
-}
-
-/// A character reference (`&#48;`, `&#x30;`) or one of the five predefined
-/// entities; `None` for anything else (a DTD entity is never expanded).
-fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
-    match r.resolve_char_ref() {
-        Ok(Some(c)) => Some(c.to_string()),
-        Ok(None) => {
-            quick_xml::escape::resolve_predefined_entity(&r.xml10_content()).map(str::to_string)
-        }
-        Err(_) => None,
     }
 }
