@@ -110,7 +110,7 @@ pub fn load_scenario(path: &Path) -> Result<Scenario> {
     let (scenario, warnings) =
         Scenario::from_json_with_warnings(&text, &path.display().to_string())?;
     for w in warnings {
-        eprintln!("warning: {w}");
+        say(format!("warning: {w}"));
     }
     Ok(scenario)
 }

@@ -106,10 +106,13 @@ fn walk(value: &Value, kind: Kind, path: &str, out: &mut Vec<UnknownKey>) {
         Value::Object(map) => {
             let known = kind.fields();
             for (key, v) in map {
+                // A key is text from the file: no control characters or
+                // terminal escapes reach a message.
+                let shown = passlane_orbit::text::clean(key, false);
                 let here = if path.is_empty() {
-                    key.clone()
+                    shown.into_owned()
                 } else {
-                    format!("{path}.{key}")
+                    format!("{path}.{shown}")
                 };
                 if known.contains(&key.as_str()) {
                     if let Some(child) = kind.child(key) {
@@ -232,6 +235,13 @@ mod tests {
                 "stations[0].lattitude_deg: unknown key, ignored (did you mean \"latitude_deg\"?)",
             ]
         );
+    }
+
+    #[test]
+    fn a_key_with_a_terminal_escape_is_shown_cleaned() {
+        let v: Value = serde_json::from_str("{\"format_version\":1,\"x\\u001b[31m\":1}").unwrap();
+        let found: Vec<String> = unknown_keys(&v).iter().map(|k| k.to_string()).collect();
+        assert_eq!(found, vec!["x?[31m: unknown key, ignored"]);
     }
 
     #[test]

@@ -484,6 +484,13 @@ pub fn screen_with_progress(
     let n_chunks = (span_s / chunk_s).ceil().max(1.0) as usize;
     let margin_km = objects.iter().map(|o| o.margin_km).fold(0.0, f64::max) * 2.0;
     let mut candidates: Vec<Candidate> = Vec::new();
+    // A small fleet against a catalog takes the direct scan (the same for
+    // every chunk: objects are not dropped between chunks).
+    let direct_scan = request.secondaries.is_some()
+        && objects.iter().filter(|o| o.group == 0).count() <= DIRECT_SCAN_MAX_FLEET;
+    let catalog: Vec<usize> = (0..objects.len())
+        .filter(|&j| direct_scan && objects[j].group == 1)
+        .collect();
     for c in 0..n_chunks {
         let chunk_start = request.start.add_s(c as f64 * chunk_s);
         let chunk_end = chunk_start.add_s(chunk_s).min(request.end);
@@ -518,13 +525,9 @@ pub fn screen_with_progress(
             v_pair_km_s: flat.pair_speed_km_s(request.secondaries.is_some()),
             window: (request.start, request.end),
         };
-        let n_fleet = objects.iter().filter(|o| o.group == 0).count();
-        let found: Vec<Vec<Candidate>> = if ctx.cross && n_fleet <= DIRECT_SCAN_MAX_FLEET {
+        let found: Vec<Vec<Candidate>> = if direct_scan {
             // Small fleet: each catalog object against the fleet directly,
             // skipping steps it cannot use, in parallel across objects.
-            let catalog: Vec<usize> = (0..objects.len())
-                .filter(|&j| objects[j].group == 1)
-                .collect();
             let track = ctx.fleet_track(n_steps, chunk_end);
             catalog
                 .par_chunks(64)
