@@ -16,6 +16,7 @@ use super::geometry::Seed;
 use super::hermite::{Sample, hermite};
 use super::objects::{Object, ObjectCursor};
 use crate::numeric::bracketed_root;
+use rayon::prelude::*;
 
 /// A local minimum of the interpolated distance, to be refined with SGP4.
 #[derive(Debug, Clone, Copy)]
@@ -118,9 +119,17 @@ impl Lane {
             return None;
         }
         // Truncation is the floor here: x is clamped to be non-negative.
-        let m = (x.max(0.0) as usize).min(valid - 2);
+        let mut m = (x.max(0.0) as usize).min(valid - 2);
         if !hot.covers(m) {
-            return None;
+            // Exactly at the end of a sampled slot (a step that ends on the
+            // slot's boundary is evaluated there), the interval before it
+            // holds the state; without this, pairs whose minimum is in the
+            // last step of a slot followed by a skipped one were lost.
+            if m > 0 && x - m as f64 <= 1e-9 && hot.covers(m - 1) {
+                m -= 1;
+            } else {
+                return None;
+            }
         }
         let n = self.objects.len();
         Some(hermite(
@@ -165,20 +174,33 @@ impl Flat {
                 group: o.group,
                 mask: oc.mask,
                 per_slot: oc.per_slot as u32,
-                speed_max_km_s: speed_bound_km_s(&oc.samples[..oc.valid], o.sample_step_s, |m| {
-                    oc.covers(m)
-                }),
+                speed_max_km_s: 0.0,
             });
         }
+        // Speed bounds, in parallel across objects.
+        flat.hot
+            .par_iter_mut()
+            .zip(cursors.par_iter().zip(objects.par_iter()))
+            .for_each(|(h, (oc, o))| {
+                h.speed_max_km_s =
+                    speed_bound_km_s(&oc.samples[..oc.valid], o.sample_step_s, |m| oc.covers(m));
+            });
         for (lane, &len) in flat.lanes.iter_mut().zip(&lengths) {
             let n = lane.objects.len();
             lane.samples = vec![Sample::default(); n * len];
-            for (slot, &i) in lane.objects.iter().enumerate() {
-                let oc = &cursors[i as usize];
-                for (m, smp) in oc.samples[..oc.valid].iter().enumerate() {
-                    lane.samples[m * n + slot] = *smp;
-                }
-            }
+            // Row m holds every object's sample m: rows are filled in parallel.
+            let objects = &lane.objects;
+            lane.samples
+                .par_chunks_mut(n.max(1))
+                .enumerate()
+                .for_each(|(m, row)| {
+                    for (slot, &i) in objects.iter().enumerate() {
+                        let oc = &cursors[i as usize];
+                        if m < oc.valid {
+                            row[slot] = oc.samples[m];
+                        }
+                    }
+                });
         }
         flat
     }
@@ -214,6 +236,89 @@ impl Flat {
     }
 }
 
+impl Flat {
+    /// Per activity slot of a chunk (`n_slots` of them), the catalog objects
+    /// (group 1) with samples in it.
+    pub(super) fn catalog_by_slot(&self, n_slots: usize) -> Vec<Vec<u32>> {
+        let mut out = vec![Vec::new(); n_slots];
+        for (j, h) in self.hot.iter().enumerate() {
+            if h.group != 1 || h.valid < 2 {
+                continue;
+            }
+            for (k, list) in out.iter_mut().enumerate() {
+                if h.per_slot == 0 || h.mask & (1 << k) != 0 {
+                    list.push(j as u32);
+                }
+            }
+        }
+        out
+    }
+
+    /// Whether object `i` has samples in activity slot `slot`.
+    #[inline]
+    fn sampled_in_slot(&self, i: usize, slot: usize) -> bool {
+        let h = &self.hot[i];
+        h.per_slot == 0 || (slot < 32 && h.mask & (1 << slot) != 0)
+    }
+}
+
+/// The fleet's interpolated positions at each hash step's midpoint of a
+/// chunk, for the predicted catalog objects' activity slots.
+pub(super) struct FleetMidpoints {
+    pub(super) n_fleet: usize,
+    /// Each step's midpoint and half length, s from the chunk start.
+    pub(super) steps: Vec<(f64, f64)>,
+    /// Fleet positions at step k's midpoint, by axis: x of fleet object f
+    /// at `positions[(3k + 0)·n_fleet + f]`, then y, then z (1e30 km where
+    /// it has no state, so it is never near).
+    pub(super) positions: Vec<f64>,
+    /// `velocities[k * n_fleet + f]`, km/s (zero where it has no state).
+    pub(super) velocities: Vec<[f64; 3]>,
+    /// Largest speed bound of the fleet's interpolants in the chunk, km/s.
+    pub(super) speed_max_km_s: f64,
+}
+
+impl Flat {
+    /// For a `Flat` of the fleet alone: its midpoints over a chunk of
+    /// `chunk_s` seconds cut into hash steps of `h_s`.
+    pub(super) fn fleet_midpoints(&self, chunk_s: f64, h_s: f64) -> FleetMidpoints {
+        let n_steps = (chunk_s / h_s).ceil() as usize;
+        let steps: Vec<(f64, f64)> = (0..n_steps)
+            .map(|k| {
+                let a = k as f64 * h_s;
+                let b = (a + h_s).min(chunk_s);
+                (0.5 * (a + b), 0.5 * (b - a))
+            })
+            .collect();
+        let n_fleet = self.hot.len();
+        let mut positions = vec![0.0; 3 * n_fleet * steps.len()];
+        let mut velocities = vec![[0.0; 3]; n_fleet * steps.len()];
+        for (k, &(mid, _)) in steps.iter().enumerate() {
+            for i in 0..n_fleet {
+                let s = self.at(i, mid);
+                let p = s.map_or([1e30; 3], |s| s.pos_km);
+                for (axis, x) in p.iter().enumerate() {
+                    positions[(3 * k + axis) * n_fleet + i] = *x;
+                }
+                velocities[k * n_fleet + i] = s.map_or([0.0; 3], |s| s.vel_km_s);
+            }
+        }
+        let speed_max_km_s = self
+            .hot
+            .iter()
+            .filter(|h| h.valid >= 2)
+            .map(|h| h.speed_max_km_s)
+            .fold(0.0, f64::max);
+        FleetMidpoints {
+            n_fleet,
+            steps,
+            positions,
+            velocities,
+            speed_max_km_s,
+        }
+    }
+}
+
 /// Largest speed of the Hermite interpolant through `samples`, km/s. Between
 /// two samples the interpolant's velocity is a quadratic whose Bézier control
 /// points are v₀, 3(r₁ − r₀)/h − v₀ − v₁ and v₁; the curve lies in their convex
@@ -246,6 +351,12 @@ pub(super) struct ChunkContext<'a> {
     pub(super) v_pair_km_s: f64,
     /// The screening window: a pair near one of its ends gets an edge seed.
     pub(super) window: (UtcTime, UtcTime),
+    /// Fleet against catalog: the fleet's size (it comes first), the
+    /// activity slot's length (s) and, per slot, the catalog objects sampled
+    /// in it ([`Flat::catalog_by_slot`]).
+    pub(super) n_fleet: usize,
+    pub(super) slot_s: f64,
+    pub(super) slot_catalog: Vec<Vec<u32>>,
 }
 
 /// The fleet's interpolated midpoint states at every hash step of a chunk,
@@ -306,11 +417,20 @@ impl ChunkContext<'_> {
         let half_s = 0.5 * b.s_since(a);
         let mid_dt = a.s_since(self.chunk_start) + half_s;
         scratch.states.clear();
-        scratch.states.resize(self.flat.hot.len(), None);
-        for lane in &self.flat.lanes {
-            let x = mid_dt / lane.step_s;
-            for (slot, &i) in lane.objects.iter().enumerate() {
-                scratch.states[i as usize] = lane.at(slot, &self.flat.hot[i as usize], x);
+        if self.cross {
+            // Fleet against catalog: only the fleet (the first objects)
+            // here; each catalog object sampled in this step's slot is
+            // interpolated in `fleet_step` itself.
+            scratch
+                .states
+                .extend((0..self.n_fleet).map(|i| self.flat.at(i, mid_dt)));
+        } else {
+            scratch.states.resize(self.flat.hot.len(), None);
+            for lane in &self.flat.lanes {
+                let x = mid_dt / lane.step_s;
+                for (slot, &i) in lane.objects.iter().enumerate() {
+                    scratch.states[i as usize] = lane.at(slot, &self.flat.hot[i as usize], x);
+                }
             }
         }
         // A pair closer than d at some time in the step is closer than
@@ -367,8 +487,8 @@ impl ChunkContext<'_> {
         // the map is emptied, not rebuilt, so its table is reused.
         entries.clear();
         let (mut r_min_km, mut r_max_km) = (f64::INFINITY, 0.0f64);
-        for (i, o) in self.flat.hot.iter().enumerate() {
-            let (0, Some(s)) = (o.group, &states[i]) else {
+        for (i, state) in states.iter().enumerate() {
+            let Some(s) = state else {
                 continue;
             };
             let r = norm(&s.pos_km);
@@ -401,8 +521,11 @@ impl ChunkContext<'_> {
         let band_lo_km = r_min_km - cell_km;
         let band_hi_km = r_max_km + cell_km;
         let (band_lo2, band_hi2) = (band_lo_km.max(0.0).powi(2), band_hi_km * band_hi_km);
-        for (j, o) in self.flat.hot.iter().enumerate() {
-            let (1, Some(s)) = (o.group, &states[j]) else {
+        let mid_dt = a.s_since(self.chunk_start) + step.half_s;
+        let slot = ((mid_dt / self.slot_s) as usize).min(self.slot_catalog.len().saturating_sub(1));
+        for &j in self.slot_catalog.get(slot).map_or(&[][..], Vec::as_slice) {
+            let j = j as usize;
+            let Some(s) = self.flat.at(j, mid_dt) else {
                 continue;
             };
             let r2 = dot(&s.pos_km, &s.pos_km);
@@ -411,7 +534,9 @@ impl ChunkContext<'_> {
             }
             if let Some(&(lo, hi)) = ranges.get(&key_of(cell_of(&s.pos_km, inv))) {
                 for &(_, i) in &entries[lo as usize..hi as usize] {
-                    self.pair(i as usize, j, a, b, reach_km, cell_km, states, out);
+                    if let Some(si) = &states[i as usize] {
+                        self.pair_at(i as usize, j, si, &s, a, b, reach_km, cell_km, out);
+                    }
                 }
             }
         }
@@ -442,9 +567,14 @@ impl ChunkContext<'_> {
         let cell_full_km = d + self.v_pair_km_s * 0.5 * h + 1e-3;
         let closing_per_step_km = (self.v_pair_km_s * h).max(1e-9);
         let mut out = Vec::new();
+        let steps_per_slot = ((self.slot_s / h).round() as usize).max(1);
         for &j in catalog {
             let mut k = 0;
             while k < n_steps {
+                if !self.flat.sampled_in_slot(j, k / steps_per_slot) {
+                    k = (k / steps_per_slot + 1) * steps_per_slot;
+                    continue;
+                }
                 let (a, b, half_s) = steps[k];
                 let Some(sj) = self.flat.at(j, a.s_since(self.chunk_start) + half_s) else {
                     k += 1;

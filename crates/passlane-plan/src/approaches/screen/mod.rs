@@ -152,6 +152,7 @@ mod geometry;
 mod grid;
 mod hermite;
 mod objects;
+mod predict;
 mod reference;
 
 use rayon::prelude::*;
@@ -161,6 +162,7 @@ use passlane_orbit::{ElementSet, PropagationError, StateTeme, UtcTime};
 
 pub use crate::encounter::RelativeGeometry;
 pub use geometry::{relative_geometry, ric_components};
+pub use predict::prediction_error_km;
 pub use reference::screen_brute_force;
 
 use crate::progress::Progress;
@@ -289,6 +291,11 @@ pub struct ScreeningSettings {
     pub interpolation_tolerance_km: f64,
     /// Padding of the perigee/apogee filter beyond the volume, km.
     pub filter_margin_km: f64,
+    /// Fleet vs catalog, for a fleet of at most 30: sample a near-circular
+    /// LEO catalog object with SGP4 only where its mean-element prediction
+    /// comes near the fleet ([`predict`]). `false` samples every catalog
+    /// object throughout (for comparisons; the same events, slower).
+    pub predict_catalog: bool,
 }
 
 impl Default for ScreeningSettings {
@@ -298,6 +305,7 @@ impl Default for ScreeningSettings {
             hash_step_s: 30.0,
             interpolation_tolerance_km: 0.5,
             filter_margin_km: 50.0,
+            predict_catalog: true,
         }
     }
 }
@@ -413,6 +421,8 @@ pub struct ScreeningStats {
     pub objects: usize,
     /// Objects the perigee/apogee filter removed before propagation.
     pub objects_filtered: usize,
+    /// Catalog objects sampled only where their prediction comes near the fleet.
+    pub objects_predicted: usize,
     pub sgp4_samples: u64,
     /// Pairs that passed the hash and linear-motion test.
     pub candidate_pairs: u64,
@@ -491,6 +501,15 @@ pub fn screen_with_progress(
     let catalog: Vec<usize> = (0..objects.len())
         .filter(|&j| direct_scan && objects[j].group == 1)
         .collect();
+    // A fleet of at most PREDICT_MAX_FLEET against a catalog: catalog objects
+    // the mean-element model covers are sampled only near the fleet. The
+    // fleet comes first among the objects.
+    let n_fleet = objects.iter().take_while(|o| o.group == 0).count();
+    let predicting =
+        settings.predict_catalog && request.secondaries.is_some() && n_fleet <= PREDICT_MAX_FLEET;
+    if predicting {
+        result.stats.objects_predicted = objects.iter().filter(|o| o.model.is_some()).count();
+    }
     for c in 0..n_chunks {
         let chunk_start = request.start.add_s(c as f64 * chunk_s);
         let chunk_end = chunk_start.add_s(chunk_s).min(request.end);
@@ -499,9 +518,33 @@ pub fn screen_with_progress(
         cursors
             .par_iter_mut()
             .zip(objects.par_iter())
+            .filter(|(_, o)| !(predicting && o.model.is_some()))
             .for_each(|(oc, o)| {
-                oc.fill(o, chunk_start, chunk_end, band_top_km, slot_s);
+                oc.fill(o, chunk_start, chunk_end, band_top_km, slot_s, u32::MAX);
             });
+        if predicting {
+            // The fleet is sampled; the predicted catalog objects only
+            // where they can come near it.
+            let fleet = Flat::build(&cursors[..n_fleet], &objects[..n_fleet])
+                .fleet_midpoints(chunk_end.s_since(chunk_start), h);
+            let reach_km = settings.volume.bounding_radius_km() + margin_km;
+            cursors
+                .par_iter_mut()
+                .zip(objects.par_iter())
+                .for_each(|(oc, o)| {
+                    if let Some(model) = &o.model {
+                        oc.fill_predicted(
+                            o,
+                            model,
+                            chunk_start,
+                            chunk_end,
+                            slot_s,
+                            &fleet,
+                            reach_km,
+                        );
+                    }
+                });
+        }
         for (oc, o) in cursors.iter_mut().zip(objects.iter()) {
             result.stats.sgp4_samples += oc.computed as u64;
             if let Some(e) = oc.error.take() {
@@ -524,6 +567,13 @@ pub fn screen_with_progress(
             cross: request.secondaries.is_some(),
             v_pair_km_s: flat.pair_speed_km_s(request.secondaries.is_some()),
             window: (request.start, request.end),
+            n_fleet,
+            slot_s,
+            slot_catalog: if request.secondaries.is_some() {
+                flat.catalog_by_slot(n_steps.div_ceil(SLOT_HASH_STEPS as usize))
+            } else {
+                Vec::new()
+            },
         };
         let found: Vec<Vec<Candidate>> = if direct_scan {
             // Small fleet: each catalog object against the fleet directly,
@@ -624,6 +674,10 @@ pub(crate) fn sort_by_tca(events: &mut [CloseApproach]) {
 /// of the longest sample step (64 hash steps), and 30,000 LEO objects need
 /// about 100 MB of samples in it.
 const CHUNK_HASH_STEPS: u32 = 256;
+
+/// Largest fleet for which catalog objects are sampled only where the
+/// mean-element prediction ([`predict`]) comes near the fleet.
+const PREDICT_MAX_FLEET: usize = 30;
 
 /// Largest fleet screened against a catalog by the direct scan
 /// ([`grid::ChunkContext::fleet_scan`]) rather than the per-step grid.

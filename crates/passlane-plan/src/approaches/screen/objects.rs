@@ -7,8 +7,13 @@ use passlane_orbit::frames::{cross, norm};
 use passlane_orbit::summary::semi_major_axis_km;
 use passlane_orbit::{Cursor, ElementSet, PropagationError, Propagator, UtcTime};
 
+use super::MAX_ACCELERATION_KM_S2;
 use super::geometry::ObjectId;
+use super::grid::FleetMidpoints;
 use super::hermite::{Sample, error_estimate_km};
+use super::predict::{
+    ChunkPlane, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM, StepTrack, wrap_pi,
+};
 use super::{MAX_SAMPLE_STEP_FACTOR, ObjectDiagnostic, ScreeningRequest, ScreeningSettings};
 
 /// An object ready to screen.
@@ -22,6 +27,9 @@ pub(crate) struct Object {
     pub sample_step_s: f64,
     /// Position error allowance of this object's interpolant over a hash step, km.
     pub margin_km: f64,
+    /// The mean-element model of a catalog object within its reach
+    /// ([`super::predict`]); used when the fleet is small enough.
+    pub model: Option<MeanModel>,
 }
 
 /// Builds propagators, shells and sample steps; objects that cannot start SGP4
@@ -63,6 +71,7 @@ pub(crate) fn prepare_objects(
                 shell_max_km,
                 sample_step_s,
                 margin_km,
+                model: if g == 1 { MeanModel::new(set) } else { None },
             });
         }
     }
@@ -244,6 +253,8 @@ pub(super) struct ObjectCursor<'a> {
     pub(super) per_slot: usize,
     pub(super) failed: bool,
     pub(super) error: Option<PropagationError>,
+    /// A predicted object's SGP4 position at the end of the last chunk.
+    end_anchor: Option<(UtcTime, [f64; 3])>,
 }
 
 impl<'a> ObjectCursor<'a> {
@@ -257,6 +268,7 @@ impl<'a> ObjectCursor<'a> {
             per_slot: 0,
             failed: false,
             error: None,
+            end_anchor: None,
         }
     }
 
@@ -264,7 +276,9 @@ impl<'a> ObjectCursor<'a> {
     /// object of a fleet-vs-catalog run whose orbit reaches above the fleet's
     /// band), only in the activity slots where the object can be inside the
     /// band: a slot is skipped when, from the SGP4 state at its start, the
-    /// object cannot come down to the band before the slot ends.
+    /// object cannot come down to the band before the slot ends. With
+    /// `allowed` other than all ones (a predicted catalog object, see
+    /// [`super::predict`]), only in the slots whose bit is set.
     pub(super) fn fill(
         &mut self,
         o: &Object,
@@ -272,6 +286,7 @@ impl<'a> ObjectCursor<'a> {
         chunk_end: UtcTime,
         band_top_km: Option<f64>,
         slot_s: f64,
+        allowed: u32,
     ) {
         self.samples.clear();
         self.valid = 0;
@@ -286,9 +301,11 @@ impl<'a> ObjectCursor<'a> {
             .max(1.0) as usize
             + 1;
         let per_slot = slot_s / o.sample_step_s;
-        let band = band_top_km
-            .filter(|&top| o.group == 1 && o.shell_max_km > top + 100.0 && per_slot.fract() == 0.0);
-        let Some(top) = band else {
+        let slotted = per_slot.fract() == 0.0;
+        let band =
+            band_top_km.filter(|&top| o.group == 1 && o.shell_max_km > top + 100.0 && slotted);
+        let restricted = allowed != u32::MAX && slotted;
+        if band.is_none() && !restricted {
             for m in 0..n {
                 if !self.push_sample(chunk_start.add_s(m as f64 * o.sample_step_s)) {
                     break;
@@ -297,7 +314,7 @@ impl<'a> ObjectCursor<'a> {
             self.valid = self.samples.len();
             self.computed = self.valid;
             return;
-        };
+        }
         let per_slot = per_slot as usize;
         self.per_slot = per_slot;
         self.mask = 0;
@@ -305,19 +322,32 @@ impl<'a> ObjectCursor<'a> {
         let mut k = 0;
         while k * per_slot < n - 1 {
             let (s0, s1) = (k * per_slot, ((k + 1) * per_slot).min(n - 1));
-            let t0 = chunk_start.add_s(s0 as f64 * o.sample_step_s);
-            let first = match self.cursor.state_at(t0) {
-                Ok(s) => s,
-                Err(e) => return self.fail(s0, e),
+            if allowed & (1 << k) == 0 {
+                k += 1;
+                continue;
+            }
+            // The slot before, when sampled, ends with this slot's first sample.
+            let first = if k > 0 && self.mask & (1 << (k - 1)) != 0 {
+                self.samples[s0]
+            } else {
+                let t0 = chunk_start.add_s(s0 as f64 * o.sample_step_s);
+                match self.cursor.state_at(t0) {
+                    Ok(s) => {
+                        self.computed += 1;
+                        Sample {
+                            pos_km: s.position_km,
+                            vel_km_s: s.velocity_km_s,
+                        }
+                    }
+                    Err(e) => return self.fail(s0, e),
+                }
             };
-            self.computed += 1;
             let horizon_s = (s1 - s0) as f64 * o.sample_step_s;
-            if can_reach_band(&first.position_km, &first.velocity_km_s, top, horizon_s) {
+            let reachable = band
+                .is_none_or(|top| can_reach_band(&first.pos_km, &first.vel_km_s, top, horizon_s));
+            if reachable {
                 self.mask |= 1 << k;
-                self.samples[s0] = Sample {
-                    pos_km: first.position_km,
-                    vel_km_s: first.velocity_km_s,
-                };
+                self.samples[s0] = first;
                 for m in s0 + 1..=s1 {
                     match self
                         .cursor
@@ -337,6 +367,152 @@ impl<'a> ObjectCursor<'a> {
             k += 1;
         }
         self.valid = n;
+    }
+
+    /// Samples over [chunk_start, chunk_end] of a catalog object with a
+    /// prediction (fleet vs catalog, [`super::predict`]): SGP4 at the chunk's
+    /// start, middle and end anchors the model's phase and checks it; then
+    /// only the activity slots where the model comes within `reach_km` plus
+    /// the allowance of the fleet (at a step's midpoint, plus what the pair
+    /// can close in half a step) are sampled. `reach_km` is the volume's
+    /// bounding radius plus the interpolation margin. A chunk where the
+    /// check fails is sampled throughout.
+    ///
+    /// Steps are skipped by the closing-speed bound of the direct scan: the
+    /// model and a fleet object at distance d at one midpoint are farther
+    /// than d − v·Δt a time Δt later, v the model's speed bound plus the
+    /// fleet's.
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn fill_predicted(
+        &mut self,
+        o: &Object,
+        model: &MeanModel,
+        chunk_start: UtcTime,
+        chunk_end: UtcTime,
+        slot_s: f64,
+        fleet: &FleetMidpoints,
+        reach_km: f64,
+    ) {
+        if self.failed {
+            return self.fill(o, chunk_start, chunk_end, None, slot_s, u32::MAX);
+        }
+        let chunk_s = chunk_end.s_since(chunk_start);
+        let chunk_mid = chunk_start.add_s(0.5 * chunk_s);
+        let mut anchors = [[0.0; 3]; 3];
+        let mut computed = 0;
+        for (a, t) in anchors.iter_mut().zip([chunk_start, chunk_mid, chunk_end]) {
+            // The previous chunk's end anchor is this chunk's start.
+            if let Some((t_prev, r_prev)) = self.end_anchor
+                && t_prev.s_since(t).abs() < 1e-6
+            {
+                *a = r_prev;
+                continue;
+            }
+            computed += 1;
+            match self.cursor.state_at(t) {
+                Ok(s) => *a = s.position_km,
+                Err(e) => {
+                    self.samples.clear();
+                    self.computed = 0;
+                    self.mask = u32::MAX;
+                    self.per_slot = 0;
+                    return self.fail(0, e);
+                }
+            }
+        }
+        self.end_anchor = Some((chunk_end, anchors[2]));
+        let (t0, t1) = (model.t_s(chunk_start), model.t_s(chunk_end));
+        let phi0 = model.phase_of(t0, &anchors[0]);
+        let phi1 = phi0 + wrap_pi(model.phase_of(t1, &anchors[2]) - phi0);
+        let phase_rate = (phi1 - phi0) / chunk_s.max(1e-9);
+        let phase = |t_s: f64| phi0 + phase_rate * (t_s - t0);
+        let plane = model.plane(0.5 * (t0 + t1));
+        let holds = [t0, 0.5 * (t0 + t1), t1]
+            .iter()
+            .zip(&anchors)
+            .all(|(&t, r)| {
+                let p = model.position_km(&plane, t, phase(t));
+                norm(&[p[0] - r[0], p[1] - r[1], p[2] - r[2]]) <= PREDICTION_CHECK_KM
+            });
+        let mut allowed = u32::MAX;
+        if holds {
+            allowed = 0;
+            let h = fleet.steps.first().map_or(chunk_s, |s| 2.0 * s.1);
+            let steps_per_slot = (slot_s / h).round().max(1.0) as usize;
+            let v_close = model.speed_bound_km_s(phase_rate) + fleet.speed_max_km_s;
+            let reach = reach_km + PREDICTION_ALLOWANCE_KM;
+            let reach_full = reach + v_close * 0.5 * h;
+            let nf = fleet.n_fleet;
+            let t_first = t0 + 0.5 * h;
+            let mut track = StepTrack::new(model, plane, t_first, h, phase(t_first), phase_rate);
+            let mut k = 0;
+            while k < fleet.steps.len() {
+                let (mid_s, half_s) = fleet.steps[k];
+                let t = t0 + mid_s;
+                // The last step of a window can be shorter: its midpoint is
+                // off the regular grid.
+                let p = if (t - t_first - k as f64 * h).abs() < 1e-6 {
+                    track.at(k)
+                } else {
+                    model.position_km(&plane, t, phase(t))
+                };
+                let row = &fleet.positions[3 * k * nf..3 * (k + 1) * nf];
+                let (xs, rest) = row.split_at(nf);
+                let (ys, zs) = rest.split_at(nf);
+                let mut nearest2 = f64::INFINITY;
+                for f in 0..nf {
+                    let (dx, dy, dz) = (p[0] - xs[f], p[1] - ys[f], p[2] - zs[f]);
+                    let d2 = dx * dx + dy * dy + dz * dz;
+                    if d2 < nearest2 {
+                        nearest2 = d2;
+                    }
+                }
+                let nearest_km = nearest2.sqrt();
+                let cut_km = reach + v_close * half_s;
+                if nearest_km <= cut_km {
+                    // Within reach at the midpoint: the linear-motion test of
+                    // the grid's pair test (closest approach over the step
+                    // on the two velocities, padded by what the relative
+                    // acceleration can add in half a step) on each fleet
+                    // object within the cut.
+                    let v = model_velocity_km_s(model, &plane, t, &phase);
+                    let pad_km = 0.5 * 2.0 * MAX_ACCELERATION_KM_S2 * half_s * half_s;
+                    let near = (0..nf).any(|f| {
+                        let dr = [p[0] - xs[f], p[1] - ys[f], p[2] - zs[f]];
+                        if dot3(&dr, &dr) > cut_km * cut_km {
+                            return false;
+                        }
+                        let vf = fleet.velocities[k * nf + f];
+                        let dv = [v[0] - vf[0], v[1] - vf[1], v[2] - vf[2]];
+                        let vv = dot3(&dv, &dv);
+                        let tau = if vv > 0.0 {
+                            (-dot3(&dr, &dv) / vv).clamp(-half_s, half_s)
+                        } else {
+                            0.0
+                        };
+                        let c = [
+                            dr[0] + dv[0] * tau,
+                            dr[1] + dv[1] * tau,
+                            dr[2] + dv[2] * tau,
+                        ];
+                        dot3(&c, &c).sqrt() <= reach + pad_km
+                    });
+                    if near {
+                        // Active: the rest of this slot needs no test.
+                        allowed |= 1 << (k / steps_per_slot);
+                        k = (k / steps_per_slot + 1) * steps_per_slot;
+                    } else {
+                        k += 1;
+                    }
+                    continue;
+                }
+                // Positive here, so truncation is the floor (and no libm call).
+                let skip = ((nearest_km - reach_full) / (v_close * h).max(1e-9)).min(1e6) as usize;
+                k += skip.max(1);
+            }
+        }
+        self.fill(o, chunk_start, chunk_end, None, slot_s, allowed);
+        self.computed += computed;
     }
 
     fn push_sample(&mut self, t: UtcTime) -> bool {
@@ -367,4 +543,21 @@ impl<'a> ObjectCursor<'a> {
     pub(super) fn covers(&self, m: usize) -> bool {
         self.per_slot == 0 || self.mask & (1 << (m / self.per_slot)) != 0
     }
+}
+
+/// The model's velocity at `t_s` (a central difference over ±0.5 s: its
+/// error, ~(0.5 s)²/6 times the jerk, is below 1e-6 km/s in LEO), km/s.
+fn model_velocity_km_s(
+    model: &MeanModel,
+    plane: &ChunkPlane,
+    t_s: f64,
+    phase: &impl Fn(f64) -> f64,
+) -> [f64; 3] {
+    let a = model.position_km(plane, t_s - 0.5, phase(t_s - 0.5));
+    let b = model.position_km(plane, t_s + 0.5, phase(t_s + 0.5));
+    [b[0] - a[0], b[1] - a[1], b[2] - a[2]]
+}
+
+fn dot3(a: &[f64; 3], b: &[f64; 3]) -> f64 {
+    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
 }
