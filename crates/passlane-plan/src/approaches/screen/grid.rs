@@ -121,10 +121,8 @@ impl Lane {
         // Truncation is the floor here: x is clamped to be non-negative.
         let mut m = (x.max(0.0) as usize).min(valid - 2);
         if !hot.covers(m) {
-            // Exactly at the end of a sampled slot (a step that ends on the
-            // slot's boundary is evaluated there), the interval before it
-            // holds the state; without this, pairs whose minimum is in the
-            // last step of a slot followed by a skipped one were lost.
+            // At the end of a sampled slot exactly (a step ending on the
+            // boundary is evaluated there), the interval before holds it.
             if m > 0 && x - m as f64 <= 1e-9 && hot.covers(m - 1) {
                 m -= 1;
             } else {
@@ -226,17 +224,6 @@ impl Flat {
         }
     }
 
-    /// Interpolated state of object `i` at `dt_s` after the chunk start, if
-    /// covered by valid samples.
-    #[inline]
-    fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
-        let h = &self.hot[i];
-        let lane = &self.lanes[h.lane as usize];
-        lane.at(h.slot as usize, h, dt_s / lane.step_s)
-    }
-}
-
-impl Flat {
     /// Per activity slot of a chunk (`n_slots` of them), the catalog objects
     /// (group 1) with samples in it.
     pub(super) fn catalog_by_slot(&self, n_slots: usize) -> Vec<Vec<u32>> {
@@ -246,7 +233,7 @@ impl Flat {
                 continue;
             }
             for (k, list) in out.iter_mut().enumerate() {
-                if h.per_slot == 0 || h.mask & (1 << k) != 0 {
+                if self.sampled_in_slot(j, k) {
                     list.push(j as u32);
                 }
             }
@@ -260,62 +247,20 @@ impl Flat {
         let h = &self.hot[i];
         h.per_slot == 0 || (slot < 32 && h.mask & (1 << slot) != 0)
     }
-}
 
-/// The fleet's interpolated positions at each hash step's midpoint of a
-/// chunk, for the predicted catalog objects' activity slots.
-pub(super) struct FleetMidpoints {
-    pub(super) n_fleet: usize,
-    /// Each step's midpoint and half length, s from the chunk start.
-    pub(super) steps: Vec<(f64, f64)>,
-    /// Fleet positions at step k's midpoint, by axis: x of fleet object f
-    /// at `positions[(3k + 0)·n_fleet + f]`, then y, then z (1e30 km where
-    /// it has no state, so it is never near).
-    pub(super) positions: Vec<f64>,
-    /// `velocities[k * n_fleet + f]`, km/s (zero where it has no state).
-    pub(super) velocities: Vec<[f64; 3]>,
-    /// Largest speed bound of the fleet's interpolants in the chunk, km/s.
-    pub(super) speed_max_km_s: f64,
-}
+    /// Object `i`'s speed bound in the chunk, if it has samples, km/s.
+    pub(super) fn speed_max_km_s(&self, i: usize) -> Option<f64> {
+        let h = &self.hot[i];
+        (h.valid >= 2).then_some(h.speed_max_km_s)
+    }
 
-impl Flat {
-    /// For a `Flat` of the fleet alone: its midpoints over a chunk of
-    /// `chunk_s` seconds cut into hash steps of `h_s`.
-    pub(super) fn fleet_midpoints(&self, chunk_s: f64, h_s: f64) -> FleetMidpoints {
-        let n_steps = (chunk_s / h_s).ceil() as usize;
-        let steps: Vec<(f64, f64)> = (0..n_steps)
-            .map(|k| {
-                let a = k as f64 * h_s;
-                let b = (a + h_s).min(chunk_s);
-                (0.5 * (a + b), 0.5 * (b - a))
-            })
-            .collect();
-        let n_fleet = self.hot.len();
-        let mut positions = vec![0.0; 3 * n_fleet * steps.len()];
-        let mut velocities = vec![[0.0; 3]; n_fleet * steps.len()];
-        for (k, &(mid, _)) in steps.iter().enumerate() {
-            for i in 0..n_fleet {
-                let s = self.at(i, mid);
-                let p = s.map_or([1e30; 3], |s| s.pos_km);
-                for (axis, x) in p.iter().enumerate() {
-                    positions[(3 * k + axis) * n_fleet + i] = *x;
-                }
-                velocities[k * n_fleet + i] = s.map_or([0.0; 3], |s| s.vel_km_s);
-            }
-        }
-        let speed_max_km_s = self
-            .hot
-            .iter()
-            .filter(|h| h.valid >= 2)
-            .map(|h| h.speed_max_km_s)
-            .fold(0.0, f64::max);
-        FleetMidpoints {
-            n_fleet,
-            steps,
-            positions,
-            velocities,
-            speed_max_km_s,
-        }
+    /// Interpolated state of object `i` at `dt_s` after the chunk start, if
+    /// covered by valid samples.
+    #[inline]
+    pub(super) fn at(&self, i: usize, dt_s: f64) -> Option<Sample> {
+        let h = &self.hot[i];
+        let lane = &self.lanes[h.lane as usize];
+        lane.at(h.slot as usize, h, dt_s / lane.step_s)
     }
 }
 
@@ -351,9 +296,8 @@ pub(super) struct ChunkContext<'a> {
     pub(super) v_pair_km_s: f64,
     /// The screening window: a pair near one of its ends gets an edge seed.
     pub(super) window: (UtcTime, UtcTime),
-    /// Fleet against catalog: the fleet's size (it comes first), the
-    /// activity slot's length (s) and, per slot, the catalog objects sampled
-    /// in it ([`Flat::catalog_by_slot`]).
+    /// Fleet against catalog: the fleet's size (it comes first), the slot
+    /// length (s), per slot the catalog objects sampled in it.
     pub(super) n_fleet: usize,
     pub(super) slot_s: f64,
     pub(super) slot_catalog: Vec<Vec<u32>>,
@@ -418,9 +362,8 @@ impl ChunkContext<'_> {
         let mid_dt = a.s_since(self.chunk_start) + half_s;
         scratch.states.clear();
         if self.cross {
-            // Fleet against catalog: only the fleet (the first objects)
-            // here; each catalog object sampled in this step's slot is
-            // interpolated in `fleet_step` itself.
+            // Only the fleet (the first objects); `fleet_step` interpolates
+            // the catalog objects sampled in this step's slot.
             scratch
                 .states
                 .extend((0..self.n_fleet).map(|i| self.flat.at(i, mid_dt)));

@@ -525,8 +525,12 @@ pub fn screen_with_progress(
         if predicting {
             // The fleet is sampled; the predicted catalog objects only
             // where they can come near it.
-            let fleet = Flat::build(&cursors[..n_fleet], &objects[..n_fleet])
-                .fleet_midpoints(chunk_end.s_since(chunk_start), h);
+            let fleet = predict::FleetMidpoints::new(
+                &Flat::build(&cursors[..n_fleet], &objects[..n_fleet]),
+                n_fleet,
+                chunk_end.s_since(chunk_start),
+                h,
+            );
             let reach_km = settings.volume.bounding_radius_km() + margin_km;
             cursors
                 .par_iter_mut()

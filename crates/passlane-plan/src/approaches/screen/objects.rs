@@ -9,10 +9,10 @@ use passlane_orbit::{Cursor, ElementSet, PropagationError, Propagator, UtcTime};
 
 use super::MAX_ACCELERATION_KM_S2;
 use super::geometry::ObjectId;
-use super::grid::FleetMidpoints;
 use super::hermite::{Sample, error_estimate_km};
 use super::predict::{
-    ChunkPlane, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM, StepTrack, wrap_pi,
+    ChunkPlane, FleetMidpoints, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM, StepTrack,
+    wrap_pi,
 };
 use super::{MAX_SAMPLE_STEP_FACTOR, ObjectDiagnostic, ScreeningRequest, ScreeningSettings};
 
