@@ -263,6 +263,12 @@ fn realistic_cases(which: &str, arg: Option<&str>) {
         hash_step_s: env("SCREEN_HASH_STEP_S").unwrap_or(defaults.hash_step_s),
         interpolation_tolerance_km: env("SCREEN_TOLERANCE_KM")
             .unwrap_or(defaults.interpolation_tolerance_km),
+        // SCREEN_PREDICT_MAX_FLEET: largest fleet whose catalog objects are
+        // predicted (0: none; sweeps of the threshold).
+        predict_max_fleet: env("SCREEN_PREDICT_MAX_FLEET")
+            .map_or(defaults.predict_max_fleet, |n| n as usize),
+        direct_scan_max_fleet: env("SCREEN_DIRECT_MAX_FLEET")
+            .map_or(defaults.direct_scan_max_fleet, |n| Some(n as usize)),
         ..defaults
     };
     println!(

@@ -325,8 +325,13 @@ fn fleet_against_the_dense_subset_equals_brute_force() {
         secondaries: Some(&objects),
         start,
         end: start.add_s(12.0 * 3600.0),
-        // The tuning the command uses for a fleet against a catalog.
-        settings: ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 10.0 }),
+        // The tuning the command uses for a fleet against a catalog, on the
+        // grid (a fleet of ten takes the direct scan by default; the fleet of
+        // three below checks that one).
+        settings: ScreeningSettings {
+            direct_scan_max_fleet: Some(0),
+            ..ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 10.0 })
+        },
     };
     let fast = screen(&request);
     assert!(fast.stats.objects_predicted > 1000, "{:?}", fast.stats);
@@ -345,18 +350,23 @@ fn predicted_catalog_sampling_finds_the_same_events_over_a_week() {
     let objects = catalog::element_sets(&catalog::dense_subset_synth());
     let start = catalog::epoch();
     let settings = ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 5.0 });
-    let request = |predict_catalog| ScreeningRequest {
+    let request = |predict_max_fleet, direct_scan_max_fleet| ScreeningRequest {
         primaries: &fleet,
         secondaries: Some(&objects),
         start,
         end: start.add_s(7.0 * 86_400.0),
         settings: ScreeningSettings {
-            predict_catalog,
+            predict_max_fleet,
+            direct_scan_max_fleet,
             ..settings
         },
     };
-    let predicted = screen(&request(true));
-    let sampled = screen(&request(false));
+    // The default for ten: predicted, direct scan; then predicted on the
+    // grid; the reference samples every object throughout, on the grid.
+    let predicted = screen(&request(settings.predict_max_fleet, None));
+    let predicted_grid = screen(&request(settings.predict_max_fleet, Some(0)));
+    let sampled = screen(&request(0, Some(0)));
+    assert_eq!(assert_same(&predicted_grid, &sampled), sampled.events.len());
     assert!(
         predicted.stats.objects_predicted > 1000,
         "{:?}",

@@ -27,6 +27,19 @@
 //!      bound gives the shortest time to come down to the band, and a slot
 //!      shorter than it is skipped. Eccentric LEO-crossers (transfer stages,
 //!      12-hour orbits) are then sampled near their perigee passages only.
+//!   2b. **Predicted sampling** (fleet vs catalog, a fleet of at most 30,
+//!      `PREDICT_MAX_FLEET`): a near-circular LEO catalog object (e ≤ 0.02,
+//!      period under 225 min, no ephemeris) is sampled only in the activity
+//!      slots where it can come near the fleet. A mean-element model
+//!      ([`predict`]: first-order J2 secular rates, first order in e), its
+//!      phase anchored on SGP4 at each chunk's start and end, gives the
+//!      object at every hash-step midpoint; a slot is sampled when, at some
+//!      step of it, the model and a fleet object pass the grid's own
+//!      linear-motion test with the reach widened by the model's 75 km
+//!      allowance. Steps are skipped with the direct scan's closing-speed
+//!      bound. Each chunk also checks the model against SGP4 at its start,
+//!      middle and end; a chunk where it is off by more than 50 km is sampled
+//!      throughout.
 //!   3. **SGP4 samples and Hermite interpolation.** Each object is propagated
 //!      once per sample step (60 s to half an hour, the longest power-of-two
 //!      multiple of the hash step whose estimated cubic Hermite error stays
@@ -85,6 +98,17 @@
 //!   the object cannot be inside the fleet's band, so no fleet object can
 //!   be within D of it (`fleet_against_the_dense_subset_equals_brute_force`
 //!   checks it against brute force).
+//! - Predicted sampling: **a measured allowance, not a proof.** A true event
+//!   (SGP4 within D of a fleet object) puts the model within D + m + E of
+//!   that fleet object's interpolant, E the model's distance from SGP4, so a
+//!   skipped slot is one where no such event can be, as long as E stays
+//!   within the 75 km allowance. E is estimated at ~50 km from the size of
+//!   SGP4's periodic terms the model leaves out, measured at 30.3 km at most
+//!   over the dense subset and the SSO fleet (every 30 s for a week,
+//!   `tests/screening_predict.rs`), and checked in every chunk (start,
+//!   middle, end; 50 km). The week-long comparison with sampling every
+//!   object throughout (`predicted_catalog_sampling_finds_the_same_events_over_a_week`)
+//!   and the brute-force comparisons of the fleet tests run with it on.
 //! - Interpolation: the interpolant is within m of SGP4 at every instant (m is
 //!   the per-object allowance, checked against SGP4 in the tests), so a pair
 //!   within D in SGP4 is within D + m on the interpolant.
@@ -137,10 +161,13 @@
 //! On the realistic catalog (`benches/support/catalog.rs`: dense shells,
 //! debris band, eccentric LEO-crossers; library call, idle machine, 5 km):
 //! 30,000 all-vs-all over 24 h 15.9 s wall, 152,073 events, 371 MB; with the
-//! fleet tuning ([`ScreeningSettings::fleet_vs_catalog`]) 10 sun-synchronous
-//! spacecraft vs 30,000 over 7 days 7.0 s wall (20 M SGP4 samples of the
-//! ~13,900 objects the perigee/apogee filter keeps: 4.3 s; the grid: 3.0 s)
-//! and 100 vs 30,000 12.1 s (the whole commands: README's speed table).
+//! fleet tuning ([`ScreeningSettings::fleet_vs_catalog`]) 100 vs 30,000 over
+//! 7 days 12.1 s. 10 sun-synchronous spacecraft vs 30,000 over 7 days took
+//! 7.0 s before the predicted sampling (20 M SGP4 samples of the ~13,900
+//! objects the perigee/apogee filter keeps: 4.3 s; the grid: 3.0 s); with it
+//! 3.3 M SGP4 samples (12,085 objects predicted) and about 4.3 s, most of it
+//! the prediction's own scan (~52 M model evaluations, each against ten
+//! fleet objects). The whole commands: README's speed table.
 //!
 //! # What it deliberately does not do
 //! - No collision probability (no covariance here) and no manoeuvre planning.
@@ -291,11 +318,16 @@ pub struct ScreeningSettings {
     pub interpolation_tolerance_km: f64,
     /// Padding of the perigee/apogee filter beyond the volume, km.
     pub filter_margin_km: f64,
-    /// Fleet vs catalog, for a fleet of at most 30: sample a near-circular
-    /// LEO catalog object with SGP4 only where its mean-element prediction
-    /// comes near the fleet ([`predict`]). `false` samples every catalog
-    /// object throughout (for comparisons; the same events, slower).
-    pub predict_catalog: bool,
+    /// Fleet vs catalog, for a fleet of at most this many: sample a
+    /// near-circular LEO catalog object with SGP4 only where its
+    /// mean-element prediction comes near the fleet ([`predict`]). 0 samples
+    /// every catalog object throughout (for comparisons; the same events).
+    pub predict_max_fleet: usize,
+    /// Fleet vs catalog, for a fleet of at most this many: the direct scan
+    /// instead of the per-step grid; `None`: the measured defaults
+    /// (`DIRECT_SCAN_MAX_FLEET` when the catalog is sampled throughout,
+    /// `DIRECT_SCAN_MAX_FLEET_PREDICTED` when it is predicted).
+    pub direct_scan_max_fleet: Option<usize>,
 }
 
 impl Default for ScreeningSettings {
@@ -305,7 +337,8 @@ impl Default for ScreeningSettings {
             hash_step_s: 30.0,
             interpolation_tolerance_km: 0.5,
             filter_margin_km: 50.0,
-            predict_catalog: true,
+            predict_max_fleet: PREDICT_MAX_FLEET,
+            direct_scan_max_fleet: None,
         }
     }
 }
@@ -494,22 +527,25 @@ pub fn screen_with_progress(
     let n_chunks = (span_s / chunk_s).ceil().max(1.0) as usize;
     let margin_km = objects.iter().map(|o| o.margin_km).fold(0.0, f64::max) * 2.0;
     let mut candidates: Vec<Candidate> = Vec::new();
-    // A small fleet against a catalog takes the direct scan (the same for
-    // every chunk: objects are not dropped between chunks).
-    let direct_scan = request.secondaries.is_some()
-        && objects.iter().filter(|o| o.group == 0).count() <= DIRECT_SCAN_MAX_FLEET;
-    let catalog: Vec<usize> = (0..objects.len())
-        .filter(|&j| direct_scan && objects[j].group == 1)
-        .collect();
     // A fleet of at most PREDICT_MAX_FLEET against a catalog: catalog objects
     // the mean-element model covers are sampled only near the fleet. The
     // fleet comes first among the objects.
     let n_fleet = objects.iter().take_while(|o| o.group == 0).count();
-    let predicting =
-        settings.predict_catalog && request.secondaries.is_some() && n_fleet <= PREDICT_MAX_FLEET;
+    let predicting = request.secondaries.is_some() && n_fleet <= settings.predict_max_fleet;
     if predicting {
         result.stats.objects_predicted = objects.iter().filter(|o| o.model.is_some()).count();
     }
+    // A small fleet against a catalog takes the direct scan (the same for
+    // every chunk: objects are not dropped between chunks).
+    let direct_max = settings.direct_scan_max_fleet.unwrap_or(if predicting {
+        DIRECT_SCAN_MAX_FLEET_PREDICTED
+    } else {
+        DIRECT_SCAN_MAX_FLEET
+    });
+    let direct_scan = request.secondaries.is_some() && n_fleet <= direct_max;
+    let catalog: Vec<usize> = (0..objects.len())
+        .filter(|&j| direct_scan && objects[j].group == 1)
+        .collect();
     for c in 0..n_chunks {
         let chunk_start = request.start.add_s(c as f64 * chunk_s);
         let chunk_end = chunk_start.add_s(chunk_s).min(request.end);
@@ -681,12 +717,34 @@ const CHUNK_HASH_STEPS: u32 = 256;
 
 /// Largest fleet for which catalog objects are sampled only where the
 /// mean-element prediction ([`predict`]) comes near the fleet.
+///
+/// Measured (`SCREEN_FLEET_N=N SCREEN_PREDICT_MAX_FLEET=M SCREEN_DIRECT_MAX_FLEET=D
+/// cargo bench -p passlane-plan --bench screening -- real-fleet`: the first
+/// N of the 100-spacecraft fleet against the realistic 30,000 over 7 days,
+/// 2 cores with two niced fuzzers in the background, 2026-12-03; library
+/// wall seconds, the same events in every column):
+///
+/// | fleet | 1 | 3 | 6 | 10 | 20 | 30 | 50 | 100 |
+/// |---|---|---|---|---|---|---|---|---|
+/// | predicted, direct scan | 2.6 | 2.8 | 3.5–4.2 | 3.8–4.1 | 6.0 | 8.2 | — | — |
+/// | predicted, grid | 2.6 | 3.8 | 3.4–4.1 | 4.4 | 6.5 | 7.3 | 12.1 | 17.2 |
+/// | sampled throughout, grid | 8.6 | 8.4 | 8.1 | 8.2 | 9.2 | 9.3 | 10.1 | 12.3 |
+/// | sampled throughout, direct scan | 5.7 | 6.9 | 7.7 | 8.0 | — | — | — | — |
+///
+/// The prediction's scan costs each catalog object a test per fleet member
+/// per step, so it pays while the fleet is small: it wins up to 30 and loses
+/// from 50. With it the direct scan is as fast as or faster than the grid
+/// up to 20 spacecraft and slower at 30.
 const PREDICT_MAX_FLEET: usize = 30;
+/// Largest fleet taking the direct scan when its catalog is predicted (see
+/// the table above).
+const DIRECT_SCAN_MAX_FLEET_PREDICTED: usize = 20;
 
 /// Largest fleet screened against a catalog by the direct scan
-/// ([`grid::ChunkContext::fleet_scan`]) rather than the per-step grid.
+/// ([`grid::ChunkContext::fleet_scan`]) rather than the per-step grid, when
+/// every catalog object is sampled throughout.
 ///
-/// Measured (`SCREEN_FLEET_N=N cargo bench -p passlane-plan --bench
+/// Measured before the prediction existed (`SCREEN_FLEET_N=N cargo bench -p passlane-plan --bench
 /// screening -- real-fleet`: the first N of the 100-spacecraft fleet against
 /// the realistic 30,000 over 7 days, 2 cores; wall seconds of the pair
 /// phase, the same events either way):
