@@ -8,8 +8,8 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 
 use passlane_plan::Progress;
 use passlane_plan::screen::{
-    ScreeningRequest, ScreeningSettings, ScreeningVolume, hermite_state, interpolation_plan,
-    relative_geometry, screen, screen_brute_force, screen_with_progress,
+    ScreeningRequest, ScreeningResult, ScreeningSettings, ScreeningVolume, hermite_state,
+    interpolation_plan, relative_geometry, screen, screen_brute_force, screen_with_progress,
 };
 use proptest::prelude::*;
 
@@ -273,6 +273,50 @@ fn decaying_object_is_reported_and_the_rest_go_on() {
     assert_eq!(r.diagnostics.len(), 1, "{:?}", r.diagnostics);
     assert_eq!(r.diagnostics[0].catalog_number, 99990);
     assert_eq!(r.events.len(), 8);
+}
+
+#[test]
+fn a_decaying_catalog_object_is_screened_up_to_its_decay_with_or_without_prediction() {
+    // Fleet vs catalog: a catalog object that decays during the week, flying
+    // 0.01° behind a fleet spacecraft. Predicted or sampled throughout, it is
+    // screened up to the sample where SGP4 fails, reported there once, and
+    // gives the same events.
+    let fleet = demo_objects();
+    let mut doomed = fleet[0].clone();
+    doomed.name = "DOOMED".into();
+    doomed.catalog_number = 99990;
+    doomed.mean_anomaly_deg += 0.01;
+    // Drag strong enough to bring it down within days.
+    doomed.bstar_per_earth_radii = 0.5;
+    let catalog = vec![doomed];
+    let request = |predict_max_fleet| ScreeningRequest {
+        primaries: &fleet,
+        secondaries: Some(&catalog),
+        start: t("2026-12-01T00:00:00Z"),
+        end: t("2026-12-08T00:00:00Z"),
+        settings: ScreeningSettings {
+            predict_max_fleet,
+            ..ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 10.0 })
+        },
+    };
+    let predicted = screen(&request(30));
+    let sampled = screen(&request(0));
+    assert_eq!(predicted.stats.objects_predicted, 1);
+    for r in [&predicted, &sampled] {
+        assert_eq!(r.diagnostics.len(), 1, "{:?}", r.diagnostics);
+        assert_eq!(r.diagnostics[0].catalog_number, 99990);
+        assert!(!r.events.is_empty(), "{:?}", r.diagnostics);
+    }
+    assert_eq!(predicted.diagnostics[0].time, sampled.diagnostics[0].time);
+    let decay = sampled.diagnostics[0].time.expect("a failure time");
+    assert!(decay < t("2026-12-08T00:00:00Z"), "{decay}");
+    let key = |r: &ScreeningResult| -> Vec<(u32, String)> {
+        r.events
+            .iter()
+            .map(|e| (e.primary_catalog_number, e.tca.to_iso_ms()))
+            .collect()
+    };
+    assert_eq!(key(&predicted), key(&sampled));
 }
 
 #[test]

@@ -411,12 +411,12 @@ impl<'a> ObjectCursor<'a> {
             computed += 1;
             match self.cursor.state_at(t) {
                 Ok(s) => *a = s.position_km,
-                Err(e) => {
-                    self.samples.clear();
-                    self.computed = 0;
-                    self.mask = u32::MAX;
-                    self.per_slot = 0;
-                    return self.fail(0, e);
+                // Propagation fails somewhere in this chunk (decay): sample
+                // it throughout, which screens it up to the failure and
+                // reports it there.
+                Err(_) => {
+                    self.end_anchor = None;
+                    return self.fill(o, chunk_start, chunk_end, None, slot_s, u32::MAX);
                 }
             }
         }
