@@ -30,7 +30,8 @@
 //!   2b. **Predicted sampling** (fleet vs catalog, a fleet of at most 30,
 //!      `PREDICT_MAX_FLEET`): a near-circular LEO catalog object (e ≤ 0.02,
 //!      period under 225 min, no ephemeris) is sampled only in the activity
-//!      slots where it can come near the fleet. A mean-element model
+//!      slots where it can come near the fleet (in chunks within 30 days of
+//!      its epoch). A mean-element model
 //!      ([`predict`]: first-order J2 secular rates, first order in e), its
 //!      phase anchored on SGP4 at each chunk's start and end, gives the
 //!      object at every hash-step midpoint; a slot is sampled when, at some
@@ -385,7 +386,8 @@ pub struct ScreeningStats {
     pub objects: usize,
     /// Objects the perigee/apogee filter removed before propagation.
     pub objects_filtered: usize,
-    /// Catalog objects sampled only where their prediction comes near the fleet.
+    /// Catalog objects the prediction covers: sampled only where it comes
+    /// near the fleet, in the chunks within 30 days of their epoch.
     pub objects_predicted: usize,
     pub sgp4_samples: u64,
     /// Pairs that passed the hash and linear-motion test.

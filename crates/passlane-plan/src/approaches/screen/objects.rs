@@ -11,8 +11,8 @@ use super::MAX_ACCELERATION_KM_S2;
 use super::geometry::ObjectId;
 use super::hermite::{Sample, error_estimate_km};
 use super::predict::{
-    ChunkPlane, FleetMidpoints, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM, StepTrack,
-    wrap_pi,
+    ChunkPlane, FleetMidpoints, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM,
+    PREDICTION_MAX_AGE_DAYS, StepTrack, wrap_pi,
 };
 use super::{MAX_SAMPLE_STEP_FACTOR, ObjectDiagnostic, ScreeningRequest, ScreeningSettings};
 
@@ -393,7 +393,8 @@ impl<'a> ObjectCursor<'a> {
         fleet: &FleetMidpoints,
         reach_km: f64,
     ) {
-        if self.failed {
+        let age_s = model.t_s(chunk_start).abs().max(model.t_s(chunk_end).abs());
+        if self.failed || age_s > PREDICTION_MAX_AGE_DAYS * 86_400.0 {
             return self.fill(o, chunk_start, chunk_end, None, slot_s, u32::MAX);
         }
         let chunk_s = chunk_end.s_since(chunk_start);

@@ -34,7 +34,8 @@
 //!
 //! Objects outside the model's reach are never predicted: deep-space orbits
 //! (period ≥ 225 min, where SGP4 adds lunar-solar terms), eccentricity above
-//! [`MAX_ECCENTRICITY`], ephemeris-driven objects.
+//! [`MAX_ECCENTRICITY`], ephemeris-driven objects, and chunks more than
+//! [`PREDICTION_MAX_AGE_DAYS`] from the element set's epoch.
 
 use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
 use passlane_orbit::frames::Vec3;
@@ -49,6 +50,12 @@ pub(crate) const PREDICTION_ALLOWANCE_KM: f64 = 75.0;
 /// sampled throughout, km: two thirds of the allowance, so a chunk is
 /// predicted only when the model is well inside it where it is checked.
 pub(crate) const PREDICTION_CHECK_KM: f64 = 50.0;
+/// Farthest a chunk may be from the element set's epoch for the model to be
+/// used, days: the plane's secular drift is not re-anchored, so this bounds
+/// what an error in the first-order rates can add (measured no growth up to
+/// here: 30.3 km over days 0–7, 30.7 km over days 23–30). The same as the
+/// command's refusal of stale elements without `--allow-stale`.
+pub(crate) const PREDICTION_MAX_AGE_DAYS: f64 = 30.0;
 /// Largest eccentricity the first-order model is used for.
 pub(crate) const MAX_ECCENTRICITY: f64 = 0.02;
 /// Mean motion below which SGP4 takes its deep-space branch (225 min period),
