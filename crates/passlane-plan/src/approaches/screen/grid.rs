@@ -264,6 +264,21 @@ impl Flat {
     }
 }
 
+/// Closest distance over [−half_s, half_s] of straight relative motion (`dr`, `dv`), km.
+pub(super) fn linear_closest_km(dr: &[f64; 3], dv: &[f64; 3], half_s: f64) -> f64 {
+    let vv = dot(dv, dv);
+    let tau = if vv > 0.0 {
+        (-dot(dr, dv) / vv).clamp(-half_s, half_s)
+    } else {
+        0.0
+    };
+    norm(&[
+        dr[0] + dv[0] * tau,
+        dr[1] + dv[1] * tau,
+        dr[2] + dv[2] * tau,
+    ])
+}
+
 /// Largest speed of the Hermite interpolant through `samples`, km/s. Between
 /// two samples the interpolant's velocity is a quadratic whose Bézier control
 /// points are v₀, 3(r₁ − r₀)/h − v₀ − v₁ and v₁; the curve lies in their convex
@@ -425,9 +440,8 @@ impl ChunkContext<'_> {
             reach_km,
             ..
         } = *step;
-        // The primaries (the small set) go into their cell and the 26
-        // around it, as a sorted list with a map from cell to its range;
-        // the map is emptied, not rebuilt, so its table is reused.
+        // The primaries go into their cell and the 26 around it: a sorted
+        // list and a map from cell to range (emptied, not rebuilt).
         entries.clear();
         let (mut r_min_km, mut r_max_km) = (f64::INFINITY, 0.0f64);
         for (i, state) in states.iter().enumerate() {
@@ -457,10 +471,9 @@ impl ChunkContext<'_> {
             ranges.insert(entries[s0].0, (s0 as u32, e0 as u32));
             s0 = e0;
         }
-        // Radial band: a secondary whose distance from the Earth's centre
-        // differs from every primary's by more than a cell is farther
-        // than a cell from all of them (triangle inequality), so the
-        // lookup can be skipped.
+        // Radial band: a secondary whose radius differs from every
+        // primary's by more than a cell is farther than a cell from all of
+        // them (triangle inequality): no lookup.
         let band_lo_km = r_min_km - cell_km;
         let band_hi_km = r_max_km + cell_km;
         let (band_lo2, band_hi2) = (band_lo_km.max(0.0).powi(2), band_hi_km * band_hi_km);
@@ -697,18 +710,7 @@ impl ChunkContext<'_> {
         }
         let half_s = 0.5 * b.s_since(a);
         let dv = sub(&sj.vel_km_s, &si.vel_km_s);
-        let vv = dot(&dv, &dv);
-        let tau = if vv > 0.0 {
-            (-dot(&dr, &dv) / vv).clamp(-half_s, half_s)
-        } else {
-            0.0
-        };
-        let closest = [
-            dr[0] + dv[0] * tau,
-            dr[1] + dv[1] * tau,
-            dr[2] + dv[2] * tau,
-        ];
-        if norm(&closest) > reach_km {
+        if linear_closest_km(&dr, &dv, half_s) > reach_km {
             return;
         }
         // Object data only for the few pairs that pass the geometric tests.

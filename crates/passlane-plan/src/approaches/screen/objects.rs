@@ -9,6 +9,7 @@ use passlane_orbit::{Cursor, ElementSet, PropagationError, Propagator, UtcTime};
 
 use super::MAX_ACCELERATION_KM_S2;
 use super::geometry::ObjectId;
+use super::grid::linear_closest_km;
 use super::hermite::{Sample, error_estimate_km};
 use super::predict::{
     ChunkPlane, FleetMidpoints, MeanModel, PREDICTION_ALLOWANCE_KM, PREDICTION_CHECK_KM,
@@ -485,18 +486,7 @@ impl<'a> ObjectCursor<'a> {
                         }
                         let vf = fleet.velocities[k * nf + f];
                         let dv = [v[0] - vf[0], v[1] - vf[1], v[2] - vf[2]];
-                        let vv = dot3(&dv, &dv);
-                        let tau = if vv > 0.0 {
-                            (-dot3(&dr, &dv) / vv).clamp(-half_s, half_s)
-                        } else {
-                            0.0
-                        };
-                        let c = [
-                            dr[0] + dv[0] * tau,
-                            dr[1] + dv[1] * tau,
-                            dr[2] + dv[2] * tau,
-                        ];
-                        dot3(&c, &c).sqrt() <= reach + pad_km
+                        linear_closest_km(&dr, &dv, half_s) <= reach + pad_km
                     });
                     if near {
                         // Active: the rest of this slot needs no test.
