@@ -384,6 +384,42 @@ fn predicted_catalog_sampling_finds_the_same_events_over_a_week() {
 }
 
 #[test]
+fn predicted_catalog_sampling_inside_a_dense_shell_finds_the_same_events() {
+    // A fleet flying inside the 550 km / 53° shell (four of its objects,
+    // taken out of the catalog): long, slow encounters with the neighbouring
+    // planes, the hardest case for a prediction that skips slots. 3 days, 5 km.
+    let synth = catalog::dense_subset_synth();
+    let (fleet_synth, rest): (Vec<_>, Vec<_>) = synth
+        .into_iter()
+        .enumerate()
+        .partition(|(k, s)| s.group == catalog::Group::ShellA && k % 200 == 0);
+    let fleet = catalog::element_sets(&fleet_synth.into_iter().map(|(_, s)| s).collect::<Vec<_>>());
+    let objects = catalog::element_sets(&rest.into_iter().map(|(_, s)| s).collect::<Vec<_>>());
+    assert!(
+        (2..=8).contains(&fleet.len()),
+        "{} in the fleet",
+        fleet.len()
+    );
+    let start = catalog::epoch();
+    let settings = ScreeningSettings::fleet_vs_catalog(ScreeningVolume::Sphere { radius_km: 5.0 });
+    let request = |predict_max_fleet| ScreeningRequest {
+        primaries: &fleet,
+        secondaries: Some(&objects),
+        start,
+        end: start.add_s(3.0 * 86_400.0),
+        settings: ScreeningSettings {
+            predict_max_fleet,
+            ..settings
+        },
+    };
+    let predicted = screen(&request(settings.predict_max_fleet));
+    let sampled = screen(&request(0));
+    assert!(predicted.stats.objects_predicted > 1000);
+    let n = assert_same(&predicted, &sampled);
+    assert!(n > 0, "{n} events");
+}
+
+#[test]
 fn a_small_fleet_against_the_dense_subset_equals_brute_force() {
     // A fleet of three takes the direct scan (each catalog object against
     // each spacecraft, skipping the steps it cannot use) instead of the
