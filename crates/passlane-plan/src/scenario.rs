@@ -278,6 +278,10 @@ impl Scenario {
                 "0 is not a valid format version".into(),
             ));
         }
+        // The key check walks the generic tree, which is freed before the
+        // typed read: the two are never in memory together.
+        let unknown = crate::scenario_keys::unknown_keys(&value);
+        drop(value);
         let mut scenario: Scenario = serde_path_from_str(text)
             .map_err(|(path, line, column, message)| err(line, column, &path, message))?;
         scenario.format_version = SCENARIO_FORMAT_VERSION;
@@ -285,10 +289,7 @@ impl Scenario {
         for s in &mut scenario.stations {
             s.normalise();
         }
-        let warnings = crate::scenario_keys::unknown_keys(&value)
-            .iter()
-            .map(|k| format!("{file}: {k}"))
-            .collect();
+        let warnings = unknown.iter().map(|k| format!("{file}: {k}")).collect();
         Ok((scenario, warnings))
     }
 
