@@ -3,7 +3,7 @@
 //! per-chunk SGP4 samples of each object.
 
 use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
-use passlane_orbit::frames::{cross, norm};
+use passlane_orbit::frames::{cross, dot, norm, sub};
 use passlane_orbit::summary::semi_major_axis_km;
 use passlane_orbit::{Cursor, ElementSet, PropagationError, Propagator, UtcTime};
 
@@ -434,7 +434,7 @@ impl<'a> ObjectCursor<'a> {
             .zip(&anchors)
             .all(|(&t, r)| {
                 let p = model.position_km(&plane, t, phase(t));
-                norm(&[p[0] - r[0], p[1] - r[1], p[2] - r[2]]) <= PREDICTION_CHECK_KM
+                norm(&sub(&p, r)) <= PREDICTION_CHECK_KM
             });
         let mut allowed = u32::MAX;
         if holds {
@@ -481,7 +481,7 @@ impl<'a> ObjectCursor<'a> {
                     let pad_km = 0.5 * 2.0 * MAX_ACCELERATION_KM_S2 * half_s * half_s;
                     let near = (0..nf).any(|f| {
                         let dr = [p[0] - xs[f], p[1] - ys[f], p[2] - zs[f]];
-                        if dot3(&dr, &dr) > cut_km * cut_km {
+                        if dot(&dr, &dr) > cut_km * cut_km {
                             return false;
                         }
                         let vf = fleet.velocities[k * nf + f];
@@ -546,9 +546,5 @@ fn model_velocity_km_s(
 ) -> [f64; 3] {
     let a = model.position_km(plane, t_s - 0.5, phase(t_s - 0.5));
     let b = model.position_km(plane, t_s + 0.5, phase(t_s + 0.5));
-    [b[0] - a[0], b[1] - a[1], b[2] - a[2]]
-}
-
-fn dot3(a: &[f64; 3], b: &[f64; 3]) -> f64 {
-    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
+    sub(&b, &a)
 }

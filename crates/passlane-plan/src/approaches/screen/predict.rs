@@ -38,7 +38,7 @@
 //! [`PREDICTION_MAX_AGE_DAYS`] from the element set's epoch.
 
 use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
-use passlane_orbit::frames::Vec3;
+use passlane_orbit::frames::{Vec3, dot, sub};
 use passlane_orbit::summary::semi_major_axis_km;
 use passlane_orbit::{ElementSet, UtcTime};
 
@@ -181,7 +181,7 @@ impl MeanModel {
     /// latitude at `t_s` on that of `pos_km`, in (−π, π].
     pub(crate) fn phase_of(&self, t_s: f64, pos_km: &Vec3) -> f64 {
         let (p, q, _, _) = self.axes(t_s);
-        let u = dot3(pos_km, &q).atan2(dot3(pos_km, &p));
+        let u = dot(pos_km, &q).atan2(dot(pos_km, &p));
         let x = u - (self.argp0_rad + self.argp_dot_rad_s * t_s);
         // Invert u − ω = M + 2e·sin M (a contraction: 2e ≤ 0.04).
         let mut m = x;
@@ -360,10 +360,6 @@ impl FleetMidpoints {
     }
 }
 
-fn dot3(a: &Vec3, b: &Vec3) -> f64 {
-    a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
-}
-
 /// `x` wrapped into (−π, π].
 pub(crate) fn wrap_pi(x: f64) -> f64 {
     let tau = std::f64::consts::TAU;
@@ -404,8 +400,8 @@ pub fn prediction_error_km(
             let phi = phi0 + (phi1 - phi0) * (ts - t0) / (t1 - t0).max(1e-9);
             let p = model.position_km(&plane, ts, phi);
             let s = prop.state_at(t).ok()?.position_km;
-            let d = [p[0] - s[0], p[1] - s[1], p[2] - s[2]];
-            worst = worst.max(dot3(&d, &d).sqrt());
+            let d = sub(&p, &s);
+            worst = worst.max(dot(&d, &d).sqrt());
             t = t.add_s(step_s);
         }
         c0 = c1;
