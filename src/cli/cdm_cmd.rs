@@ -48,8 +48,7 @@ pub fn run(args: &CdmArgs, out: &mut dyn Write) -> Result<()> {
     }
     let groups = trend_groups(&messages, args.hard_body_radius_m);
     if format == Format::Json {
-        serde_json::to_writer_pretty(&mut *out, &groups)?;
-        writeln!(out)?;
+        common::write_json(&mut *out, &groups)?;
         return Ok(());
     }
     for g in &groups {
@@ -129,8 +128,7 @@ fn single(
         .recompute_with(&hbr)
         .map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
     if format == Format::Json {
-        serde_json::to_writer_pretty(&mut *out, &a)?;
-        writeln!(out)?;
+        common::write_json(&mut *out, &a)?;
         return Ok(());
     }
     writeln!(

@@ -79,8 +79,7 @@ pub fn run(args: &ElementsArgs, out: &mut dyn Write) -> Result<()> {
         .collect();
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &rows)?;
-            writeln!(out)?;
+            common::write_json(&mut *out, &rows)?;
         }
         _ => {
             writeln!(

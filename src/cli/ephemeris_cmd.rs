@@ -117,8 +117,7 @@ pub fn run(args: &EphemerisArgs, out: &mut dyn Write) -> Result<()> {
     }
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &rows)?;
-            writeln!(out)?;
+            common::write_json(&mut *out, &rows)?;
         }
         _ => {
             if frame == Frame::Geodetic {

@@ -64,8 +64,7 @@ pub fn run(args: &PassesArgs, out: &mut dyn Write) -> Result<()> {
     }
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &report.passes)?;
-            writeln!(out)?;
+            common::write_json(&mut *out, &report.passes)?;
         }
         Format::Csv => write_csv(out, &report.passes)?,
         Format::Table => write_table(
@@ -271,8 +270,7 @@ pub fn run_track(args: &TrackArgs, out: &mut dyn Write) -> Result<()> {
     })?;
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &rows)?;
-            writeln!(out)?;
+            common::write_json(&mut *out, &rows)?;
         }
         _ => {
             write!(

@@ -230,8 +230,7 @@ pub fn run(args: &ScreenArgs, out: &mut dyn Write) -> Result<()> {
     });
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(&mut *out, &rows)?;
-            writeln!(out)?;
+            common::write_json(&mut *out, &rows)?;
         }
         Format::Csv => {
             writeln!(

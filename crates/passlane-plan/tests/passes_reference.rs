@@ -118,11 +118,14 @@ fn compare_with_skyfield(window: &Value, label: &str) {
             "{label}: max el {} vs {max_el}",
             p.max_elevation_deg
         );
-        // The time of maximum is flat-topped: 0.1 s still moves the elevation by
-        // far less than 0.001° (fixture notes); check it loosely.
+        // The time of maximum is flat-topped, so less sharply defined than
+        // AOS/LOS: the fixture notes allow ~1 ms (skyfield's own golden
+        // search against the root of its elevation rate: 0.14 ms). It was
+        // 0.1 s while our culmination came from the interpolant (58 ms
+        // worst); found on direct SGP4 positions it is 0.1 ms worst.
         let tmax = t(e["max_elevation_time"].as_str().unwrap());
         assert!(
-            p.max_elevation_time.s_since(tmax).abs() < 0.1,
+            p.max_elevation_time.s_since(tmax).abs() < 1e-3,
             "{label}: tmax"
         );
         for (key, ours) in [

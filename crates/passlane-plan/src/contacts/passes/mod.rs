@@ -8,9 +8,20 @@
 //!    half-angle λmax for the orbit's highest radius and the station's lowest
 //!    horizon), it jumps ahead by (λ − λmax) divided by an upper bound on how
 //!    fast λ can shrink; it cannot miss a pass because λ cannot reach λmax sooner.
-//! 3. Near a station it samples at a step chosen from the orbit (about 60 s in
-//!    LEO), and in between it interpolates the Earth-fixed state with a cubic
-//!    Hermite polynomial through position and velocity (sub-metre in LEO).
+//!    Where the orbit allows (LEO), it also uses two bounds from the orbit
+//!    plane (`track::PlaneBounds`): a station far from the plane waits for
+//!    the Earth to turn it closer, and a satellite that has just passed a
+//!    station must go round its orbit before it can come back. On the
+//!    12-satellite benchmark week this cut the samples far from stations by
+//!    two thirds.
+//! 3. Near a station it samples at a step chosen from the orbit (about 120 s
+//!    in LEO), and in between it interpolates the Earth-fixed state with a
+//!    cubic Hermite polynomial through position and velocity (within ~5 m in
+//!    LEO). Every figure printed at an instant (AOS, LOS, culmination, closest
+//!    range, sunlight edges, look angles, Doppler) is then moved onto direct
+//!    SGP4, so none depends on where the samples fell (microseconds across
+//!    window starts), and an extremum of the interpolant within its error of
+//!    the horizon is decided on direct SGP4.
 //! 4. Every local maximum of the horizon clearance among the samples is refined
 //!    by a golden-section search, so a grazing pass shorter than a step is found;
 //!    every sign change is refined to 0.1 ms by Brent's method on the
@@ -25,6 +36,7 @@ mod track;
 
 use std::sync::atomic::Ordering;
 
+use passlane_orbit::frames::{Vec3, cross, unit};
 use passlane_orbit::{
     EarthOrientation, ElementSet, Illumination, PropagationError, Propagator, TemeToEarthFixed,
     UtcTime,
@@ -39,7 +51,7 @@ use crate::station::{LinkDirection, Station};
 pub use details::{doppler_shift_hz, tuned_frequency_hz};
 
 use details::describe_pass;
-use track::{OrbitBounds, PreparedStation, Track};
+use track::{OrbitBounds, PlaneBounds, PreparedStation, Track};
 
 /// Settings of one pass search.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -324,13 +336,7 @@ fn passes_of_satellite(
         .iter()
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
         .collect();
-    // "Near" a station: inside its cone widened by one step of travel. Compared
-    // as cosines so that the common case needs no acos.
-    let near = bounds.max_angle_rate_rad_s * bounds.step_s;
-    let cos_near: Vec<f64> = cones
-        .iter()
-        .map(|c| (c + near).min(std::f64::consts::PI).cos())
-        .collect();
+    let plane_bounds = PlaneBounds::of(&bounds);
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
     let mut track = Track::new(options.start);
@@ -342,6 +348,7 @@ fn passes_of_satellite(
     // Reused at every sample (an allocation per sample: ~1 % of a week's
     // search, callgrind).
     let mut cosines: Vec<f64> = Vec::with_capacity(stations.len());
+    let mut plain: Vec<f64> = Vec::with_capacity(stations.len());
     loop {
         let t = options.start.add_s(t_s);
         let teme = match cursor.state_at(t) {
@@ -351,29 +358,58 @@ fn passes_of_satellite(
                 break;
             }
         };
-        let ecef = TemeToEarthFixed::at(t, &eop).state(&teme.position_km, &teme.velocity_km_s);
+        let rot = TemeToEarthFixed::at(t, &eop);
+        let ecef = rot.state(&teme.position_km, &teme.velocity_km_s);
         cosines.clear();
         cosines.extend(
             stations
                 .iter()
                 .map(|s| s.cos_central_angle(&ecef.position_km)),
         );
-        let far = cosines.iter().zip(&cos_near).all(|(c, cn)| c < cn);
-        let at_end = t_s >= total_s;
-        if far && !at_end {
-            let margin = cosines
+        // How long the satellite cannot enter any station's cone: for each
+        // station the larger of the plain bound (central angle over its
+        // fastest rate) and, where they hold, the orbit-plane bounds
+        // (`PlaneBounds`). The plane bounds cost an atan2 per station; while
+        // some station is near by both (during a pass) the others are not
+        // asked.
+        let mut normal: Option<Vec3> = None;
+        let mut plane_skip = |k: usize| -> f64 {
+            let Some(b) = &plane_bounds else { return 0.0 };
+            let n = *normal.get_or_insert_with(|| {
+                unit(&rot.position(&cross(&teme.position_km, &teme.velocity_km_s)))
+            });
+            b.skip_s(&stations[k].up_geocentric, &n, &ecef.position_km, cones[k])
+        };
+        plain.clear();
+        plain.extend(
+            cosines
                 .iter()
                 .zip(&cones)
-                .map(|(c, cone)| c.acos() - cone)
-                .fold(f64::INFINITY, f64::min);
+                .map(|(c, cone)| (c.acos() - cone) / bounds.max_angle_rate_rad_s),
+        );
+        let mut skip = f64::INFINITY;
+        for k in (0..stations.len()).filter(|&k| plain[k] < h) {
+            skip = skip.min(plain[k].max(plane_skip(k)));
+            if skip < h {
+                break;
+            }
+        }
+        if skip >= h {
+            for k in (0..stations.len()).filter(|&k| plain[k] >= h) {
+                skip = skip.min(plain[k].max(plane_skip(k)));
+            }
+        }
+        let far = skip >= h;
+        let at_end = t_s >= total_s;
+        if far && !at_end {
             if in_segment {
                 track.push(t, ecef);
                 scan_segment(set, &prop, stations, &track, &bounds, options, &mut passes);
                 track.clear();
                 in_segment = false;
             }
-            // Cannot come within the cone sooner than margin / max rate.
-            t_s = (t_s + (margin / bounds.max_angle_rate_rad_s).max(h)).min(total_s);
+            // Cannot come within any station's cone sooner.
+            t_s = (t_s + skip).min(total_s);
         } else {
             in_segment = true;
             track.push(t, ecef);
@@ -451,6 +487,11 @@ fn scan_segment(
                 );
                 if v > 0.0 {
                     points.push((t, v));
+                } else if v > -GRAZE
+                    // The interpolant can be this far off: ask SGP4.
+                    && let Some(d) = direct_clearance(prop, st, options, t).filter(|d| *d > 0.0)
+                {
+                    points.push((t, d));
                 }
             } else if is_min && f[i] >= 0.0 {
                 let (t, v) = golden_extremum(
@@ -461,6 +502,10 @@ fn scan_segment(
                 );
                 if v < 0.0 {
                     points.push((t, v));
+                } else if v < GRAZE
+                    && let Some(d) = direct_clearance(prop, st, options, t).filter(|d| *d <= 0.0)
+                {
+                    points.push((t, d));
                 }
             }
         }
@@ -506,6 +551,27 @@ fn scan_segment(
             ));
         }
     }
+}
+
+/// How far the interpolated clearance (a difference of sines) can be from
+/// direct SGP4's: the interpolant is within ~5 m of SGP4 at the 120 s step
+/// (Hermite error Δt⁴/384·ω⁴·r), which is below 1e-5 at any range beyond
+/// 500 km; ten times that. An extremum of the interpolant this close to the
+/// horizon is decided on direct SGP4, so a grazing pass (or a dip below a
+/// mask) of a second or two is neither lost nor invented by the interpolant.
+const GRAZE: f64 = 1e-4;
+
+/// Clearance of direct SGP4's position at `t_s`.
+fn direct_clearance(
+    prop: &Propagator,
+    st: &PreparedStation,
+    options: &PassOptions,
+    t_s: f64,
+) -> Option<f64> {
+    let time = options.start.add_s(t_s);
+    let teme = prop.state_at(time).ok()?;
+    let r = TemeToEarthFixed::at(time, &options.earth_orientation).position(&teme.position_km);
+    Some(st.clearance(&r))
 }
 
 /// The instants (with the clearance there) at which the satellite's azimuth
@@ -568,13 +634,7 @@ fn polish_crossing(
     hi_s: f64,
     interpolated: &dyn Fn(f64) -> f64,
 ) -> f64 {
-    let direct = |t_s: f64| -> Option<f64> {
-        let time = options.start.add_s(t_s);
-        let teme = prop.state_at(time).ok()?;
-        let ecef = TemeToEarthFixed::at(time, &options.earth_orientation)
-            .state(&teme.position_km, &teme.velocity_km_s);
-        Some(st.clearance(&ecef.position_km))
-    };
+    let direct = |t_s: f64| direct_clearance(prop, st, options, t_s);
     let mut t = t0_s;
     for _ in 0..4 {
         let eps = 1e-3;

@@ -4,7 +4,7 @@
 //! let the finder skip ahead.
 
 use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
-use passlane_orbit::frames::{Vec3, dot, norm, sub};
+use passlane_orbit::frames::{Vec3, cross, dot, norm, sub};
 use passlane_orbit::{EarthFixed, ElementSet, Site, UtcTime};
 
 use crate::station::Station;
@@ -187,6 +187,10 @@ pub(super) struct OrbitBounds {
     pub(super) max_radius_km: f64,
     /// Upper bound on the rate of change of the central angle to any station, rad/s.
     pub(super) max_angle_rate_rad_s: f64,
+    /// Bounds on the satellite's angular rate within its own orbit plane,
+    /// h/r², rad/s (padded as the radii are).
+    pub(super) max_in_plane_rate_rad_s: f64,
+    pub(super) min_in_plane_rate_rad_s: f64,
 }
 
 impl OrbitBounds {
@@ -212,14 +216,111 @@ impl OrbitBounds {
         // v/r is largest at perigee (with the padded perigee radius above);
         // 5 % more for the rest of SGP4's wobble.
         let max_rate = (vp / rp + passlane_orbit::constants::EARTH_ROTATION_RAD_S) * 1.05;
-        // Hermite error ≈ Δt⁴/384·ω⁴·r: 60 s at ω = 1.1e-3 rad/s is ~0.3 m; keep
-        // the same ω·Δt product for faster or slower orbits.
+        // Hermite error ≈ Δt⁴/384·ω⁴·r: 120 s at ω = 1.1e-3 rad/s is ~5 m
+        // (60 s, ~0.3 m, until every printed instant was moved onto direct
+        // SGP4; the longer step halved the samples near stations, a quarter
+        // of a week's search); keep the same ω·Δt product for faster or
+        // slower orbits.
         let omega_p = vp / rp;
-        let step_s = (60.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
+        let step_s = (120.0 * 1.15e-3 / omega_p).clamp(10.0, 600.0);
+        // h/r² lies between h/ra² and h/rp² for the padded radii, with
+        // h = √(μ·p) and rp ≤ p = a(1 − e²) ≤ a (osculating, so a padded
+        // as the radii are); the same 5 % each way.
+        let h_min = (MU_WGS72_KM3_S2 * rp).sqrt();
+        let h_max = (MU_WGS72_KM3_S2 * (a + pad_km)).sqrt();
         OrbitBounds {
             step_s,
             max_radius_km: ra,
             max_angle_rate_rad_s: max_rate,
+            max_in_plane_rate_rad_s: h_max / (rp * rp) * 1.05,
+            min_in_plane_rate_rad_s: h_min / (ra * ra) / 1.05,
         }
+    }
+}
+
+/// Two more lower bounds on when a satellite can next enter a station's
+/// visibility cone, from its orbit plane. They look ahead a whole orbit
+/// where the plain bound (central angle over its fastest rate) sees only to
+/// the next minute, because the satellite only moves forwards in its plane.
+///
+/// Work in an inertial frame (TEME; the angles are the same in the
+/// Earth-fixed one at one instant). The satellite lies in its osculating
+/// plane, normal ĥ = r × v / |r × v|; a station's geocentric direction ŝ is
+/// at angle β = asin(ŝ·ĥ) from the plane, and its projection p̂ on the
+/// plane is at angle Δu behind the satellite, measured about ĥ. By the
+/// spherical right triangle, the central angle λ between them has
+/// cos λ = cos β · cos Δu, so λ ≤ cone needs both |β| ≤ cone and
+/// |Δu| ≤ cone.
+/// - **Plane bound.** ŝ turns with the Earth (|dŝ/dt| ≤ ω⊕) and ĥ moves only
+///   by J2 precession and short-period wobble (well below 1e-5 rad/s in LEO:
+///   |Ω̇| ≤ 1.5·n·J2·(R⊕/p)² ≈ 1.7e-6 rad/s, short-period terms of amplitude
+///   ~5e-4 rad at twice the orbital rate ≈ 1.1e-6 rad/s; `PLANE_DRIFT`
+///   allows 1e-5), so |β| cannot fall to the cone sooner than
+///   (|β| − cone) / (ω⊕ + drift).
+/// - **Phase bound.** While |β| ≤ 60°, the projection p̂ moves along the
+///   plane at most (ω⊕ + drift)/cos β + drift ≤ 2·(ω⊕ + drift) + drift =: δ,
+///   while the satellite moves forwards at h/r² ≥ n_min > δ (the bound is
+///   used only for such orbits). So Δu only grows, at most at n_max + δ,
+///   and from outside [−cone, cone] it must grow by
+///   D = (−cone − Δu) mod 2π before it is inside: no entry sooner than
+///   D / (n_max + δ), nor (for the 60° above) sooner than
+///   (60° − |β|) / (ω⊕ + drift).
+///
+/// The cone is widened by `PAD_RAD` for SGP4's velocity not being exactly
+/// the derivative of its position (~0.3 m/s: ĥ off by < 1e-4 rad).
+pub(super) struct PlaneBounds {
+    max_in_plane_rate_rad_s: f64,
+}
+
+/// Bound on the rate at which an osculating LEO orbit plane turns in an
+/// inertial frame, rad/s (see `PlaneBounds`).
+const PLANE_DRIFT_RAD_S: f64 = 1e-5;
+/// Widening of the cone for the plane bounds, rad (0.2°).
+const PAD_RAD: f64 = 0.2 * std::f64::consts::PI / 180.0;
+/// |β| up to which the phase bound holds, rad (60°).
+const PHASE_MAX_BETA_RAD: f64 = std::f64::consts::FRAC_PI_3;
+
+impl PlaneBounds {
+    const TURN_RAD_S: f64 = passlane_orbit::constants::EARTH_ROTATION_RAD_S + PLANE_DRIFT_RAD_S;
+    /// δ of the phase bound: how fast the station's projection can move.
+    const PROJECTION_RATE_RAD_S: f64 = 2.0 * Self::TURN_RAD_S + PLANE_DRIFT_RAD_S;
+
+    /// The bounds for an orbit, or `None` where the phase bound's premise
+    /// (the satellite outruns the station's projection, with room) fails:
+    /// slow orbits (GEO, the apogee of a Molniya orbit).
+    pub(super) fn of(bounds: &OrbitBounds) -> Option<Self> {
+        (bounds.min_in_plane_rate_rad_s > 2.0 * Self::PROJECTION_RATE_RAD_S).then_some(
+            PlaneBounds {
+                max_in_plane_rate_rad_s: bounds.max_in_plane_rate_rad_s,
+            },
+        )
+    }
+
+    /// Seconds before the satellite (Earth-fixed position `r_km`, unit orbit
+    /// normal `normal`, both Earth-fixed) can enter the cone of half-angle
+    /// `cone_rad` about the station direction `up` (unit, Earth-fixed).
+    pub(super) fn skip_s(&self, up: &Vec3, normal: &Vec3, r_km: &Vec3, cone_rad: f64) -> f64 {
+        let cone = cone_rad + PAD_RAD;
+        let sin_beta = dot(up, normal);
+        let beta = sin_beta.clamp(-1.0, 1.0).asin().abs();
+        let plane = ((beta - cone) / Self::TURN_RAD_S).max(0.0);
+        if beta >= PHASE_MAX_BETA_RAD {
+            return plane;
+        }
+        // Projection of the station on the plane (length cos β), and the
+        // satellite's angle ahead of it about the normal.
+        let p = [
+            up[0] - sin_beta * normal[0],
+            up[1] - sin_beta * normal[1],
+            up[2] - sin_beta * normal[2],
+        ];
+        let ahead = dot(normal, &cross(&p, r_km)).atan2(dot(&p, r_km));
+        if ahead.abs() <= cone {
+            return plane;
+        }
+        let to_go = (-cone - ahead).rem_euclid(std::f64::consts::TAU);
+        let phase = (to_go / (self.max_in_plane_rate_rad_s + Self::PROJECTION_RATE_RAD_S))
+            .min((PHASE_MAX_BETA_RAD - beta) / Self::TURN_RAD_S);
+        plane.max(phase)
     }
 }
