@@ -206,3 +206,32 @@ fn hostile_xml_is_refused_before_it_costs_anything() {
         }
     }
 }
+
+#[test]
+fn deep_nesting_is_refused_at_the_limit_without_a_stack_of_it() {
+    // A tree reader descended into nested groups by recursion; the stream
+    // reader keeps a stack of open elements, which a limit keeps small.
+    let xml = xml_of(GOOD);
+    for (open, close) in [
+        ("<a>", "</a>"),
+        ("<relativeStateVector>", "</relativeStateVector>"),
+    ] {
+        let deep = format!("{}{}", open.repeat(100_000), close.repeat(100_000));
+        let bad = xml.replacen("<TCA>", &format!("{deep}\n      <TCA>"), 1);
+        let e = refused(&bad);
+        assert!(e.reason.contains("nested more than 100 deep"), "{e}");
+        assert_eq!(e.line, line_of(&bad, open), "{e}");
+    }
+    // Within the limit, nothing changes: a nested comment still reads.
+    let nested = xml.replacen(
+        "<header>",
+        &format!(
+            "<header><COMMENT>{}x{}</COMMENT>",
+            "<a>".repeat(50),
+            "</a>".repeat(50)
+        ),
+        1,
+    );
+    let c = Cdm::parse(&nested, "n.xml").unwrap();
+    assert_eq!(c.header.comments[0], "");
+}

@@ -53,6 +53,13 @@ enum SegmentStep {
     DataKeywords,
 }
 
+/// The deepest nesting read: a CDM nests six elements (`<cdm>`, `<body>`,
+/// `<segment>`, `<data>`, a logical block, a keyword). A limit keeps the
+/// stack of open elements (here and in the XML parser, which checks every
+/// end tag against it) small whatever the text: 16 MB of `<a>` would open
+/// five million.
+const MAX_DEPTH: usize = 100;
+
 const ROOT_CHILDREN: [&str; 2] = ["header", "body"];
 const BODY_CHILDREN: [&str; 2] = ["relativeMetadataData", "segment"];
 const SEGMENT_CHILDREN: [&str; 2] = ["metadata", "data"];
@@ -650,6 +657,17 @@ impl Cdm {
                     }
                     let local = e.local_name();
                     let name: &str = local.as_ref();
+                    if r.stack.len() >= MAX_DEPTH {
+                        r.fault(
+                            Step::WellFormed,
+                            line,
+                            name,
+                            format!(
+                                "elements nested more than {MAX_DEPTH} deep, where a CDM nests 6 (CCSDS 508.0-B-1 §4)"
+                            ),
+                        );
+                        break;
+                    }
                     let role = r.start(e, name, line);
                     r.stack.push(Open {
                         role,
