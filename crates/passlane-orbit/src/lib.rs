@@ -23,7 +23,7 @@ pub mod summary;
 pub mod sun;
 pub mod text;
 pub mod time;
-mod xml;
+pub mod xml;
 
 pub use elements::{Diagnostic, ElementSet, LoadOptions, LoadReport, Severity, SourceRef};
 pub use frames::{EarthFixed, EarthOrientation, Geodetic, LookAngles, Site, TemeToEarthFixed};

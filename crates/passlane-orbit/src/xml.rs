@@ -1,19 +1,20 @@
-//! What the streaming XML readers (OMM, OEM) share: line numbers counted
-//! forwards as the reader advances, and the entity references they accept.
+//! What the streaming XML readers (OMM, OEM here; the CDM in the plan crate)
+//! share: line numbers counted forwards as the reader advances, and the
+//! entity references they accept.
 
 use quick_xml::events::BytesRef;
 
 /// Line numbers of byte offsets in a text, counted forwards from the last
 /// offset asked about (offsets asked in increasing order cost one pass over
 /// the text in all; an earlier offset counts again from the start).
-pub(crate) struct ForwardLines<'t> {
+pub struct ForwardLines<'t> {
     text: &'t [u8],
     /// (offset, line) last asked about.
     cursor: (usize, usize),
 }
 
 impl<'t> ForwardLines<'t> {
-    pub(crate) fn new(text: &'t str) -> Self {
+    pub fn new(text: &'t str) -> Self {
         ForwardLines {
             text: text.as_bytes(),
             cursor: (0, 1),
@@ -21,7 +22,7 @@ impl<'t> ForwardLines<'t> {
     }
 
     /// The 1-based line holding byte `offset` (clamped to the text).
-    pub(crate) fn line_at(&mut self, offset: u64) -> usize {
+    pub fn line_at(&mut self, offset: u64) -> usize {
         let offset = usize::try_from(offset)
             .unwrap_or(usize::MAX)
             .min(self.text.len());
@@ -43,7 +44,7 @@ impl<'t> ForwardLines<'t> {
 /// A character reference (`&#48;`, `&#x30;`) or one of XML's five
 /// predefined entities; `None` for anything else (a DTD entity is never
 /// expanded, so no entity can multiply the input).
-pub(crate) fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
+pub fn resolve_reference(r: &BytesRef<'_>) -> Option<String> {
     match r.resolve_char_ref() {
         Ok(Some(c)) => Some(c.to_string()),
         Ok(None) => {

@@ -7,10 +7,15 @@
 //!
 //! Run: `cargo bench -p passlane-plan --bench readers`. As in the element
 //! loader bench (`passlane-orbit`'s `loader`), each case runs in a child
-//! process of its own (`PASSLANE_READERS_BENCH_CASE`), builds its input,
-//! notes its peak resident memory (VmHWM), reads, and reports how much the
-//! peak grew beside the input, compared with the input's size (every record
-//! here is good; target: under 2× plus a constant).
+//! process of its own (`PASSLANE_READERS_BENCH_CASE`): the parent builds the
+//! input and leaves it in a temporary file, the child reads the file into
+//! one string, resets the kernel's peak-memory mark to the memory in use now
+//! (writing `5` to `/proc/self/clear_refs`), reads, and reports how far the
+//! peak rose above that, compared with the input's size (every record here
+//! is good; target: under 2× plus a constant). Building the input in the
+//! measured process left its scratch memory behind (freed, still resident,
+//! reused by the reader) and in the peak mark, which hid up to twice the
+//! input of the reader's own peak.
 
 #![allow(clippy::panic, clippy::unwrap_used, clippy::expect_used)]
 
@@ -24,20 +29,42 @@ use passlane_plan::scenario::Scenario;
 
 const CASES: [&str; 4] = ["cdm-kvn", "cdm-xml", "scenario-compact", "scenario"];
 const CHILD_VAR: &str = "PASSLANE_READERS_BENCH_CASE";
+const INPUT_VAR: &str = "PASSLANE_READERS_BENCH_INPUT";
 const GOOD_CDM: &str = include_str!("../tests/fixtures/cdm/ormivel_vs_debris_99871.kvn");
 
 fn main() {
-    if let Ok(case) = std::env::var(CHILD_VAR) {
-        one(&case);
+    if let (Ok(case), Ok(input)) = (std::env::var(CHILD_VAR), std::env::var(INPUT_VAR)) {
+        let text = std::fs::read_to_string(&input).expect("the case's input");
+        one(&case, &text);
         return;
     }
     let exe = std::env::current_exe().expect("the bench's own path");
     for case in CASES {
+        let input = std::env::temp_dir().join(format!(
+            "passlane-readers-bench-{}-{case}.txt",
+            std::process::id()
+        ));
+        std::fs::write(&input, input_of(case)).expect("write the case's input");
         let status = std::process::Command::new(&exe)
             .env(CHILD_VAR, case)
+            .env(INPUT_VAR, &input)
             .status()
             .expect("run the bench for one case");
+        let _ = std::fs::remove_file(&input);
         assert!(status.success(), "{case}: {status}");
+    }
+}
+
+fn input_of(case: &str) -> String {
+    match case {
+        "cdm-kvn" => padded_cdm(false, 240_000),
+        "cdm-xml" => padded_cdm(true, 220_000),
+        "scenario-compact" => scenario_text(370_000),
+        // As the program writes it (pretty, every field): the compact one read
+        // and written back.
+        _ => Scenario::from_json(&scenario_text(120_000), "compact.json")
+            .unwrap()
+            .to_json(),
     }
 }
 
@@ -76,30 +103,41 @@ fn scenario_text(n: usize) -> String {
     )
 }
 
-fn one(case: &str) {
-    let text = match case {
-        "cdm-kvn" => padded_cdm(false, 240_000),
-        "cdm-xml" => padded_cdm(true, 220_000),
-        "scenario-compact" => scenario_text(370_000),
-        // As the program writes it (pretty, every field): the compact one read
-        // and written back.
-        _ => Scenario::from_json(&scenario_text(120_000), "compact.json")
-            .unwrap()
-            .to_json(),
-    };
-    let peak_before_mb = support::max_rss_mb();
+/// Resets the process's peak resident memory (VmHWM) to its resident memory
+/// now and returns that, MB; `None` where the kernel does not allow it.
+fn reset_peak_mb() -> Option<f64> {
+    std::fs::write("/proc/self/clear_refs", "5").ok()?;
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let kb: f64 = status
+        .lines()
+        .find(|l| l.starts_with("VmRSS:"))?
+        .split_whitespace()
+        .nth(1)?
+        .parse()
+        .ok()?;
+    Some(kb / 1024.0)
+}
+
+fn one(case: &str, text: &str) {
+    let peak_before_mb = reset_peak_mb().unwrap_or_else(support::max_rss_mb);
     let mut best = f64::INFINITY;
     let mut grown_mb = f64::NAN;
     let mut what = String::new();
     for run in 0..3 {
         let t0 = Instant::now();
         what = if case.starts_with("scenario") {
-            match Scenario::from_json_with_warnings(&text, "bench.json") {
-                Ok((s, w)) => format!("{} stations, {} warnings", s.stations.len(), w.len()),
+            match Scenario::from_json_with_warnings(text, "bench.json") {
+                Ok((s, w)) => format!(
+                    "{} stations ({} B of text, {} B of struct each), {} warnings",
+                    s.stations.len(),
+                    text.len() / s.stations.len().max(1),
+                    std::mem::size_of::<passlane_plan::Station>(),
+                    w.len()
+                ),
                 Err(e) => format!("refused: {e}"),
             }
         } else {
-            match Cdm::parse(&text, "bench") {
+            match Cdm::parse(text, "bench") {
                 Ok(c) => format!("read, miss {} m", c.relative.miss_distance_m),
                 Err(e) => format!("refused: {e}"),
             }

@@ -8,12 +8,17 @@
 //! drift from the structs; only the map from a key to its nested struct is
 //! written here, and a nested struct it does not list is simply not checked
 //! (never a false warning).
+//!
+//! [`scan_keys`] does this on the text itself, as a stream: no tree of the
+//! document is built (a generic JSON tree of a scenario of many small
+//! stations took ~8× the text), only the unknown keys found are kept. It
+//! names the same keys, in the same order, as [`unknown_keys`] on the tree.
 
 use std::cell::Cell;
 
 use passlane_orbit::EarthOrientation;
 use serde::Deserialize;
-use serde::de::{self, Deserializer, Visitor};
+use serde::de::{self, DeserializeSeed, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde_json::Value;
 
 use crate::scenario::{
@@ -135,6 +140,295 @@ fn walk(value: &Value, kind: Kind, path: &str, out: &mut Vec<UnknownKey>) {
     }
 }
 
+/// What [`scan_keys`] finds in a scenario's text.
+#[derive(Debug, Clone, PartialEq)]
+pub struct KeyScan {
+    /// The top-level `format_version`, when it is a whole number ≥ 0 (the
+    /// last one, if the key is repeated).
+    pub format_version: Option<u64>,
+    /// Every key the reader ignores, as [`unknown_keys`] names them.
+    pub unknown: Vec<UnknownKey>,
+}
+
+/// Reads `text` (a whole scenario) as a stream of JSON tokens and returns
+/// its format version and the keys the reader ignores, without building a
+/// tree of the document. Fails where `serde_json::from_str::<Value>` would,
+/// with the same error (the same parser reads every value).
+pub fn scan_keys(text: &str) -> Result<KeyScan, serde_json::Error> {
+    let mut de = serde_json::Deserializer::from_str(text);
+    let mut format_version = None;
+    let unknown = Node {
+        kind: Some(Kind::Scenario),
+        at: &Place::Root,
+        format_version: Some(&mut format_version),
+    }
+    .deserialize(&mut de)?;
+    de.end()?;
+    Ok(KeyScan {
+        format_version,
+        unknown,
+    })
+}
+
+/// Where a value is in the document: its path is written out only for an
+/// unknown key, so a document of good keys costs no text per value.
+enum Place<'a> {
+    Root,
+    Key(&'a Place<'a>, &'a str),
+    Index(&'a Place<'a>, usize),
+}
+
+impl Place<'_> {
+    /// The path as [`unknown_keys`] writes it (`stations[1].lattitude_deg`).
+    fn path(&self) -> String {
+        match self {
+            Place::Root => String::new(),
+            Place::Key(parent, key) => {
+                let parent = parent.path();
+                // A key is text from the file: no control characters or
+                // terminal escapes reach a message.
+                let shown = passlane_orbit::text::clean(key, false);
+                if parent.is_empty() {
+                    shown.into_owned()
+                } else {
+                    format!("{parent}.{shown}")
+                }
+            }
+            Place::Index(parent, i) => format!("{}[{i}]", parent.path()),
+        }
+    }
+}
+
+/// A value whose keys are checked against the struct `kind` (objects, and
+/// arrays of them at any depth, as [`walk`] does); `None`: a value whose
+/// keys are not checked, read only to be skipped.
+struct Node<'a> {
+    kind: Option<Kind>,
+    at: &'a Place<'a>,
+    /// The top level only: where its `format_version` goes.
+    format_version: Option<&'a mut Option<u64>>,
+}
+
+impl<'de> DeserializeSeed<'de> for Node<'_> {
+    type Value = Vec<UnknownKey>;
+
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<Self::Value, D::Error> {
+        // `deserialize_any`, not `deserialize_ignored_any`, even for values
+        // that are skipped: numbers are then parsed in full, and a document
+        // is refused exactly where the tree reader refuses it.
+        d.deserialize_any(self)
+    }
+}
+
+/// A key as read: borrowed from the text unless it holds escapes.
+enum KeyText<'de> {
+    Borrowed(&'de str),
+    Owned(String),
+}
+
+impl KeyText<'_> {
+    fn as_str(&self) -> &str {
+        match self {
+            KeyText::Borrowed(s) => s,
+            KeyText::Owned(s) => s,
+        }
+    }
+}
+
+impl<'de> Deserialize<'de> for KeyText<'de> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct KeyVisitor;
+        impl<'de> Visitor<'de> for KeyVisitor {
+            type Value = KeyText<'de>;
+            fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                f.write_str("a string key")
+            }
+            fn visit_borrowed_str<E: de::Error>(self, v: &'de str) -> Result<Self::Value, E> {
+                Ok(KeyText::Borrowed(v))
+            }
+            fn visit_str<E: de::Error>(self, v: &str) -> Result<Self::Value, E> {
+                Ok(KeyText::Owned(v.to_string()))
+            }
+        }
+        d.deserialize_str(KeyVisitor)
+    }
+}
+
+impl<'de> Visitor<'de> for Node<'_> {
+    type Value = Vec<UnknownKey>;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("any JSON value")
+    }
+
+    fn visit_map<A: MapAccess<'de>>(mut self, mut map: A) -> Result<Self::Value, A::Error> {
+        // The unknown keys under each key of this object, for the keys that
+        // have any: the tree reader's objects iterate in key order (a
+        // `BTreeMap`), so these are sorted before they are handed up.
+        let mut found: Vec<(String, Vec<UnknownKey>)> = Vec::new();
+        while let Some(key) = map.next_key::<KeyText<'de>>()? {
+            let key = key.as_str();
+            let at = Place::Key(self.at, key);
+            let Some(kind) = self.kind else {
+                map.next_value_seed(Node {
+                    kind: None,
+                    at: &at,
+                    format_version: None,
+                })?;
+                continue;
+            };
+            if let Some(version) = self.format_version.as_deref_mut()
+                && key == "format_version"
+            {
+                *version = map.next_value_seed(WholeNumber)?;
+                continue;
+            }
+            let here = if kind.fields().contains(&key) {
+                map.next_value_seed(Node {
+                    kind: kind.child(key),
+                    at: &at,
+                    format_version: None,
+                })?
+            } else {
+                map.next_value_seed(Node {
+                    kind: None,
+                    at: &at,
+                    format_version: None,
+                })?;
+                vec![UnknownKey {
+                    path: at.path(),
+                    suggestion: closest(key, kind.fields()),
+                }]
+            };
+            // A repeated key whose last value has no unknown key hides what
+            // an earlier value had, as in the tree.
+            if !here.is_empty() || found.iter().any(|(k, _)| k == key) {
+                found.push((key.to_string(), here));
+            }
+        }
+        // A stable sort: of a repeated key, whose last value the tree
+        // keeps, the last stays last.
+        found.sort_by(|a, b| a.0.cmp(&b.0));
+        let mut out: Vec<UnknownKey> = Vec::new();
+        let mut found = found.into_iter().peekable();
+        while let Some((key, mut keys)) = found.next() {
+            if found.peek().is_none_or(|(next, _)| *next != key) {
+                out.append(&mut keys);
+            }
+        }
+        Ok(out)
+    }
+
+    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Self::Value, A::Error> {
+        let mut out = Vec::new();
+        let mut i = 0usize;
+        loop {
+            let at = Place::Index(self.at, i);
+            let Some(mut keys) = seq.next_element_seed(Node {
+                kind: self.kind,
+                at: &at,
+                format_version: None,
+            })?
+            else {
+                break;
+            };
+            out.append(&mut keys);
+            i += 1;
+        }
+        Ok(out)
+    }
+
+    fn visit_bool<E: de::Error>(self, _: bool) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+
+    fn visit_i64<E: de::Error>(self, _: i64) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+
+    fn visit_u64<E: de::Error>(self, _: u64) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+
+    fn visit_f64<E: de::Error>(self, _: f64) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+
+    fn visit_str<E: de::Error>(self, _: &str) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+
+    fn visit_unit<E: de::Error>(self) -> Result<Self::Value, E> {
+        Ok(Vec::new())
+    }
+}
+
+/// The top-level `format_version` as the tree reader's `Value::as_u64`
+/// reads it: a whole number ≥ 0, else `None` (the value is skipped).
+struct WholeNumber;
+
+impl<'de> DeserializeSeed<'de> for WholeNumber {
+    type Value = Option<u64>;
+
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<Self::Value, D::Error> {
+        d.deserialize_any(self)
+    }
+}
+
+impl<'de> Visitor<'de> for WholeNumber {
+    type Value = Option<u64>;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("any JSON value")
+    }
+
+    fn visit_u64<E: de::Error>(self, v: u64) -> Result<Self::Value, E> {
+        Ok(Some(v))
+    }
+
+    fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<Self::Value, A::Error> {
+        let at = Place::Root;
+        Node {
+            kind: None,
+            at: &at,
+            format_version: None,
+        }
+        .visit_map(map)
+        .map(|_| None)
+    }
+
+    fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Self::Value, A::Error> {
+        let at = Place::Root;
+        Node {
+            kind: None,
+            at: &at,
+            format_version: None,
+        }
+        .visit_seq(seq)
+        .map(|_| None)
+    }
+
+    fn visit_bool<E: de::Error>(self, _: bool) -> Result<Self::Value, E> {
+        Ok(None)
+    }
+
+    fn visit_i64<E: de::Error>(self, _: i64) -> Result<Self::Value, E> {
+        Ok(None)
+    }
+
+    fn visit_f64<E: de::Error>(self, _: f64) -> Result<Self::Value, E> {
+        Ok(None)
+    }
+
+    fn visit_str<E: de::Error>(self, _: &str) -> Result<Self::Value, E> {
+        Ok(None)
+    }
+
+    fn visit_unit<E: de::Error>(self) -> Result<Self::Value, E> {
+        Ok(None)
+    }
+}
+
 /// The known key nearest to `key` by edit distance, if it is near enough to
 /// be a likely typo (at most a third of the key's length, at least 2 edits
 /// allowed), or the known key that `key` contains or is contained in
@@ -206,6 +500,7 @@ impl<'de> Deserializer<'de> for FieldProbe<'_> {
 }
 
 #[cfg(test)]
+#[allow(clippy::unwrap_used, clippy::panic)]
 mod tests {
     use super::*;
 
@@ -242,6 +537,155 @@ mod tests {
         let v: Value = serde_json::from_str("{\"format_version\":1,\"x\\u001b[31m\":1}").unwrap();
         let found: Vec<String> = unknown_keys(&v).iter().map(|k| k.to_string()).collect();
         assert_eq!(found, vec!["x?[31m: unknown key, ignored"]);
+    }
+
+    /// The streaming scan against the tree walk on one text: the same
+    /// unknown keys in the same order, the same format version, the same
+    /// error where the text is not JSON.
+    fn same_as_the_tree(text: &str) {
+        match (scan_keys(text), serde_json::from_str::<Value>(text)) {
+            (Ok(scan), Ok(v)) => {
+                assert_eq!(scan.unknown, unknown_keys(&v), "{text}");
+                let version = v.get("format_version").and_then(Value::as_u64);
+                assert_eq!(scan.format_version, version, "{text}");
+            }
+            (Err(a), Err(b)) => assert_eq!(a.to_string(), b.to_string(), "{text}"),
+            (a, b) => panic!("{text}: the scan gives {a:?}, the tree {b:?}"),
+        }
+    }
+
+    #[test]
+    fn the_streaming_scan_names_what_the_tree_walk_names() {
+        let deep = format!("{}1{}", "[".repeat(200), "]".repeat(200));
+        for text in [
+            r#"{"format_version":1,"elements_files":[],
+                "stations":[{"name":"A","lattitude_deg":1,"latitude_deg":1,"longitude_deg":2,
+                             "antennas":[{"name":"x","turnaround":5}]}],
+                "screening":{"threshold_km":5,"colour":"red"}}"#,
+            // Keys out of order, repeated (the tree keeps the last value),
+            // with escapes, nested arrays of stations, a non-object root.
+            r#"{"zz":1,"stations":[[{"nme":"a"}],{"name":"b","mount":{"max_az":1}}],"aa":{"b":[1,{"c":2}]},"zz":2,"format_version":3}"#,
+            r#"{"format_version":1,"format_version":"2"}"#,
+            // A repeated struct key: the unknown keys of its last value only
+            // (found by the generated documents below).
+            r#"{"pins":{"name":3.0,"turnaround":1.0},"pins":["liet"]}"#,
+            r#"{"pins":["liet"],"pins":{"name":3.0,"turnaround":1.0}}"#,
+            r#"{"format_version":-1,"x\u001b[31m":1,"a\"b":2,"\u00e9t\u00e9":3}"#,
+            r#"{"format_version":1.0,"stations":{"nam":"an object where a list belongs"}}"#,
+            r#"[{"format_version":1,"nope":2},{"stations":[{"lat":1}]}]"#,
+            "7",
+            "null",
+            r#"{"format_version":18446744073709551615,"big":1e308,"small":-1e-320}"#,
+            // Not JSON, in several ways: the same message, line and column.
+            r#"{"format_version":1,"huge":1e400}"#,
+            r#"{"format_version":1,}"#,
+            r#"{"format_version":1} trailing"#,
+            r#"{"a":"\ud800"}"#,
+            r#"{"a":"\x"}"#,
+            "{\"a\":\"line\nbreak\"}",
+            "",
+            "   ",
+            &deep,
+        ] {
+            same_as_the_tree(text);
+        }
+        // Every cut of a document with unknown keys is refused alike.
+        let doc = r#"{"format_version":1,"stations":[{"name":"A","lattitude_deg":1.5e3,"antennas":[{"name":"x","turnaround":5}]}],"colour":"red"}"#;
+        for cut in 0..doc.len() {
+            same_as_the_tree(&doc[..cut]);
+        }
+    }
+
+    /// A JSON document as text, repeated keys allowed (a tree cannot hold
+    /// them, so the generator writes text).
+    #[derive(Debug, Clone)]
+    enum Doc {
+        Number(f64),
+        Text(String),
+        List(Vec<Doc>),
+        Object(Vec<(String, Doc)>),
+    }
+
+    impl Doc {
+        fn write(&self, out: &mut String) {
+            match self {
+                Doc::Number(x) => out.push_str(&format!("{x:?}")),
+                Doc::Text(t) => out.push_str(&serde_json::to_string(t).unwrap()),
+                Doc::List(items) => {
+                    out.push('[');
+                    for (i, d) in items.iter().enumerate() {
+                        if i > 0 {
+                            out.push(',');
+                        }
+                        d.write(out);
+                    }
+                    out.push(']');
+                }
+                Doc::Object(entries) => {
+                    out.push('{');
+                    for (i, (k, d)) in entries.iter().enumerate() {
+                        if i > 0 {
+                            out.push(',');
+                        }
+                        out.push_str(&serde_json::to_string(k).unwrap());
+                        out.push(':');
+                        d.write(out);
+                    }
+                    out.push('}');
+                }
+            }
+        }
+    }
+
+    fn doc() -> impl proptest::strategy::Strategy<Value = Doc> {
+        use proptest::prelude::*;
+        // Known keys (some holding nested structs), typos, and odd text.
+        let key = prop::sample::select(vec![
+            "format_version",
+            "name",
+            "stations",
+            "screening",
+            "window",
+            "satellites",
+            "pins",
+            "antennas",
+            "channels",
+            "mount",
+            "horizon_mask",
+            "latitude_deg",
+            "longitude_deg",
+            "threshold_km",
+            "lattitude_deg",
+            "colour",
+            "stationz",
+            "antenas",
+            "turnaround",
+            "x\u{1b}[1m",
+            "é",
+            "a\"b",
+            "",
+        ])
+        .prop_map(str::to_string);
+        let leaf = prop_oneof![
+            (-1e6f64..1e6).prop_map(Doc::Number),
+            (0u32..4).prop_map(|n| Doc::Number(f64::from(n))),
+            "[a-z]{0,4}".prop_map(Doc::Text),
+        ];
+        leaf.prop_recursive(5, 60, 6, move |inner| {
+            prop_oneof![
+                prop::collection::vec(inner.clone(), 0..5).prop_map(Doc::List),
+                prop::collection::vec((key.clone(), inner), 0..6).prop_map(Doc::Object),
+            ]
+        })
+    }
+
+    proptest::proptest! {
+        #[test]
+        fn the_streaming_scan_matches_the_tree_walk_on_any_document(d in doc()) {
+            let mut text = String::new();
+            d.write(&mut text);
+            same_as_the_tree(&text);
+        }
     }
 
     #[test]

@@ -40,6 +40,10 @@ mod kvn_write;
 mod read;
 mod trend;
 mod xml;
+mod xml_checks;
+mod xml_read;
+#[cfg(test)]
+mod xml_read_tests;
 
 use passlane_orbit::UtcTime;
 use serde::Serialize;

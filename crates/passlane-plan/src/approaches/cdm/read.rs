@@ -394,7 +394,7 @@ impl RawMessage {
             ));
         }
         let header = CdmHeader {
-            comments: sections[0].comments.clone(),
+            comments: Vec::new(),
             ccsds_cdm_vers: version,
             creation_date: h.time("CREATION_DATE")?,
             originator: h.text("ORIGINATOR")?,
@@ -416,7 +416,7 @@ impl RawMessage {
             ));
         }
         let relative = CdmRelative {
-            comments: sections[1].comments.clone(),
+            comments: Vec::new(),
             tca: r.time("TCA")?,
             miss_distance_m: r.num("MISS_DISTANCE")?,
             relative_speed_m_s: r.opt_num("RELATIVE_SPEED")?,
@@ -487,12 +487,22 @@ impl RawMessage {
                 ),
             ));
         }
-        Ok(Cdm {
+        // The comments move out of the raw sections rather than being
+        // copied: a message may be mostly comments (the standard bounds
+        // neither their number nor their length), and a copy doubled its
+        // memory.
+        let [c0, c1, c2, c3] = self.sections.map(|s| s.comments);
+        let mut cdm = Cdm {
             header,
             relative,
             object1,
             object2,
-        })
+        };
+        cdm.header.comments = c0;
+        cdm.relative.comments = c1;
+        cdm.object1.comments = c2;
+        cdm.object2.comments = c3;
+        Ok(cdm)
     }
 }
 
@@ -545,7 +555,8 @@ fn read_object(
         });
     }
     let obj = CdmObject {
-        comments: raw.comments.clone(),
+        // Moved in by the caller once every check has run.
+        comments: Vec::new(),
         object,
         object_designator: f.text("OBJECT_DESIGNATOR")?,
         catalog_name: f.text("CATALOG_NAME")?,

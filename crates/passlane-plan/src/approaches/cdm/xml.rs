@@ -16,16 +16,15 @@
 //! ```
 //!
 //! Keyword elements carry the KVN keyword as their tag and the unit in a
-//! `units` attribute (4.3.10). The reader flattens the structure back into
-//! the KVN sections and validates them with the same code as the KVN reader,
-//! so both forms accept and refuse the same content. Element names are
-//! compared by local name, so the namespace-qualified form (Cor. 2) reads too.
+//! `units` attribute (4.3.10). This module writes the form; `xml_read.rs`
+//! reads it, as a stream of tags, flattening the structure back into the
+//! KVN sections, which it validates with the same code as the KVN reader,
+//! so both forms accept and refuse the same content.
 
 use std::io::Write;
 
-use super::keywords::{Kind, OBJECT_BLOCKS};
+use super::keywords::OBJECT_BLOCKS;
 use super::kvn_write::SectionOut;
-use super::read::{Ctx, RawKv, RawMessage, RawSection, Section, excerpt, table_of};
 use super::{Cdm, CdmError};
 
 /// Schema location written on the root element (508.0-B-1 4.3.3.4, Cor. 2).
@@ -177,7 +176,7 @@ fn write_segment(w: &mut dyn Write, o: &SectionOut) -> std::io::Result<()> {
 /// Whether keyword `key` may stand directly inside `<parent>`: object
 /// metadata in `<metadata>`, each data keyword in its logical block
 /// (508.0-B-1 Table 4-1), none directly in `<data>`.
-fn fits(parent: &str, key: &str) -> bool {
+pub(super) fn fits(parent: &str, key: &str) -> bool {
     let Some(p) = position(key) else {
         return true;
     };
@@ -201,262 +200,7 @@ fn block_range(first: &str, last: &str) -> std::ops::RangeInclusive<usize> {
     position(first).unwrap_or(0)..=position(last).unwrap_or(0)
 }
 
-// ---------------------------------------------------------------------------
-// Reading
-// ---------------------------------------------------------------------------
-
-type Node<'a, 'i> = roxmltree::Node<'a, 'i>;
-
-struct XmlReader<'a, 'i> {
-    ctx: &'a Ctx<'a>,
-    doc: &'a roxmltree::Document<'i>,
-    /// The last (byte offset, line) asked about: lines are counted forwards
-    /// from it (nodes are mostly asked about in document order), so the
-    /// reader stays linear. `Document::text_pos_at` counts from the start of
-    /// the text on every call: 400,000 comments in a 10 MB message took
-    /// four and a half minutes.
-    cursor: std::cell::Cell<(usize, usize)>,
-}
-
-impl<'a, 'i> XmlReader<'a, 'i> {
-    fn line(&self, n: Node<'_, '_>) -> usize {
-        let text = self.doc.input_text().as_bytes();
-        let offset = n.range().start.min(text.len());
-        let (from, mut line) = match self.cursor.get() {
-            (o, l) if o <= offset => (o, l),
-            _ => (0, 1),
-        };
-        line += text[from..offset].iter().filter(|&&b| b == b'\n').count();
-        self.cursor.set((offset, line));
-        line
-    }
-
-    fn elements(n: Node<'a, 'i>) -> impl Iterator<Item = Node<'a, 'i>> {
-        n.children().filter(|c| c.is_element())
-    }
-
-    fn text(n: Node<'_, '_>) -> String {
-        n.children()
-            .filter(|c| c.is_text())
-            .filter_map(|c| c.text())
-            .collect::<String>()
-            .trim()
-            .to_string()
-    }
-
-    /// Reads keyword elements (and COMMENTs) of `parent` into `sec`; elements
-    /// named in `groups` are descended into, in place.
-    fn read_keywords(
-        &self,
-        parent: Node<'a, 'i>,
-        kind: Section,
-        groups: &[&str],
-        sec: &mut RawSection,
-    ) -> Result<(), CdmError> {
-        for n in Self::elements(parent) {
-            let name = n.tag_name().name();
-            let line = self.line(n);
-            if name == "COMMENT" {
-                sec.comments.push(Self::text(n));
-                continue;
-            }
-            if groups.contains(&name) {
-                self.read_keywords(n, kind, groups, sec)?;
-                continue;
-            }
-            let home = table_of(name).map(|(s, spec)| {
-                let s = if s == Section::Object1 { kind } else { s };
-                (s, spec)
-            });
-            let parent_tag = parent.tag_name().name();
-            let Some((_, spec)) = home.filter(|(s, _)| *s == kind && fits(parent_tag, name)) else {
-                return Err(self.ctx.err(
-                    line,
-                    name,
-                    format!(
-                        "<{}> cannot hold <{}> (CCSDS 508.0-B-1 §4)",
-                        excerpt(parent.tag_name().name()),
-                        excerpt(name)
-                    ),
-                ));
-            };
-            if Self::elements(n).next().is_some() {
-                return Err(self.ctx.err(
-                    line,
-                    name,
-                    format!("<{name}> holds elements, expected a value"),
-                ));
-            }
-            let unit = n.attribute("units").map(str::to_string);
-            if spec.kind == Kind::Text && unit.is_some() {
-                return Err(self
-                    .ctx
-                    .err(line, name, "a units attribute on a text keyword"));
-            }
-            if sec.items.is_empty() {
-                sec.first_line = line;
-            }
-            if sec.items.iter().any(|kv| kv.key == name) {
-                return Err(self
-                    .ctx
-                    .err(line, name, "keyword repeated in the same block"));
-            }
-            sec.items.push(RawKv {
-                key: name.to_string(),
-                value: Self::text(n),
-                unit,
-                line,
-            });
-        }
-        Ok(())
-    }
-
-    fn child(&self, parent: Node<'a, 'i>, name: &str) -> Result<Node<'a, 'i>, CdmError> {
-        Self::elements(parent)
-            .find(|c| c.tag_name().name() == name)
-            .ok_or_else(|| {
-                self.ctx.err(
-                    self.line(parent),
-                    name,
-                    format!(
-                        "<{}> has no <{name}> (CCSDS 508.0-B-1 §4)",
-                        parent.tag_name().name()
-                    ),
-                )
-            })
-    }
-
-    /// Every child must be one of `allowed`, in that order, each once
-    /// (`COMMENT` and `segment` may repeat).
-    fn expect_children(&self, parent: Node<'a, 'i>, allowed: &[&str]) -> Result<(), CdmError> {
-        let mut at = 0;
-        for c in Self::elements(parent) {
-            let name = c.tag_name().name();
-            if at > 0 && allowed[at - 1] == name && matches!(name, "COMMENT" | "segment") {
-                continue;
-            }
-            match allowed[at..].iter().position(|a| *a == name) {
-                Some(k) => at += k + 1,
-                None => {
-                    return Err(self.ctx.err(
-                        self.line(c),
-                        name,
-                        format!(
-                            "<{}> holds {}, in this order: an unexpected, repeated or misplaced <{}>",
-                            parent.tag_name().name(),
-                            allowed.join(", "),
-                            excerpt(name)
-                        ),
-                    ));
-                }
-            }
-        }
-        Ok(())
-    }
-}
-
 impl Cdm {
-    /// Reads an XML CDM (CCSDS 508.0-B-1 §4). `file` is used only in error
-    /// messages.
-    pub fn parse_xml(text: &str, file: &str) -> Result<Cdm, CdmError> {
-        let ctx = Ctx { file };
-        let doc = roxmltree::Document::parse(text).map_err(|e| {
-            ctx.err(
-                e.pos().row as usize,
-                "XML",
-                format!("not well-formed XML (column {}): {e}", e.pos().col),
-            )
-        })?;
-        let r = XmlReader {
-            ctx: &ctx,
-            doc: &doc,
-            cursor: std::cell::Cell::new((0, 1)),
-        };
-        let root = doc.root_element();
-        let root_line = r.line(root);
-        if root.tag_name().name() != "cdm" {
-            return Err(ctx.err(
-                root_line,
-                root.tag_name().name(),
-                "the root element of an XML CDM is <cdm>",
-            ));
-        }
-        if root.attribute("id") != Some("CCSDS_CDM_VERS") {
-            return Err(ctx.err(
-                root_line,
-                "CCSDS_CDM_VERS",
-                "<cdm> needs the attribute id=\"CCSDS_CDM_VERS\" (CCSDS 508.0-B-1 4.3.3.7)",
-            ));
-        }
-        let Some(version) = root.attribute("version") else {
-            return Err(ctx.err(
-                root_line,
-                "CCSDS_CDM_VERS",
-                "<cdm> needs the attribute version=\"1.0\" (CCSDS 508.0-B-1 4.3.3.9)",
-            ));
-        };
-        let mut msg = RawMessage {
-            sections: Default::default(),
-            last_line: doc.text_pos_at(text.len()).row as usize,
-        };
-        r.expect_children(root, &["header", "body"])?;
-        let header = r.child(root, "header")?;
-        let body = r.child(root, "body")?;
-        msg.sections[0].first_line = root_line;
-        msg.sections[0].items.push(RawKv {
-            key: "CCSDS_CDM_VERS".to_string(),
-            value: version.to_string(),
-            unit: None,
-            line: root_line,
-        });
-        r.read_keywords(header, Section::Header, &[], &mut msg.sections[0])?;
-        r.expect_children(body, &["relativeMetadataData", "segment"])?;
-        let rel = r.child(body, "relativeMetadataData")?;
-        r.read_keywords(
-            rel,
-            Section::Relative,
-            &["relativeStateVector"],
-            &mut msg.sections[1],
-        )?;
-        let segments: Vec<Node<'_, '_>> = XmlReader::elements(body)
-            .filter(|n| n.tag_name().name() == "segment")
-            .collect();
-        if segments.len() != 2 {
-            return Err(ctx.err(
-                r.line(body),
-                "segment",
-                format!(
-                    "<body> holds {} <segment>; a CDM has exactly two (OBJECT1, OBJECT2)",
-                    segments.len()
-                ),
-            ));
-        }
-        let blocks: Vec<&str> = OBJECT_BLOCKS.iter().map(|b| b.0).collect();
-        for (k, seg) in segments.into_iter().enumerate() {
-            let kind = if k == 0 {
-                Section::Object1
-            } else {
-                Section::Object2
-            };
-            r.expect_children(seg, &["metadata", "data"])?;
-            let sec = &mut msg.sections[2 + k];
-            r.read_keywords(r.child(seg, "metadata")?, kind, &[], sec)?;
-            let data = r.child(seg, "data")?;
-            r.expect_children(
-                data,
-                &[
-                    "COMMENT",
-                    "odParameters",
-                    "additionalParameters",
-                    "stateVector",
-                    "covarianceMatrix",
-                ],
-            )?;
-            r.read_keywords(data, kind, &blocks, sec)?;
-        }
-        msg.build(&ctx)
-    }
-
     /// Reads a CDM in either form: XML when the text starts with `<`, else KVN.
     pub fn parse(text: &str, file: &str) -> Result<Cdm, CdmError> {
         // A UTF-8 byte-order mark (written by some editors) is not content.
