@@ -32,6 +32,18 @@ pub fn hermite(p0: &Vec3, v0: &Vec3, p1: &Vec3, v1: &Vec3, step_s: f64, s: f64) 
     (p, v)
 }
 
+/// The position part of [`hermite`] alone (half the arithmetic), for
+/// searches that only look at where the object is.
+pub fn hermite_position(p0: &Vec3, v0: &Vec3, p1: &Vec3, v1: &Vec3, step_s: f64, s: f64) -> Vec3 {
+    let s2 = s * s;
+    let s3 = s2 * s;
+    let h00 = 2.0 * s3 - 3.0 * s2 + 1.0;
+    let h10 = (s3 - 2.0 * s2 + s) * step_s;
+    let h01 = -2.0 * s3 + 3.0 * s2;
+    let h11 = (s3 - s2) * step_s;
+    std::array::from_fn(|k| h00 * p0[k] + h10 * v0[k] + h01 * p1[k] + h11 * v1[k])
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

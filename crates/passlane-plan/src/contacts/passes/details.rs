@@ -9,11 +9,12 @@ use passlane_orbit::{
     shadow_margins, sun_position_teme_km,
 };
 
+use super::Edge;
 use super::track::{PreparedStation, Track};
 use super::{
     ChannelDoppler, IlluminationSpan, MountWarning, Pass, PassDirection, PassOptions, SkyAtStation,
 };
-use crate::numeric::{brent_root, golden_extremum};
+use crate::numeric::{brent_extremum, brent_root, golden_extremum};
 use crate::station::LinkDirection;
 
 #[allow(clippy::too_many_arguments)]
@@ -23,11 +24,12 @@ pub(super) fn describe_pass(
     st: &PreparedStation,
     track: &Track,
     options: &PassOptions,
-    aos_s: f64,
-    los_s: f64,
+    aos: Edge,
+    los: Edge,
     aos_clipped: bool,
     los_clipped: bool,
 ) -> Pass {
+    let (aos_s, los_s) = (aos.t_s, los.t_s);
     let t0 = options.start;
     let eop = options.earth_orientation;
     // The figures printed at an instant (AOS, maximum, LOS, Doppler) come
@@ -43,22 +45,29 @@ pub(super) fn describe_pass(
             Err(_) => st.site.look(&track.at(t_s)),
         }
     };
-    let (tmax_guess_s, _) = golden_extremum(
-        |t| st.site.sin_elevation(&track.at(t).position_km),
+    // Both extrema are only first guesses on the interpolant (then moved
+    // onto direct SGP4 below), so 10 ms is enough: one Newton step from
+    // there leaves microseconds, and the closest range's bracket is ±0.5 s.
+    const GUESS_TOL_S: f64 = 1e-2;
+    let (tmax_guess_s, _) = brent_extremum(
+        |t| st.site.sin_elevation(&track.position_at(t)),
         aos_s,
         los_s,
         true,
+        GUESS_TOL_S,
     );
     let tmax_s = polish_culmination(prop, st, track, options, tmax_guess_s, aos_s, los_s);
-    let (tmin_range_s, interpolated_min_range_km) = golden_extremum(
-        |t| norm(&sub(&track.at(t).position_km, &st.site.position_km)),
+    let (tmin_range_s, interpolated_min_range_km) = brent_extremum(
+        |t| norm(&sub(&track.position_at(t), &st.site.position_km)),
         aos_s,
         los_s,
         false,
+        GUESS_TOL_S,
     );
-    let at_aos = look(aos_s);
+    let at_edge = |e: Edge| e.state.map_or_else(|| look(e.t_s), |s| st.site.look(&s));
+    let at_aos = at_edge(aos);
     let at_max = look(tmax_s);
-    let at_los = look(los_s);
+    let at_los = at_edge(los);
     // The Earth-fixed velocity's north component tells north- or southbound.
     let v_max = track.at(tmax_s);
     let northbound = {
@@ -202,7 +211,7 @@ fn polish_culmination(
         let r = TemeToEarthFixed::at(time, &options.earth_orientation).position(&teme.position_km);
         Some(st.site.sin_elevation(&r))
     };
-    let interpolated = |t_s: f64| st.site.sin_elevation(&track.at(t_s).position_km);
+    let interpolated = |t_s: f64| st.site.sin_elevation(&track.position_at(t_s));
     let mut t = guess_s;
     for _ in 0..2 {
         let (h, k) = (0.25, 1.0);
@@ -289,7 +298,7 @@ pub(super) fn illumination_spans(
         ];
         shadow_margins(position_km, &sun)
     };
-    let margins = |t_s: f64| margins_of(t_s, &track.at(t_s).position_km);
+    let margins = |t_s: f64| margins_of(t_s, &track.position_at(t_s));
     let state_at = |t_s: f64| -> Illumination {
         let (p, u) = margins(t_s);
         if u >= 0.0 {

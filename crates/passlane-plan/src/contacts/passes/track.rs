@@ -140,15 +140,40 @@ impl Track {
         self.times_s[i]
     }
 
-    /// Interpolated Earth-fixed state at `t_s` (seconds since `t0`), clamped to the track.
-    pub(super) fn at(&self, t_s: f64) -> EarthFixed {
+    /// The samples on either side of `t_s` (the same index twice for a
+    /// one-sample track), clamped to the track.
+    fn bracket(&self, t_s: f64) -> (usize, usize) {
         let n = self.times_s.len();
         let i = match self.times_s.partition_point(|&x| x <= t_s) {
             0 => 0,
             k if k >= n => n.saturating_sub(2),
             k => k - 1,
         };
-        let j = (i + 1).min(n - 1);
+        (i, (i + 1).min(n - 1))
+    }
+
+    /// Interpolated Earth-fixed position at `t_s`: [`Track::at`]'s position,
+    /// without the velocity.
+    pub(super) fn position_at(&self, t_s: f64) -> Vec3 {
+        let (i, j) = self.bracket(t_s);
+        if i == j {
+            return self.states[i].position_km;
+        }
+        let (a, b) = (&self.states[i], &self.states[j]);
+        let h = self.times_s[j] - self.times_s[i];
+        passlane_orbit::interpolate::hermite_position(
+            &a.position_km,
+            &a.velocity_km_s,
+            &b.position_km,
+            &b.velocity_km_s,
+            h,
+            (t_s - self.times_s[i]) / h,
+        )
+    }
+
+    /// Interpolated Earth-fixed state at `t_s` (seconds since `t0`), clamped to the track.
+    pub(super) fn at(&self, t_s: f64) -> EarthFixed {
+        let (i, j) = self.bracket(t_s);
         if i == j {
             return self.states[i];
         }
