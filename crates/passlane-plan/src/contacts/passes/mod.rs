@@ -223,27 +223,27 @@ pub struct PassReport {
 /// smaller ones on the calling thread.
 ///
 /// Measured (`cargo bench -p passlane-plan --bench passes`, first N of the
-/// synthetic 1,000 × the 3 demo stations × 7 days, 2 cores, release; ms of
-/// CPU / wall per run, serial | on rayon's pool; the machine had other jobs,
-/// load ≈ 3):
+/// synthetic 1,000 × the 3 demo stations × 7 days, 2 cores, release, idle
+/// machine; ms of CPU / wall per run, serial | on rayon's pool; three runs
+/// after the orbit-plane skip and the 120 s step, the first shown, the
+/// others within ±10 % of it):
 ///
 /// | N | serial | pool |
 /// | --- | --- | --- |
-/// | 1 | 2.05 / 2.07 | 2.00 / 1.99 |
-/// | 3 | 6.36 / 6.27 | 6.36 / 6.46 |
-/// | 6 | 14.85 / 15.00 | 13.94 / 14.13 |
-/// | 12 | 30.63 / 30.97 | 33.12 / 32.90 |
-/// | 24 | 67.50 / 67.92 | 61.25 / 57.67 |
-/// | 50 | 120.00 / 120.88 | 127.50 / 120.62 |
-/// | 100 | 235.00 / 237.00 | 242.50 / 232.69 |
+/// | 1 | 1.30 / 1.28 | 1.20 / 1.21 |
+/// | 3 | 3.94 / 4.01 | 4.39 / 2.78 |
+/// | 6 | 10.00 / 10.10 | 9.39 / 5.01 |
+/// | 12 | 16.88 / 17.32 | 20.63 / 11.95 |
+/// | 24 | 36.25 / 36.95 | 36.25 / 23.44 |
+/// | 50 | 75.00 / 74.62 | 77.50 / 40.89 |
+/// | 100 | 155.00 / 155.74 | 157.50 / 83.62 |
 ///
-/// At every size the pool's CPU is within ±10 % of the serial CPU (no
-/// systematic overhead: the signs alternate), so threads cost nothing
-/// measurable once the work is a few milliseconds per satellite. Below 3
-/// satellites (≤ 6 ms of work) a 2-way split can save at most a few
-/// milliseconds of wall time while the pool's start-up (two threads per
-/// process) is a fixed cost, so those stay on the calling thread; from 3 on
-/// the pool is used. Re-measure on an idle machine to see the wall-time gain.
+/// At every size the pool's CPU is within the run-to-run spread of the
+/// serial CPU (the 12-satellite row's 22 % was 3 % and 0 % in the other two
+/// runs; CPU is read at a coarse clock), while from 3 satellites on the
+/// wall time falls by 30–50 %. Below 3 (about 1 ms of work each) a 2-way
+/// split cannot gain a millisecond and the pool's start-up is a fixed cost,
+/// so those stay on the calling thread; from 3 on the pool is used.
 const PARALLEL_FROM_SATELLITES: usize = 3;
 
 /// Finds every pass of every satellite over every station in the window.
