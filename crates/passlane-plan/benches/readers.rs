@@ -103,23 +103,8 @@ fn scenario_text(n: usize) -> String {
     )
 }
 
-/// Resets the process's peak resident memory (VmHWM) to its resident memory
-/// now and returns that, MB; `None` where the kernel does not allow it.
-fn reset_peak_mb() -> Option<f64> {
-    std::fs::write("/proc/self/clear_refs", "5").ok()?;
-    let status = std::fs::read_to_string("/proc/self/status").ok()?;
-    let kb: f64 = status
-        .lines()
-        .find(|l| l.starts_with("VmRSS:"))?
-        .split_whitespace()
-        .nth(1)?
-        .parse()
-        .ok()?;
-    Some(kb / 1024.0)
-}
-
 fn one(case: &str, text: &str) {
-    let peak_before_mb = reset_peak_mb().unwrap_or_else(support::max_rss_mb);
+    let peak_before_mb = support::reset_peak_mb().unwrap_or_else(support::max_rss_mb);
     let mut best = f64::INFINITY;
     let mut grown_mb = f64::NAN;
     let mut what = String::new();

@@ -34,3 +34,22 @@ pub fn max_rss_mb() -> f64 {
         })
         .map_or(f64::NAN, |kb| kb / 1024.0)
 }
+
+/// Resets this process's peak resident memory (VmHWM) to its resident memory
+/// now and returns that, MB; `None` where the kernel does not allow it
+/// (writing `5` to `/proc/self/clear_refs`). Measure a reader's peak from
+/// here, after reading its input into memory, with nothing else built in
+/// the process: memory freed by building an input stays resident and the
+/// reader reuses it, which hides its own peak.
+pub fn reset_peak_mb() -> Option<f64> {
+    std::fs::write("/proc/self/clear_refs", "5").ok()?;
+    let status = std::fs::read_to_string("/proc/self/status").ok()?;
+    let kb: f64 = status
+        .lines()
+        .find(|l| l.starts_with("VmRSS:"))?
+        .split_whitespace()
+        .nth(1)?
+        .parse()
+        .ok()?;
+    Some(kb / 1024.0)
+}
