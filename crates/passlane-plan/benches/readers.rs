@@ -1,9 +1,9 @@
 //! Speed and peak memory of the plan crate's readers of untrusted text, on
 //! inputs near their size caps: the CDM reader (KVN and XML, a message padded
 //! with 15 MB of COMMENT lines, which the standard allows and the reader
-//! keeps) and the scenario reader (a 30 MB scenario of valid stations in
-//! compact JSON, and a scenario as the program writes it: pretty, every
-//! field).
+//! keeps) and the scenario reader (as many minimal stations in compact JSON
+//! as a scenario may hold, the same as the program writes them: pretty,
+//! every field; and 30 MB of compact stations, refused for their number).
 //!
 //! Run: `cargo bench -p passlane-plan --bench readers`. As in the element
 //! loader bench (`passlane-orbit`'s `loader`), each case runs in a child
@@ -27,7 +27,13 @@ use std::time::Instant;
 use passlane_plan::cdm::Cdm;
 use passlane_plan::scenario::Scenario;
 
-const CASES: [&str; 4] = ["cdm-kvn", "cdm-xml", "scenario-compact", "scenario"];
+const CASES: [&str; 5] = [
+    "cdm-kvn",
+    "cdm-xml",
+    "scenario-compact",
+    "scenario",
+    "scenario-over-cap",
+];
 const CHILD_VAR: &str = "PASSLANE_READERS_BENCH_CASE";
 const INPUT_VAR: &str = "PASSLANE_READERS_BENCH_INPUT";
 const GOOD_CDM: &str = include_str!("../tests/fixtures/cdm/ormivel_vs_debris_99871.kvn");
@@ -59,10 +65,14 @@ fn input_of(case: &str) -> String {
     match case {
         "cdm-kvn" => padded_cdm(false, 240_000),
         "cdm-xml" => padded_cdm(true, 220_000),
-        "scenario-compact" => scenario_text(370_000),
+        // As many minimal stations as a scenario may hold (the cap of
+        // `scenario::MAX_ENTRIES`): the largest station list accepted.
+        "scenario-compact" => scenario_text(10_000),
+        // 30 MB of them: refused for their number before any is built.
+        "scenario-over-cap" => scenario_text(370_000),
         // As the program writes it (pretty, every field): the compact one read
         // and written back.
-        _ => Scenario::from_json(&scenario_text(120_000), "compact.json")
+        _ => Scenario::from_json(&scenario_text(10_000), "compact.json")
             .unwrap()
             .to_json(),
     }

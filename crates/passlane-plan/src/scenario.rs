@@ -10,6 +10,7 @@
 use passlane_orbit::{EarthOrientation, UtcTime};
 use serde::{Deserialize, Serialize};
 
+use crate::scenario_keys::ScanError;
 use crate::station::{Station, StationSet, same_station_name};
 
 /// The format version this build writes.
@@ -136,6 +137,34 @@ pub struct EphemerisFile {
     pub catalog_number: Option<u32>,
 }
 
+/// The most entries each list of a scenario may hold, as (parent, key,
+/// cap). A scenario is a configuration document, and these are far above
+/// any network or fleet it describes; they bound the reader's memory. A
+/// list's entries in memory can be several times their text (a minimal
+/// station of ~80 bytes of JSON is a 184-byte struct with its name on the
+/// heap; a one-letter file name is a 24-byte string and a heap block), so
+/// without a cap a 64 MB file of minimal entries took ~3× its size. With
+/// them, the structs of the largest lists accepted take a few MB whatever
+/// the file: stations 10,000 × ~220 B, antennas 10,000 × 32 × ~80 B.
+/// The reader refuses a longer list before building it (`scenario_keys`),
+/// naming the list and its line; `Scenario::validate` applies the same caps
+/// to a scenario built in the window.
+pub const MAX_ENTRIES: [(&str, &str, usize); 9] = [
+    ("scenario", "stations", 10_000),
+    ("scenario", "satellites", 10_000),
+    ("scenario", "element_files", 1_000),
+    ("scenario", "catalog_files", 1_000),
+    ("scenario", "ephemeris_files", 1_000),
+    ("scenario", "pins", 100_000),
+    ("scenario", "exclusions", 100_000),
+    ("station", "antennas", 32),
+    ("station", "channels", 256),
+];
+
+fn too_many(cap: usize) -> String {
+    format!("more than {cap} entries (the most a scenario may hold here)")
+}
+
 /// A whole scenario.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Scenario {
@@ -251,8 +280,15 @@ impl Scenario {
         // unknown keys, then the typed read: no generic tree of the document
         // is built (one cost ~8× the text for a scenario of many small
         // stations).
-        let scan = crate::scenario_keys::scan_keys(text)
-            .map_err(|e| err(e.line(), e.column(), "", format!("not valid JSON: {e}")))?;
+        let scan = crate::scenario_keys::scan_keys(text).map_err(|e| match e {
+            ScanError::Json(e) => err(e.line(), e.column(), "", format!("not valid JSON: {e}")),
+            ScanError::TooMany {
+                path,
+                cap,
+                line,
+                column,
+            } => err(line, column, &path, too_many(cap)),
+        })?;
         let version = scan.format_version.ok_or_else(|| {
             err(
                 0,
@@ -318,8 +354,46 @@ impl Scenario {
     }
 
     /// Checks every field the library relies on; returns (field path, reason).
+    /// Every list within its cap (`MAX_ENTRIES`).
+    fn check_counts(&self) -> Result<(), (String, String)> {
+        let cap = |parent: &str, key: &str| {
+            MAX_ENTRIES
+                .iter()
+                .find(|(p, k, _)| *p == parent && *k == key)
+                .map_or(usize::MAX, |(_, _, n)| *n)
+        };
+        let lists = [
+            ("stations", self.stations.len()),
+            ("satellites", self.satellites.len()),
+            ("element_files", self.element_files.len()),
+            ("catalog_files", self.catalog_files.len()),
+            ("ephemeris_files", self.ephemeris_files.len()),
+            ("pins", self.pins.len()),
+            ("exclusions", self.exclusions.len()),
+        ];
+        for (key, n) in lists {
+            let c = cap("scenario", key);
+            if n > c {
+                return Err((key.to_string(), too_many(c)));
+            }
+        }
+        for (i, st) in self.stations.iter().enumerate() {
+            for (key, n) in [
+                ("antennas", st.antennas.len()),
+                ("channels", st.channels.len()),
+            ] {
+                let c = cap("station", key);
+                if n > c {
+                    return Err((format!("stations[{i}].{key}"), too_many(c)));
+                }
+            }
+        }
+        Ok(())
+    }
+
     pub fn validate(&self) -> Result<(), (String, String)> {
         self.check_text()?;
+        self.check_counts()?;
         if let Some(w) = &self.window
             && w.end <= w.start
         {

@@ -80,6 +80,20 @@ impl Kind {
         }
     }
 
+    /// The most entries the list under `key` may hold, where one is set
+    /// (`scenario::MAX_ENTRIES`).
+    fn cap(self, key: &str) -> Option<usize> {
+        let parent = match self {
+            Kind::Scenario => "scenario",
+            Kind::Station => "station",
+            _ => return None,
+        };
+        crate::scenario::MAX_ENTRIES
+            .iter()
+            .find(|(p, k, _)| *p == parent && *k == key)
+            .map(|(_, _, n)| *n)
+    }
+
     /// The struct held under `key` (directly or as array elements).
     fn child(self, key: &str) -> Option<Kind> {
         Some(match (self, key) {
@@ -96,6 +110,51 @@ impl Kind {
             (Kind::Station, "antennas") => Kind::Antenna,
             _ => return None,
         })
+    }
+}
+
+/// Why [`scan_keys`] refused a scenario's text.
+#[derive(Debug)]
+pub enum ScanError {
+    /// Not JSON (the same error the tree reader gives).
+    Json(serde_json::Error),
+    /// A list holds more entries than a scenario may (`Kind::cap`): `path`
+    /// (e.g. `stations`, `stations[3].antennas`), its cap, and where in the
+    /// text the entry past the cap ends.
+    TooMany {
+        path: String,
+        cap: usize,
+        line: usize,
+        column: usize,
+    },
+}
+
+impl std::fmt::Display for ScanError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            ScanError::Json(e) => e.fmt(f),
+            ScanError::TooMany {
+                path,
+                cap,
+                line,
+                column,
+            } => write!(
+                f,
+                "{path}: more than {cap} entries at line {line} column {column}"
+            ),
+        }
+    }
+}
+
+fn scan_error(e: serde_json::Error, over: &Cell<Option<(String, usize)>>) -> ScanError {
+    match over.take() {
+        Some((path, cap)) => ScanError::TooMany {
+            path,
+            cap,
+            line: e.line(),
+            column: e.column(),
+        },
+        None => ScanError::Json(e),
     }
 }
 
@@ -154,16 +213,20 @@ pub struct KeyScan {
 /// its format version and the keys the reader ignores, without building a
 /// tree of the document. Fails where `serde_json::from_str::<Value>` would,
 /// with the same error (the same parser reads every value).
-pub fn scan_keys(text: &str) -> Result<KeyScan, serde_json::Error> {
+pub fn scan_keys(text: &str) -> Result<KeyScan, ScanError> {
     let mut de = serde_json::Deserializer::from_str(text);
     let mut format_version = None;
+    let over = Cell::new(None);
     let unknown = Node {
         kind: Some(Kind::Scenario),
         at: &Place::Root,
         format_version: Some(&mut format_version),
+        cap: None,
+        over: &over,
     }
-    .deserialize(&mut de)?;
-    de.end()?;
+    .deserialize(&mut de)
+    .map_err(|e| scan_error(e, &over))?;
+    de.end().map_err(ScanError::Json)?;
     Ok(KeyScan {
         format_version,
         unknown,
@@ -207,6 +270,11 @@ struct Node<'a> {
     at: &'a Place<'a>,
     /// The top level only: where its `format_version` goes.
     format_version: Option<&'a mut Option<u64>>,
+    /// For an array: the most entries it may hold (`Kind::cap`).
+    cap: Option<usize>,
+    /// Where a list over its cap is noted (its path and the cap) before the
+    /// scan stops with an error.
+    over: &'a Cell<Option<(String, usize)>>,
 }
 
 impl<'de> DeserializeSeed<'de> for Node<'_> {
@@ -274,6 +342,8 @@ impl<'de> Visitor<'de> for Node<'_> {
                     kind: None,
                     at: &at,
                     format_version: None,
+                    cap: None,
+                    over: self.over,
                 })?;
                 continue;
             };
@@ -288,12 +358,16 @@ impl<'de> Visitor<'de> for Node<'_> {
                     kind: kind.child(key),
                     at: &at,
                     format_version: None,
+                    cap: kind.cap(key),
+                    over: self.over,
                 })?
             } else {
                 map.next_value_seed(Node {
                     kind: None,
                     at: &at,
                     format_version: None,
+                    cap: None,
+                    over: self.over,
                 })?;
                 vec![UnknownKey {
                     path: at.path(),
@@ -323,11 +397,34 @@ impl<'de> Visitor<'de> for Node<'_> {
         let mut out = Vec::new();
         let mut i = 0usize;
         loop {
+            if let Some(cap) = self.cap
+                && i == cap
+                && seq.size_hint() != Some(0)
+            {
+                // One more entry than the cap is enough to refuse; the
+                // rest of the text is not read.
+                if seq
+                    .next_element_seed(Node {
+                        kind: None,
+                        at: self.at,
+                        format_version: None,
+                        cap: None,
+                        over: self.over,
+                    })?
+                    .is_some()
+                {
+                    self.over.set(Some((self.at.path(), cap)));
+                    return Err(de::Error::custom("a list over its cap"));
+                }
+                break;
+            }
             let at = Place::Index(self.at, i);
             let Some(mut keys) = seq.next_element_seed(Node {
                 kind: self.kind,
                 at: &at,
                 format_version: None,
+                cap: None,
+                over: self.over,
             })?
             else {
                 break;
@@ -387,22 +484,26 @@ impl<'de> Visitor<'de> for WholeNumber {
     }
 
     fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<Self::Value, A::Error> {
-        let at = Place::Root;
+        let (at, over) = (Place::Root, Cell::new(None));
         Node {
             kind: None,
             at: &at,
             format_version: None,
+            cap: None,
+            over: &over,
         }
         .visit_map(map)
         .map(|_| None)
     }
 
     fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Self::Value, A::Error> {
-        let at = Place::Root;
+        let (at, over) = (Place::Root, Cell::new(None));
         Node {
             kind: None,
             at: &at,
             format_version: None,
+            cap: None,
+            over: &over,
         }
         .visit_seq(seq)
         .map(|_| None)

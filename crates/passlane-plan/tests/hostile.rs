@@ -221,10 +221,12 @@ fn scenario_deep_nesting_giant_strings_and_junk() {
     assert!(Scenario::from_json(&no_newline, "giant.json").is_err());
     assert!(Scenario::from_json(&"\0".repeat(1024 * 1024), "nul.json").is_err());
     assert!(Scenario::from_json("", "empty.json").is_err());
-    // A huge array of stations that are all invalid is refused, naming the first.
+    // A huge array of stations that are all invalid is refused, naming the
+    // first (as many as a scenario may hold: 100,000 are now refused for
+    // their number before any is read, see the next test).
     let many = format!(
         "{{\"format_version\": 1, \"stations\": [{}]}}",
-        vec!["{\"name\": \"A\", \"latitude_deg\": 95, \"longitude_deg\": 0}"; 100_000].join(",")
+        vec!["{\"name\": \"A\", \"latitude_deg\": 95, \"longitude_deg\": 0}"; 10_000].join(",")
     );
     let e = Scenario::from_json(&many, "many.json").unwrap_err();
     assert_eq!(e.field, "stations[0].latitude_deg", "{e}");
@@ -476,4 +478,72 @@ fn cdm_and_scenario_names_with_control_characters_are_refused_in_words() {
         assert_eq!(e.field, path, "{e}");
         assert!(e.message.contains("U+000A"), "{e}");
     }
+}
+
+/// A scenario of minimal stations, `n` of them, with `antennas` antennas on
+/// the first (invented names; open-ocean points).
+fn many_stations(n: usize, antennas: usize) -> String {
+    let first_antennas: Vec<String> = (0..antennas)
+        .map(|k| format!("{{\"name\": \"dish {k}\"}}"))
+        .collect();
+    let stations: Vec<String> = (0..n)
+        .map(|k| {
+            let extra = if k == 0 {
+                format!(", \"antennas\": [{}]", first_antennas.join(", "))
+            } else {
+                String::new()
+            };
+            format!(
+                "{{\"name\": \"Site {k:06}\", \"latitude_deg\": {:.3}, \"longitude_deg\": {:.3}{extra}}}",
+                -40.0 + (k % 800) as f64 * 0.1,
+                -150.0 + (k % 900) as f64 * 0.1
+            )
+        })
+        .collect();
+    format!(
+        "{{\"format_version\": 1, \"stations\": [\n{}\n]}}\n",
+        stations.join(",\n")
+    )
+}
+
+/// Lists are capped (`scenario::MAX_ENTRIES`), so a file of many tiny
+/// entries cannot make the reader hold several times its size: one entry
+/// over the cap is refused with the list's path and the line where the
+/// entry past the cap ends, before any station is built; the cap itself
+/// is accepted. A scenario built in memory (the window) over a cap fails
+/// `validate` with the same path.
+#[test]
+fn scenario_lists_over_their_cap_are_refused_before_they_are_built() {
+    let cap = |parent: &str, key: &str| {
+        passlane_plan::scenario::MAX_ENTRIES
+            .iter()
+            .find(|(p, k, _)| *p == parent && *k == key)
+            .unwrap()
+            .2
+    };
+    let stations = cap("scenario", "stations");
+    let ok = Scenario::from_json(&many_stations(stations, 2), "cap.json").unwrap();
+    assert_eq!(ok.stations.len(), stations);
+    let e = Scenario::from_json(&many_stations(stations + 1, 2), "over.json").unwrap_err();
+    assert_eq!(e.field, "stations", "{e}");
+    // Where the parser stands when it has read the entry past the cap: the
+    // end of its line (line 2 holds the first station).
+    assert!((stations + 2..=stations + 3).contains(&e.line), "{e}");
+    assert!(
+        e.message.contains(&format!("more than {stations} entries")),
+        "{e}"
+    );
+    assert!(e.to_string().contains("over.json"), "{e}");
+
+    let antennas = cap("station", "antennas");
+    assert!(Scenario::from_json(&many_stations(3, antennas), "a.json").is_ok());
+    let e = Scenario::from_json(&many_stations(3, antennas + 1), "a.json").unwrap_err();
+    assert_eq!(e.field, "stations[0].antennas", "{e}");
+
+    let mut built = ok;
+    built.stations.push(built.stations[0].clone());
+    built.stations.last_mut().unwrap().name = "One too many".into();
+    let (field, message) = built.validate().unwrap_err();
+    assert_eq!(field, "stations");
+    assert!(message.contains("more than"), "{message}");
 }
