@@ -326,7 +326,7 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
         let t = trade(&conj, setup.tca, &req)?;
         match format {
             Format::Json => {
-                serde_json::to_writer_pretty(
+                common::write_json(
                     &mut *out,
                     &TradeJson {
                         primary_catalog_number: setup.primary_catalog_number,
@@ -337,7 +337,6 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
                         hard_body_radius_source: setup.hbr_source,
                     },
                 )?;
-                writeln!(out)?;
             }
             _ => write_trade_table(out, &setup, &t, &req, &label)?,
         }
@@ -397,7 +396,7 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
     };
     match format {
         Format::Json => {
-            serde_json::to_writer_pretty(
+            common::write_json(
                 &mut *out,
                 &BurnJson {
                     primary_catalog_number: setup.primary_catalog_number,
@@ -424,7 +423,6 @@ pub fn run(args: &AvoidArgs, out: &mut dyn Write) -> Result<()> {
                     note: note.clone(),
                 },
             )?;
-            writeln!(out)?;
         }
         _ => {
             write_burn_table(out, &setup, &e, &label)?;
