@@ -10,6 +10,35 @@
 /// method (golden section with parabolic steps; Brent 1973, "Algorithms for
 /// Minimization without Derivatives", ch. 5). Returns (argument, value); the
 /// ends are considered too, as a clipped pass can peak on one.
+/// Newton steps from `t0` (found on an approximation) towards the root of
+/// the exact function: `step_at(t)` returns f(t)/f'(t) at t, or `None` where
+/// it cannot (an evaluation failed, a slope of the wrong sign), which keeps
+/// the last point. A step that would leave [lo, hi] or move more than
+/// `max_move` from `t0` keeps the last point too; a step shorter than `tol`
+/// is the last one taken. At most `max_steps` steps.
+pub fn newton_polish(
+    t0: f64,
+    (lo, hi): (f64, f64),
+    max_move: f64,
+    tol: f64,
+    max_steps: usize,
+    mut step_at: impl FnMut(f64) -> Option<f64>,
+) -> f64 {
+    let mut t = t0;
+    for _ in 0..max_steps {
+        let Some(step) = step_at(t) else { return t };
+        let next = t - step;
+        if !(lo..=hi).contains(&next) || (next - t0).abs() > max_move {
+            return t;
+        }
+        t = next;
+        if step.abs() < tol {
+            break;
+        }
+    }
+    t
+}
+
 pub fn golden_extremum(f: impl Fn(f64) -> f64, a: f64, b: f64, maximise: bool) -> (f64, f64) {
     brent_extremum(f, a, b, maximise, 5e-4)
 }

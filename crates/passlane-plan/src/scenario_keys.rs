@@ -277,6 +277,19 @@ struct Node<'a> {
     over: &'a Cell<Option<(String, usize)>>,
 }
 
+impl<'a> Node<'a> {
+    /// A value read only to be skipped (its keys are not checked).
+    fn skip(at: &'a Place<'a>, over: &'a Cell<Option<(String, usize)>>) -> Self {
+        Node {
+            kind: None,
+            at,
+            format_version: None,
+            cap: None,
+            over,
+        }
+    }
+}
+
 impl<'de> DeserializeSeed<'de> for Node<'_> {
     type Value = Vec<UnknownKey>;
 
@@ -338,13 +351,7 @@ impl<'de> Visitor<'de> for Node<'_> {
             let key = key.as_str();
             let at = Place::Key(self.at, key);
             let Some(kind) = self.kind else {
-                map.next_value_seed(Node {
-                    kind: None,
-                    at: &at,
-                    format_version: None,
-                    cap: None,
-                    over: self.over,
-                })?;
+                map.next_value_seed(Node::skip(&at, self.over))?;
                 continue;
             };
             if let Some(version) = self.format_version.as_deref_mut()
@@ -362,13 +369,7 @@ impl<'de> Visitor<'de> for Node<'_> {
                     over: self.over,
                 })?
             } else {
-                map.next_value_seed(Node {
-                    kind: None,
-                    at: &at,
-                    format_version: None,
-                    cap: None,
-                    over: self.over,
-                })?;
+                map.next_value_seed(Node::skip(&at, self.over))?;
                 vec![UnknownKey {
                     path: at.path(),
                     suggestion: closest(key, kind.fields()),
@@ -404,13 +405,7 @@ impl<'de> Visitor<'de> for Node<'_> {
                 // One more entry than the cap is enough to refuse; the
                 // rest of the text is not read.
                 if seq
-                    .next_element_seed(Node {
-                        kind: None,
-                        at: self.at,
-                        format_version: None,
-                        cap: None,
-                        over: self.over,
-                    })?
+                    .next_element_seed(Node::skip(self.at, self.over))?
                     .is_some()
                 {
                     self.over.set(Some((self.at.path(), cap)));
@@ -485,28 +480,12 @@ impl<'de> Visitor<'de> for WholeNumber {
 
     fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<Self::Value, A::Error> {
         let (at, over) = (Place::Root, Cell::new(None));
-        Node {
-            kind: None,
-            at: &at,
-            format_version: None,
-            cap: None,
-            over: &over,
-        }
-        .visit_map(map)
-        .map(|_| None)
+        Node::skip(&at, &over).visit_map(map).map(|_| None)
     }
 
     fn visit_seq<A: SeqAccess<'de>>(self, seq: A) -> Result<Self::Value, A::Error> {
         let (at, over) = (Place::Root, Cell::new(None));
-        Node {
-            kind: None,
-            at: &at,
-            format_version: None,
-            cap: None,
-            over: &over,
-        }
-        .visit_seq(seq)
-        .map(|_| None)
+        Node::skip(&at, &over).visit_seq(seq).map(|_| None)
     }
 
     fn visit_bool<E: de::Error>(self, _: bool) -> Result<Self::Value, E> {

@@ -13,6 +13,9 @@ use passlane_plan::pointing::{look_at, pointing_table};
 use passlane_plan::station::{Channel, LinkDirection, MaskPoint, Station};
 use serde_json::Value;
 
+#[path = "support/brute_passes.rs"]
+mod brute_passes;
+
 fn repo() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..")
 }
@@ -191,70 +194,23 @@ fn no_pass_missed_against_one_second_sampling() {
     let end = t("2026-12-08T00:00:00Z");
     let options = PassOptions::new(start, end);
     let report = find_passes(&sets, &sc.stations, &options, &Silent);
-    let eop = EarthOrientation::default();
     let mut brute_total = 0;
     for set in &sets {
         let prop = Propagator::new(set).unwrap();
         for st in &sc.stations {
             let mut st = st.clone();
             st.normalise();
-            let site = st.site();
-            let mut above_since: Option<f64> = None;
-            let mut intervals = Vec::new();
-            for k in 0..=(7 * 86_400) {
-                let tk = start.add_s(k as f64);
-                let l = look_at(&prop, &site, tk, &eop).unwrap();
-                let up = l.elevation_deg > st.horizon_deg(l.azimuth_deg);
-                match (up, above_since) {
-                    (true, None) => above_since = Some(k as f64),
-                    (false, Some(a)) => {
-                        intervals.push((a, k as f64 - 1.0));
-                        above_since = None;
-                    }
-                    _ => {}
-                }
-            }
-            if let Some(a) = above_since {
-                intervals.push((a, 7.0 * 86_400.0));
-            }
+            let intervals = brute_passes::intervals_up(&prop, &st.site(), start, 7 * 86_400, |l| {
+                l.elevation_deg > st.horizon_deg(l.azimuth_deg)
+            });
             brute_total += intervals.len();
             let ours: Vec<&Pass> = report
                 .passes
                 .iter()
                 .filter(|p| p.catalog_number == set.catalog_number && p.station == st.name)
                 .collect();
-            for (a, b) in &intervals {
-                // One to one: the pass's AOS is within the second before the
-                // first sample above the horizon (or on the window's start),
-                // its LOS within the second after the last, so two intervals
-                // split by a dip below the mask are two passes, not one.
-                let hit = ours.iter().any(|p| {
-                    let (aos, los) = (p.aos.s_since(start), p.los.s_since(start));
-                    aos <= a + 1e-3
-                        && aos >= a - 1.0 - 1e-3
-                        && los >= b - 1e-3
-                        && los <= b + 1.0 + 1e-3
-                });
-                assert!(
-                    hit,
-                    "{} over {}: brute-force interval {a}..{b} s has no pass starting and ending with it",
-                    set.name, st.name
-                );
-            }
-            // Conversely, a reported pass longer than 1 s contains a sample.
-            for p in &ours {
-                if p.duration_s > 1.0 {
-                    let a = p.aos.s_since(start);
-                    let b = p.los.s_since(start);
-                    assert!(
-                        intervals.iter().any(|(x, y)| *x <= b && *y >= a),
-                        "{} over {}: pass {} not seen by sampling",
-                        set.name,
-                        st.name,
-                        p.aos
-                    );
-                }
-            }
+            let label = format!("{} over {}", set.name, st.name);
+            brute_passes::assert_one_to_one(&label, &intervals, &ours, start);
         }
     }
     let ours_total = report.passes.iter().filter(|p| p.duration_s > 1.0).count();

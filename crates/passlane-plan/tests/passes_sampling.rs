@@ -4,11 +4,13 @@
 
 use std::path::PathBuf;
 
-use passlane_orbit::{EarthOrientation, ElementSet, LoadOptions, Propagator, UtcTime, elements};
+use passlane_orbit::{ElementSet, LoadOptions, Propagator, UtcTime, elements};
 use passlane_plan::Silent;
 use passlane_plan::passes::{Pass, PassOptions, find_passes};
-use passlane_plan::pointing::look_at;
 use passlane_plan::station::Station;
+
+#[path = "support/brute_passes.rs"]
+mod brute_passes;
 
 fn repo() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("../..")
@@ -58,58 +60,22 @@ fn skip_ahead_misses_no_pass_against_one_second_sampling() {
     let end = start.add_s(days as f64 * 86_400.0);
     let report = find_passes(&sets, &stations, &PassOptions::new(start, end), &Silent);
     assert!(report.failures.is_empty(), "{:?}", report.failures);
-    let eop = EarthOrientation::default();
     let mut brute_total = 0;
     for set in &sets {
         let prop = Propagator::new(set).unwrap();
         for st in &stations {
-            let site = st.site();
-            let mut intervals = Vec::new();
-            let mut above_since: Option<f64> = None;
-            for k in 0..=(days * 86_400) {
-                let l = look_at(&prop, &site, start.add_s(k as f64), &eop).unwrap();
-                match (l.elevation_deg > 10.0, above_since) {
-                    (true, None) => above_since = Some(k as f64),
-                    (false, Some(a)) => {
-                        intervals.push((a, k as f64 - 1.0));
-                        above_since = None;
-                    }
-                    _ => {}
-                }
-            }
-            if let Some(a) = above_since {
-                intervals.push((a, days as f64 * 86_400.0));
-            }
+            let intervals =
+                brute_passes::intervals_up(&prop, &st.site(), start, days * 86_400, |l| {
+                    l.elevation_deg > 10.0
+                });
             brute_total += intervals.len();
             let ours: Vec<&Pass> = report
                 .passes
                 .iter()
                 .filter(|p| p.catalog_number == set.catalog_number && p.station == st.name)
                 .collect();
-            for (a, b) in &intervals {
-                let hit = ours.iter().any(|p| {
-                    let (aos, los) = (p.aos.s_since(start), p.los.s_since(start));
-                    aos <= a + 1e-3
-                        && aos >= a - 1.0 - 1e-3
-                        && los >= b - 1e-3
-                        && los <= b + 1.0 + 1e-3
-                });
-                assert!(
-                    hit,
-                    "{} over {}: interval {a}..{b} s has no pass",
-                    set.name, st.name
-                );
-            }
-            for p in ours.iter().filter(|p| p.duration_s > 1.0) {
-                let (a, b) = (p.aos.s_since(start), p.los.s_since(start));
-                assert!(
-                    intervals.iter().any(|(x, y)| *x <= b && *y >= a),
-                    "{} over {}: pass at {} not seen by sampling",
-                    set.name,
-                    st.name,
-                    p.aos
-                );
-            }
+            let label = format!("{} over {}", set.name, st.name);
+            brute_passes::assert_one_to_one(&label, &intervals, &ours, start);
         }
     }
     assert!(brute_total > 300, "{brute_total}");

@@ -14,7 +14,7 @@ use super::track::{PreparedStation, Track};
 use super::{
     ChannelDoppler, IlluminationSpan, MountWarning, Pass, PassDirection, PassOptions, SkyAtStation,
 };
-use crate::numeric::{brent_extremum, brent_root, golden_extremum};
+use crate::numeric::{brent_extremum, brent_root, golden_extremum, newton_polish};
 use crate::station::LinkDirection;
 
 #[allow(clippy::too_many_arguments)]
@@ -212,32 +212,15 @@ fn polish_culmination(
         Some(st.site.sin_elevation(&r))
     };
     let interpolated = |t_s: f64| st.site.sin_elevation(&track.position_at(t_s));
-    let mut t = guess_s;
-    for _ in 0..2 {
+    // One step from within 20 ms leaves microseconds (the curvature's error
+    // is a small fraction of it); a second costs two more SGP4 calls.
+    newton_polish(guess_s, (aos_s, los_s), 1.0, 0.02, 2, |t| {
         let (h, k) = (0.25, 1.0);
         let curvature =
             (interpolated(t + k) - 2.0 * interpolated(t) + interpolated(t - k)) / (k * k);
-        let (Some(ahead), Some(behind)) = (direct(t + h), direct(t - h)) else {
-            return guess_s;
-        };
-        let slope = (ahead - behind) / (2.0 * h);
-        if curvature >= 0.0 || !curvature.is_finite() {
-            return t;
-        }
-        let step = slope / curvature;
-        let next = t - step;
-        if !(aos_s..=los_s).contains(&next) || (next - guess_s).abs() > 1.0 {
-            return t;
-        }
-        t = next;
-        // One step from within 20 ms leaves microseconds (the curvature's
-        // error is a small fraction of it); a second costs two more SGP4
-        // calls per pass.
-        if step.abs() < 0.02 {
-            break;
-        }
-    }
-    t
+        let slope = (direct(t + h)? - direct(t - h)?) / (2.0 * h);
+        (curvature < 0.0 && curvature.is_finite()).then(|| slope / curvature)
+    })
 }
 
 /// Doppler shift of a link at rest frequency `f_hz` seen by a receiver at
@@ -396,25 +379,11 @@ fn polish_root(
     lo_s: f64,
     hi_s: f64,
 ) -> f64 {
-    let mut t = t0_s;
-    for _ in 0..4 {
+    newton_polish(t0_s, (lo_s, hi_s), 2.0, 1e-5, 4, |t| {
         let eps = 1e-2;
         let slope = (interpolated(t + eps) - interpolated(t - eps)) / (2.0 * eps);
-        let Some(f) = direct(t) else { return t };
-        if slope == 0.0 || !slope.is_finite() {
-            return t;
-        }
-        let step = f / slope;
-        let next = t - step;
-        if !(lo_s..=hi_s).contains(&next) || (next - t0_s).abs() > 2.0 {
-            return t;
-        }
-        t = next;
-        if step.abs() < 1e-5 {
-            break;
-        }
-    }
-    t
+        (slope != 0.0 && slope.is_finite()).then_some(direct(t)? / slope)
+    })
 }
 
 /// Every sign change of `f` given its samples (time, value): each local
