@@ -161,6 +161,15 @@ pub const MAX_ENTRIES: [(&str, &str, usize); 9] = [
     ("station", "channels", 256),
 ];
 
+/// The cap of `MAX_ENTRIES` for the list `key` of a `parent`
+/// ("scenario" or "station"), if it has one.
+pub fn max_entries(parent: &str, key: &str) -> Option<usize> {
+    MAX_ENTRIES
+        .iter()
+        .find(|(p, k, _)| *p == parent && *k == key)
+        .map(|(_, _, n)| *n)
+}
+
 fn too_many(cap: usize) -> String {
     format!("more than {cap} entries (the most a scenario may hold here)")
 }
@@ -356,12 +365,7 @@ impl Scenario {
     /// Checks every field the library relies on; returns (field path, reason).
     /// Every list within its cap (`MAX_ENTRIES`).
     fn check_counts(&self) -> Result<(), (String, String)> {
-        let cap = |parent: &str, key: &str| {
-            MAX_ENTRIES
-                .iter()
-                .find(|(p, k, _)| *p == parent && *k == key)
-                .map_or(usize::MAX, |(_, _, n)| *n)
-        };
+        let cap = |parent: &str, key: &str| max_entries(parent, key).unwrap_or(usize::MAX);
         let lists = [
             ("stations", self.stations.len()),
             ("satellites", self.satellites.len()),

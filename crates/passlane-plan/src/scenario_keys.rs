@@ -88,10 +88,7 @@ impl Kind {
             Kind::Station => "station",
             _ => return None,
         };
-        crate::scenario::MAX_ENTRIES
-            .iter()
-            .find(|(p, k, _)| *p == parent && *k == key)
-            .map(|(_, _, n)| *n)
+        crate::scenario::max_entries(parent, key)
     }
 
     /// The struct held under `key` (directly or as array elements).

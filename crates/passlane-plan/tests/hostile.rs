@@ -514,13 +514,7 @@ fn many_stations(n: usize, antennas: usize) -> String {
 /// `validate` with the same path.
 #[test]
 fn scenario_lists_over_their_cap_are_refused_before_they_are_built() {
-    let cap = |parent: &str, key: &str| {
-        passlane_plan::scenario::MAX_ENTRIES
-            .iter()
-            .find(|(p, k, _)| *p == parent && *k == key)
-            .unwrap()
-            .2
-    };
+    let cap = |parent: &str, key: &str| passlane_plan::scenario::max_entries(parent, key).unwrap();
     let stations = cap("scenario", "stations");
     let ok = Scenario::from_json(&many_stations(stations, 2), "cap.json").unwrap();
     assert_eq!(ok.stations.len(), stations);

@@ -413,9 +413,29 @@ impl StationSet {
     /// The checks of [`StationSet::new`] on stations kept where they are
     /// (a scenario's, which a copy would double).
     pub fn check(stations: &[Station]) -> Result<(), StationListError> {
-        use std::hash::BuildHasher;
-        let hasher = std::hash::RandomState::new();
-        check_with_hash(stations, |key| hasher.hash_one(key))
+        // A table of name keys: a scenario holds at most 10,000 stations
+        // (`scenario::MAX_ENTRIES`), so it stays small whatever the file.
+        let mut seen: std::collections::HashMap<String, usize> = std::collections::HashMap::new();
+        for (i, s) in stations.iter().enumerate() {
+            s.validate().map_err(|e| StationListError {
+                index: i,
+                field: e.field,
+                message: e.message,
+            })?;
+            let key = name_key(&s.name);
+            if let Some(&first) = seen.get(&key) {
+                return Err(StationListError {
+                    index: i,
+                    field: "name".into(),
+                    message: format!(
+                        "{:?} is already the name of stations[{first}] ({:?}); station names must be unique",
+                        s.name, stations[first].name
+                    ),
+                });
+            }
+            seen.insert(key, i);
+        }
+        Ok(())
     }
 
     /// Index of the station with this name (ignoring case and blanks).
@@ -434,56 +454,6 @@ impl std::ops::Deref for StationSet {
     fn deref(&self) -> &[Station] {
         &self.stations
     }
-}
-
-/// [`StationSet::check`] with the hash of name keys given (a test makes
-/// every name collide).
-fn check_with_hash(
-    stations: &[Station],
-    hash: impl Fn(&str) -> u64,
-) -> Result<(), StationListError> {
-    use std::collections::hash_map::{Entry, HashMap};
-    // Names are looked up by the hash of their key, and a hash match is
-    // confirmed on the names themselves: a table of the keys would hold
-    // every name twice more (the key and the table's slot), as much as the
-    // stations of a scenario of small ones.
-    let mut first_with_hash: HashMap<u64, usize> = HashMap::new();
-    // Stations whose key's hash another name already had (a collision,
-    // next to never): compared one by one.
-    let mut collided: Vec<usize> = Vec::new();
-    for (i, s) in stations.iter().enumerate() {
-        s.validate().map_err(|e| StationListError {
-            index: i,
-            field: e.field,
-            message: e.message,
-        })?;
-        let key = name_key(&s.name);
-        match first_with_hash.entry(hash(&key)) {
-            Entry::Vacant(slot) => {
-                slot.insert(i);
-            }
-            Entry::Occupied(slot) => {
-                // The earliest station of this name: the slot's, else a
-                // collided one (kept in order).
-                let first = std::iter::once(*slot.get())
-                    .chain(collided.iter().copied())
-                    .find(|&j| name_key(&stations[j].name) == key);
-                let Some(first) = first else {
-                    collided.push(i);
-                    continue;
-                };
-                return Err(StationListError {
-                    index: i,
-                    field: "name".into(),
-                    message: format!(
-                        "{:?} is already the name of stations[{first}] ({:?}); station names must be unique",
-                        s.name, stations[first].name
-                    ),
-                });
-            }
-        }
-    }
-    Ok(())
 }
 
 /// A name for a new station that no station of `existing` has yet:
@@ -565,38 +535,33 @@ mod tests {
     }
 
     #[test]
-    fn a_clash_names_the_first_station_of_the_name_even_when_hashes_collide() {
+    fn a_clash_names_the_first_station_of_the_name() {
         // The first clash in list order, against the earliest station of
-        // that name, whatever the hashes do (every hash equal: every name
-        // goes to the collision list).
+        // that name.
         let names = ["ΟΔΟΣ", "Ridge", "Vale", "vale ", "RIDGE", "οδος"];
         let stations: Vec<Station> = names
             .iter()
             .map(|n| Station::new(n, 1.0, 2.0, 0.0))
             .collect();
-        for hash in [&(|_: &str| 0u64) as &dyn Fn(&str) -> u64, &|k: &str| {
-            k.len() as u64
-        }] {
-            let err = check_with_hash(&stations, hash).unwrap_err();
-            assert_eq!(err.index, 3);
-            assert!(err.message.contains("stations[2]"), "{err}");
-            // The earliest of the name is the first station of its hash.
-            let err = check_with_hash(&stations[1..], hash).unwrap_err();
-            assert_eq!(err.index, 2, "{err}");
-            assert!(err.message.contains("stations[1]"), "{err}");
-            let ridges = [&stations[1], &stations[2], &stations[4]].map(Clone::clone);
-            let err = check_with_hash(&ridges, hash).unwrap_err();
-            assert_eq!(err.index, 2, "{err}");
-            assert!(err.message.contains("stations[0]"), "{err}");
-            let distinct: Vec<Station> = ["a", "b", "c", "A "]
-                .iter()
-                .map(|n| Station::new(n, 1.0, 2.0, 0.0))
-                .collect();
-            let err = check_with_hash(&distinct, hash).unwrap_err();
-            assert_eq!(err.index, 3, "{err}");
-            assert!(err.message.contains("stations[0]"), "{err}");
-            assert!(check_with_hash(&distinct[..3], hash).is_ok());
-        }
+        let err = StationSet::check(&stations).unwrap_err();
+        assert_eq!(err.index, 3);
+        assert!(err.message.contains("stations[2]"), "{err}");
+        // The earliest of the name, not a later one.
+        let err = StationSet::check(&stations[1..]).unwrap_err();
+        assert_eq!(err.index, 2, "{err}");
+        assert!(err.message.contains("stations[1]"), "{err}");
+        let ridges = [&stations[1], &stations[2], &stations[4]].map(Clone::clone);
+        let err = StationSet::check(&ridges).unwrap_err();
+        assert_eq!(err.index, 2, "{err}");
+        assert!(err.message.contains("stations[0]"), "{err}");
+        let distinct: Vec<Station> = ["a", "b", "c", "A "]
+            .iter()
+            .map(|n| Station::new(n, 1.0, 2.0, 0.0))
+            .collect();
+        let err = StationSet::check(&distinct).unwrap_err();
+        assert_eq!(err.index, 3, "{err}");
+        assert!(err.message.contains("stations[0]"), "{err}");
+        assert!(StationSet::check(&distinct[..3]).is_ok());
         assert_eq!(StationSet::check(&stations).unwrap_err().index, 3);
     }
 }

@@ -9,11 +9,11 @@ use passlane_orbit::{
     shadow_margins, sun_position_teme_km,
 };
 
-use super::Edge;
 use super::track::{PreparedStation, Track};
 use super::{
     ChannelDoppler, IlluminationSpan, MountWarning, Pass, PassDirection, PassOptions, SkyAtStation,
 };
+use super::{Edge, direct_state};
 use crate::numeric::{brent_extremum, brent_root, golden_extremum, newton_polish};
 use crate::station::LinkDirection;
 
@@ -37,13 +37,8 @@ pub(super) fn describe_pass(
     // the interpolant the search ran on (metres off, a few Hz at S-band), so
     // they do not depend on where the samples fell or on the window's length.
     let look = |t_s: f64| {
-        let time = t0.add_s(t_s);
-        match prop.state_at(time) {
-            Ok(teme) => st.site.look(
-                &TemeToEarthFixed::at(time, &eop).state(&teme.position_km, &teme.velocity_km_s),
-            ),
-            Err(_) => st.site.look(&track.at(t_s)),
-        }
+        st.site
+            .look(&direct_state(prop, options, t_s).unwrap_or_else(|| track.at(t_s)))
     };
     // Both extrema are only first guesses on the interpolant (then moved
     // onto direct SGP4 below), so 10 ms is enough: one Newton step from
@@ -126,11 +121,7 @@ pub(super) fn describe_pass(
             max_rate_hz_s: (c.frequency_hz * range_accel / SPEED_OF_LIGHT_KM_S).abs(),
         })
         .collect();
-    let direct_position = |t_s: f64| -> Option<[f64; 3]> {
-        let time = t0.add_s(t_s);
-        let teme = prop.state_at(time).ok()?;
-        Some(TemeToEarthFixed::at(time, &eop).position(&teme.position_km))
-    };
+    let direct_position = |t_s: f64| direct_state(prop, options, t_s).map(|s| s.position_km);
     let illumination = illumination_spans(track, &direct_position, t0, aos_s, los_s, &eop);
     let mount_warnings = match &st.station.mount {
         Some(m) => {
@@ -205,12 +196,8 @@ fn polish_culmination(
     aos_s: f64,
     los_s: f64,
 ) -> f64 {
-    let direct = |t_s: f64| -> Option<f64> {
-        let time = options.start.add_s(t_s);
-        let teme = prop.state_at(time).ok()?;
-        let r = TemeToEarthFixed::at(time, &options.earth_orientation).position(&teme.position_km);
-        Some(st.site.sin_elevation(&r))
-    };
+    let direct =
+        |t_s: f64| direct_state(prop, options, t_s).map(|s| st.site.sin_elevation(&s.position_km));
     let interpolated = |t_s: f64| st.site.sin_elevation(&track.position_at(t_s));
     // One step from within 20 ms leaves microseconds (the curvature's error
     // is a small fraction of it); a second costs two more SGP4 calls.

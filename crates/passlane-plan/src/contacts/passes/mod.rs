@@ -568,6 +568,21 @@ fn scan_segment(
 /// mask) of a second or two is neither lost nor invented by the interpolant.
 const GRAZE: f64 = 1e-4;
 
+/// Direct SGP4's Earth-fixed state at `t_s` (seconds since the window
+/// start): what every printed instant of a pass is put on.
+pub(super) fn direct_state(
+    prop: &Propagator,
+    options: &PassOptions,
+    t_s: f64,
+) -> Option<EarthFixed> {
+    let time = options.start.add_s(t_s);
+    let teme = prop.state_at(time).ok()?;
+    Some(
+        TemeToEarthFixed::at(time, &options.earth_orientation)
+            .state(&teme.position_km, &teme.velocity_km_s),
+    )
+}
+
 /// Clearance of direct SGP4's position at `t_s`.
 fn direct_clearance(
     prop: &Propagator,
@@ -575,10 +590,7 @@ fn direct_clearance(
     options: &PassOptions,
     t_s: f64,
 ) -> Option<f64> {
-    let time = options.start.add_s(t_s);
-    let teme = prop.state_at(time).ok()?;
-    let r = TemeToEarthFixed::at(time, &options.earth_orientation).position(&teme.position_km);
-    Some(st.clearance(&r))
+    Some(st.clearance(&direct_state(prop, options, t_s)?.position_km))
 }
 
 /// The instants (with the clearance there) at which the satellite's azimuth
@@ -641,14 +653,7 @@ fn polish_crossing(
     hi_s: f64,
     interpolated: &dyn Fn(f64) -> f64,
 ) -> Edge {
-    let direct = |t_s: f64| -> Option<EarthFixed> {
-        let time = options.start.add_s(t_s);
-        let teme = prop.state_at(time).ok()?;
-        Some(
-            TemeToEarthFixed::at(time, &options.earth_orientation)
-                .state(&teme.position_km, &teme.velocity_km_s),
-        )
-    };
+    let direct = |t_s: f64| direct_state(prop, options, t_s);
     let mut t = t0_s;
     for _ in 0..4 {
         let eps = 1e-3;
