@@ -5,8 +5,8 @@
 use passlane_orbit::constants::SPEED_OF_LIGHT_KM_S;
 use passlane_orbit::frames::{norm, sub};
 use passlane_orbit::{
-    EarthFixed, EarthOrientation, ElementSet, Illumination, Propagator, TemeToEarthFixed, UtcTime,
-    shadow_margins, sun_position_teme_km,
+    EarthFixed, EarthOrientation, ElementSet, Illumination, LookAngles, Propagator,
+    TemeToEarthFixed, UtcTime, shadow_margins, sun_position_teme_km,
 };
 
 use super::track::{PreparedStation, Track};
@@ -51,7 +51,8 @@ pub(super) fn describe_pass(
         true,
         GUESS_TOL_S,
     );
-    let tmax_s = polish_culmination(prop, st, track, options, tmax_guess_s, aos_s, los_s);
+    let (tmax_s, straddle) =
+        polish_culmination(prop, st, track, options, tmax_guess_s, aos_s, los_s);
     let (tmin_range_s, interpolated_min_range_km) = brent_extremum(
         |t| norm(&sub(&track.position_at(t), &st.site.position_km)),
         aos_s,
@@ -61,7 +62,13 @@ pub(super) fn describe_pass(
     );
     let at_edge = |e: Edge| e.state.map_or_else(|| look(e.t_s), |s| st.site.look(&s));
     let at_aos = at_edge(aos);
-    let at_max = look(tmax_s);
+    // The culmination lies between the two direct states its last Newton
+    // step took (0.5 s apart): interpolated between them it is within
+    // micrometres of direct SGP4 there, and saves an SGP4 call.
+    let at_max = match &straddle {
+        Some(p) if (p.lo_s..=p.hi_s).contains(&tmax_s) => st.site.look(&p.at(tmax_s)),
+        _ => look(tmax_s),
+    };
     let at_los = at_edge(los);
     // The Earth-fixed velocity's north component tells north- or southbound.
     let v_max = track.at(tmax_s);
@@ -90,23 +97,34 @@ pub(super) fn describe_pass(
     // (the cubic term is below a micrometre), so the printed minimum does
     // not depend on where the samples fell (the interpolant's was up to 4 m
     // off for the slower orbits' longer steps).
-    let dt = 0.5;
-    let lo = (tmin_range_s - dt).max(aos_s);
-    let hi = (tmin_range_s + dt).min(los_s);
-    let (range_accel, min_range_km) = if hi > lo {
-        let (a, b) = (look(lo), look(hi));
-        let accel = (b.range_rate_km_s - a.range_rate_km_s) / (hi - lo);
-        let vertex_s = lo - a.range_rate_km_s / accel;
-        let min_range_km = if accel > 0.0 && (lo..=hi).contains(&vertex_s) {
-            a.range_km - a.range_rate_km_s * a.range_rate_km_s / (2.0 * accel)
-        } else {
-            // The closest point is at an end of the bracket (a pass cut by
-            // the window): the nearer end's direct range.
-            a.range_km.min(b.range_km)
-        };
-        (accel, min_range_km)
+    // Most passes come closest within half a second of their culmination:
+    // there the culmination's two direct states serve (two SGP4 calls
+    // fewer), the vertex allowed up to 0.5 s beyond them (the parabola's
+    // cubic term is then still below a millimetre).
+    let shared = straddle
+        .as_ref()
+        .filter(|p| (tmin_range_s - p.mid_s()).abs() <= 0.5 && p.lo_s >= aos_s && p.hi_s <= los_s)
+        .and_then(|p| {
+            let (a, b) = (st.site.look(&p.lo), st.site.look(&p.hi));
+            closest_on_parabola(&a, &b, p.lo_s, p.hi_s, 0.5)
+        });
+    let (range_accel, min_range_km) = if let Some(found) = shared {
+        found
     } else {
-        (0.0, interpolated_min_range_km)
+        let dt = 0.5;
+        let lo = (tmin_range_s - dt).max(aos_s);
+        let hi = (tmin_range_s + dt).min(los_s);
+        if hi > lo {
+            let (a, b) = (look(lo), look(hi));
+            closest_on_parabola(&a, &b, lo, hi, 0.0).unwrap_or_else(|| {
+                // The closest point is at an end of the bracket (a pass cut
+                // by the window): the nearer end's direct range.
+                let accel = (b.range_rate_km_s - a.range_rate_km_s) / (hi - lo);
+                (accel, a.range_km.min(b.range_km))
+            })
+        } else {
+            (0.0, interpolated_min_range_km)
+        }
     };
     let doppler = st
         .station
@@ -177,6 +195,62 @@ pub(super) fn describe_pass(
     }
 }
 
+/// Range acceleration and closest range from direct looks at `lo_s` and
+/// `hi_s`: the range is a parabola through its vertex
+/// t* = lo − ṙ(lo)/r̈ over a second or two, r̈ the range rates' difference
+/// quotient. `None` unless r̈ > 0 and the vertex lies within `reach_s` of
+/// [lo, hi].
+fn closest_on_parabola(
+    a: &LookAngles,
+    b: &LookAngles,
+    lo_s: f64,
+    hi_s: f64,
+    reach_s: f64,
+) -> Option<(f64, f64)> {
+    let accel = (b.range_rate_km_s - a.range_rate_km_s) / (hi_s - lo_s);
+    let vertex_s = lo_s - a.range_rate_km_s / accel;
+    (accel > 0.0 && (lo_s - reach_s..=hi_s + reach_s).contains(&vertex_s)).then(|| {
+        (
+            accel,
+            a.range_km - a.range_rate_km_s * a.range_rate_km_s / (2.0 * accel),
+        )
+    })
+}
+
+/// Two direct SGP4 states, 0.5 s apart, around a culmination.
+pub(super) struct Straddle {
+    pub(super) lo_s: f64,
+    pub(super) lo: EarthFixed,
+    pub(super) hi_s: f64,
+    pub(super) hi: EarthFixed,
+}
+
+impl Straddle {
+    fn mid_s(&self) -> f64 {
+        0.5 * (self.lo_s + self.hi_s)
+    }
+
+    /// The state at `t_s` in [lo, hi], by cubic Hermite interpolation:
+    /// over half a second its error is far below a micrometre (Δt⁴/384·ω⁴·r),
+    /// and SGP4's velocity, not exactly the derivative of its positions,
+    /// adds h/8 times the change of that mismatch over the half second.
+    fn at(&self, t_s: f64) -> EarthFixed {
+        let h = self.hi_s - self.lo_s;
+        let (position_km, velocity_km_s) = passlane_orbit::interpolate::hermite(
+            &self.lo.position_km,
+            &self.lo.velocity_km_s,
+            &self.hi.position_km,
+            &self.hi.velocity_km_s,
+            h,
+            (t_s - self.lo_s) / h,
+        );
+        EarthFixed {
+            position_km,
+            velocity_km_s,
+        }
+    }
+}
+
 /// Moves the culmination found on the interpolated track onto direct SGP4
 /// positions: Newton steps on d(sin el)/dt, taken as a central difference
 /// of direct SGP4 positions ±0.25 s, with the curvature taken from the
@@ -195,19 +269,27 @@ fn polish_culmination(
     guess_s: f64,
     aos_s: f64,
     los_s: f64,
-) -> f64 {
-    let direct =
-        |t_s: f64| direct_state(prop, options, t_s).map(|s| st.site.sin_elevation(&s.position_km));
+) -> (f64, Option<Straddle>) {
     let interpolated = |t_s: f64| st.site.sin_elevation(&track.position_at(t_s));
+    let sin_el = |s: &EarthFixed| st.site.sin_elevation(&s.position_km);
+    let mut last = None;
     // One step from within 20 ms leaves microseconds (the curvature's error
     // is a small fraction of it); a second costs two more SGP4 calls.
-    newton_polish(guess_s, (aos_s, los_s), 1.0, 0.02, 2, |t| {
+    let t = newton_polish(guess_s, (aos_s, los_s), 1.0, 0.02, 2, |t| {
         let (h, k) = (0.25, 1.0);
         let curvature =
             (interpolated(t + k) - 2.0 * interpolated(t) + interpolated(t - k)) / (k * k);
-        let slope = (direct(t + h)? - direct(t - h)?) / (2.0 * h);
+        let pair = Straddle {
+            lo_s: t - h,
+            lo: direct_state(prop, options, t - h)?,
+            hi_s: t + h,
+            hi: direct_state(prop, options, t + h)?,
+        };
+        let slope = (sin_el(&pair.hi) - sin_el(&pair.lo)) / (2.0 * h);
+        last = Some(pair);
         (curvature < 0.0 && curvature.is_finite()).then(|| slope / curvature)
-    })
+    });
+    (t, last)
 }
 
 /// Doppler shift of a link at rest frequency `f_hz` seen by a receiver at

@@ -94,20 +94,32 @@ impl PreparedStation {
         if !self.has_mask {
             return sin_el - self.sin_min_elevation;
         }
-        let az = e.atan2(n).to_degrees().rem_euclid(360.0);
-        sin_el - self.station.horizon_deg(az).to_radians().sin()
+        sin_el
+            - self
+                .station
+                .horizon_deg(azimuth_of(e, n))
+                .to_radians()
+                .sin()
     }
 
     /// Azimuth of an Earth-fixed position from the station, deg in [0, 360).
     pub(super) fn azimuth_deg(&self, r_ecef: &Vec3) -> f64 {
         let [e, n, _] = self.site.to_enu(&sub(r_ecef, &self.site.position_km));
-        e.atan2(n).to_degrees().rem_euclid(360.0)
+        azimuth_of(e, n)
     }
 
     /// Cosine of the Earth central angle between the station and a position.
     pub(super) fn cos_central_angle(&self, r_ecef: &Vec3) -> f64 {
         (dot(&self.up_geocentric, r_ecef) / norm(r_ecef)).clamp(-1.0, 1.0)
     }
+}
+
+/// Azimuth in [0, 360) deg of an east/north pair: atan2's (−180°, 180°]
+/// moved up by a turn where negative, the same values as `rem_euclid(360)`
+/// without its software fmod (~120 instructions, called at every sample).
+fn azimuth_of(east: f64, north: f64) -> f64 {
+    let az = east.atan2(north).to_degrees();
+    if az < 0.0 { az + 360.0 } else { az }
 }
 
 /// Earth-fixed samples of one satellite with Hermite interpolation between them.
@@ -343,7 +355,14 @@ impl PlaneBounds {
         if ahead.abs() <= cone {
             return plane;
         }
-        let to_go = (-cone - ahead).rem_euclid(std::f64::consts::TAU);
+        // (−cone − ahead) mod 2π; it lies in [−2π, π] (no `%`, a software
+        // fmod: see `azimuth_of`).
+        let behind = -cone - ahead;
+        let to_go = if behind < 0.0 {
+            behind + std::f64::consts::TAU
+        } else {
+            behind
+        };
         let phase = (to_go / (self.max_in_plane_rate_rad_s + Self::PROJECTION_RATE_RAD_S))
             .min((PHASE_MAX_BETA_RAD - beta) / Self::TURN_RAD_S);
         plane.max(phase)
