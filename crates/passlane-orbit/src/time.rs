@@ -212,6 +212,16 @@ impl UtcTime {
 
     /// ISO 8601 with `digits` (3 or 6) of seconds' fraction.
     fn iso_with_fraction(self, digits: u32) -> String {
+        match self.iso_text(digits) {
+            IsoLayout::Fixed(text) => text.as_str().to_string(),
+            IsoLayout::Wide(text) => text,
+        }
+    }
+
+    /// The ISO 8601 text of [`UtcTime::iso_with_fraction`], in a buffer on
+    /// the stack for the years 0000–9999 (the serialisers write it without
+    /// an allocation: a pass listing prints tens of thousands of times).
+    fn iso_text(self, digits: u32) -> IsoLayout {
         // Whole units (ms or µs) since 2000-01-01T00:00:00, split into a day
         // number and a time of day, then the civil date by Hinnant's
         // days-to-civil algorithm: exact, and far cheaper than a general
@@ -220,7 +230,7 @@ impl UtcTime {
         let units = (self.s_since_j2000 * per_s as f64).round();
         // Far inside i64 for any date that means something (±3,000 years in µs).
         if !units.is_finite() || units.abs() > 1e17 {
-            return "invalid-time".to_string();
+            return IsoLayout::Wide("invalid-time".to_string());
         }
         let per_day = 86_400 * per_s;
         let since_midnight_2000 = units as i64 + 43_200 * per_s;
@@ -230,31 +240,33 @@ impl UtcTime {
         let (h, rest) = (of_day / (3_600 * per_s), of_day % (3_600 * per_s));
         let (min, rest) = (rest / (60 * per_s), rest % (60 * per_s));
         let (sec, frac) = (rest / per_s, rest % per_s);
-        // Digits written straight into a buffer: `format!` with padded
-        // fields cost about ten times as much, and a pass listing writes
-        // tens of thousands of times.
-        let mut out = String::with_capacity(32);
         if !(0..=9999).contains(&y) {
-            return format!(
+            return IsoLayout::Wide(format!(
                 "{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0width$}Z",
                 width = digits as usize
-            );
+            ));
         }
-        push_digits(&mut out, y, 4);
-        out.push('-');
-        push_digits(&mut out, m, 2);
-        out.push('-');
-        push_digits(&mut out, d, 2);
-        out.push('T');
-        push_digits(&mut out, h, 2);
-        out.push(':');
-        push_digits(&mut out, min, 2);
-        out.push(':');
-        push_digits(&mut out, sec, 2);
-        out.push('.');
-        push_digits(&mut out, frac, digits as usize);
-        out.push('Z');
-        out
+        // Digits written straight into a buffer: `format!` with padded
+        // fields cost about ten times as much.
+        let mut text = IsoText {
+            bytes: [0; 27],
+            len: 0,
+        };
+        text.digits(y, 4);
+        text.byte(b'-');
+        text.digits(m, 2);
+        text.byte(b'-');
+        text.digits(d, 2);
+        text.byte(b'T');
+        text.digits(h, 2);
+        text.byte(b':');
+        text.digits(min, 2);
+        text.byte(b':');
+        text.digits(sec, 2);
+        text.byte(b'.');
+        text.digits(frac, digits as usize);
+        text.byte(b'Z');
+        IsoLayout::Fixed(text)
     }
 
     /// ISO 8601 UTC rounded to the second, without fraction (for tables).
@@ -309,12 +321,12 @@ impl std::str::FromStr for UtcTime {
 /// Serialises an instant with microseconds, for fields a root finder
 /// produced: `#[serde(serialize_with = "passlane_orbit::time::iso_us")]`.
 pub fn iso_us<S: serde::Serializer>(t: &UtcTime, s: S) -> Result<S::Ok, S::Error> {
-    s.serialize_str(&t.to_iso_us())
+    t.iso_text(6).serialize(s)
 }
 
 impl serde::Serialize for UtcTime {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        s.serialize_str(&self.to_iso_ms())
+        self.iso_text(3).serialize(s)
     }
 }
 
@@ -349,15 +361,48 @@ fn j2000_noon() -> NaiveDateTime {
     j2000_date().and_hms_opt(12, 0, 0).unwrap_or_default()
 }
 
-/// Appends `value` (0 ≤ value < 10^width) with exactly `width` digits.
-fn push_digits(out: &mut String, value: i64, width: usize) {
-    let mut buf = [b'0'; 20];
-    let mut v = value.unsigned_abs();
-    for slot in buf[..width].iter_mut().rev() {
-        *slot = b'0' + (v % 10) as u8;
-        v /= 10;
+/// An ISO 8601 time of the years 0000–9999, at most
+/// `YYYY-MM-DDTHH:MM:SS.ffffffZ` (27 bytes, ASCII).
+struct IsoText {
+    bytes: [u8; 27],
+    len: usize,
+}
+
+impl IsoText {
+    fn byte(&mut self, b: u8) {
+        self.bytes[self.len] = b;
+        self.len += 1;
     }
-    out.extend(buf[..width].iter().map(|&b| char::from(b)));
+
+    /// Appends `value` (0 ≤ value < 10^width) with exactly `width` digits.
+    fn digits(&mut self, value: i64, width: usize) {
+        let mut v = value.unsigned_abs();
+        for slot in self.bytes[self.len..self.len + width].iter_mut().rev() {
+            *slot = b'0' + (v % 10) as u8;
+            v /= 10;
+        }
+        self.len += width;
+    }
+
+    fn as_str(&self) -> &str {
+        // Only ASCII digits and separators are ever written.
+        std::str::from_utf8(&self.bytes[..self.len]).unwrap_or("invalid-time")
+    }
+}
+
+enum IsoLayout {
+    Fixed(IsoText),
+    /// Outside the fixed layout (other years, or not a time).
+    Wide(String),
+}
+
+impl IsoLayout {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        match self {
+            IsoLayout::Fixed(text) => s.serialize_str(text.as_str()),
+            IsoLayout::Wide(text) => s.serialize_str(text),
+        }
+    }
 }
 
 #[cfg(test)]
