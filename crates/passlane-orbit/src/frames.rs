@@ -68,6 +68,36 @@ pub struct EarthFixed {
     pub velocity_km_s: Vec3,
 }
 
+impl EarthFixed {
+    /// The acceleration of this state in the Earth-fixed frame under the
+    /// gravity SGP4 models to first order: two-body plus J2 (WGS-72, the
+    /// constants SGP4 uses), with the rotating frame's Coriolis (−2ω×v) and
+    /// centrifugal (−ω×(ω×r)) terms. For interpolating SGP4 samples to
+    /// fifth order ([`crate::interpolate::quintic`]), not for propagating:
+    /// it leaves out drag, the higher zonal terms and SGP4's own mismatch
+    /// between its positions and velocities.
+    pub fn model_acceleration_km_s2(&self) -> Vec3 {
+        use crate::constants::{
+            EARTH_RADIUS_WGS72_KM, EARTH_ROTATION_RAD_S, J2_WGS72, MU_WGS72_KM3_S2,
+        };
+        let [x, y, z] = self.position_km;
+        let [vx, vy, _] = self.velocity_km_s;
+        let r2 = x * x + y * y + z * z;
+        let r = r2.sqrt();
+        // The Earth-fixed z axis is TEME's (a rotation about it; polar
+        // motion, when given, tilts it by arcseconds).
+        let k = 1.5 * J2_WGS72 * EARTH_RADIUS_WGS72_KM * EARTH_RADIUS_WGS72_KM / r2;
+        let zz = z * z / r2;
+        let f = -MU_WGS72_KM3_S2 / (r2 * r);
+        let w = EARTH_ROTATION_RAD_S;
+        [
+            f * x * (1.0 + k * (1.0 - 5.0 * zz)) + 2.0 * w * vy + w * w * x,
+            f * y * (1.0 + k * (1.0 - 5.0 * zz)) - 2.0 * w * vx + w * w * y,
+            f * z * (1.0 + k * (3.0 - 5.0 * zz)),
+        ]
+    }
+}
+
 /// Precomputed rotation TEME → Earth-fixed at one instant.
 #[derive(Debug, Clone, Copy)]
 pub struct TemeToEarthFixed {
