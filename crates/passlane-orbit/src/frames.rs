@@ -73,7 +73,7 @@ impl EarthFixed {
     /// gravity SGP4 models to first order: two-body plus J2 (WGS-72, the
     /// constants SGP4 uses), with the rotating frame's Coriolis (−2ω×v) and
     /// centrifugal (−ω×(ω×r)) terms. For interpolating SGP4 samples to
-    /// fifth order ([`crate::interpolate::quintic`]), not for propagating:
+    /// fifth order ([`crate::interpolate::Quintic`]), not for propagating:
     /// it leaves out drag, the higher zonal terms and SGP4's own mismatch
     /// between its positions and velocities.
     pub fn model_acceleration_km_s2(&self) -> Vec3 {

@@ -57,66 +57,64 @@ pub struct Sample5 {
     pub acceleration_km_s2: Vec3,
 }
 
-/// The quintic Hermite basis at `s` ∈ [0, 1] for a step of `h` seconds:
-/// weights of p0, v0, a0, p1, v1, a1 (the step's powers included).
-#[inline]
-fn quintic_weights(h: f64, s: f64) -> [f64; 6] {
-    let s2 = s * s;
-    let s3 = s2 * s;
-    let s4 = s3 * s;
-    let s5 = s4 * s;
-    [
-        1.0 - 10.0 * s3 + 15.0 * s4 - 6.0 * s5,
-        (s - 6.0 * s3 + 8.0 * s4 - 3.0 * s5) * h,
-        0.5 * (s2 - 3.0 * s3 + 3.0 * s4 - s5) * h * h,
-        10.0 * s3 - 15.0 * s4 + 6.0 * s5,
-        (-4.0 * s3 + 7.0 * s4 - 3.0 * s5) * h,
-        0.5 * (s3 - 2.0 * s4 + s5) * h * h,
-    ]
+/// The quintic Hermite polynomial through two [`Sample5`]s `step_s` seconds
+/// apart, held as its power-series coefficients in s = (t − t_a)/step: a
+/// search evaluates one step's polynomial many times (a root or an
+/// extremum takes ten evaluations), and Horner's rule on six coefficients
+/// is a third of the arithmetic of the six basis functions.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Quintic {
+    coefficients: [Vec3; 6],
+    step_s: f64,
 }
 
-/// The derivative with respect to time of [`quintic_weights`].
-#[inline]
-fn quintic_rate_weights(h: f64, s: f64) -> [f64; 6] {
-    let s2 = s * s;
-    let s3 = s2 * s;
-    let s4 = s3 * s;
-    [
-        (-30.0 * s2 + 60.0 * s3 - 30.0 * s4) / h,
-        1.0 - 18.0 * s2 + 32.0 * s3 - 15.0 * s4,
-        0.5 * (2.0 * s - 9.0 * s2 + 12.0 * s3 - 5.0 * s4) * h,
-        (30.0 * s2 - 60.0 * s3 + 30.0 * s4) / h,
-        -12.0 * s2 + 28.0 * s3 - 15.0 * s4,
-        0.5 * (3.0 * s2 - 8.0 * s3 + 5.0 * s4) * h,
-    ]
-}
+impl Quintic {
+    pub fn through(a: &Sample5, b: &Sample5, step_s: f64) -> Self {
+        let h = step_s;
+        let h2 = h * h;
+        let per_axis: [[f64; 6]; 3] = std::array::from_fn(|k| {
+            // The Hermite basis functions expanded in powers of s, with
+            // D = p1 − p0 (the displacement, kept apart from the positions
+            // for precision), V = h·v, A = h²·a.
+            let d = b.position_km[k] - a.position_km[k];
+            let (v0, v1) = (h * a.velocity_km_s[k], h * b.velocity_km_s[k]);
+            let (a0, a1) = (h2 * a.acceleration_km_s2[k], h2 * b.acceleration_km_s2[k]);
+            [
+                a.position_km[k],
+                v0,
+                0.5 * a0,
+                10.0 * d - 6.0 * v0 - 4.0 * v1 - 1.5 * a0 + 0.5 * a1,
+                -15.0 * d + 8.0 * v0 + 7.0 * v1 + 1.5 * a0 - a1,
+                6.0 * d - 3.0 * v0 - 3.0 * v1 - 0.5 * a0 + 0.5 * a1,
+            ]
+        });
+        // Regroup from per-axis to per-power.
+        Quintic {
+            coefficients: std::array::from_fn(|j| std::array::from_fn(|k| per_axis[k][j])),
+            step_s,
+        }
+    }
 
-#[inline]
-fn combine(w: &[f64; 6], a: &Sample5, b: &Sample5) -> Vec3 {
-    std::array::from_fn(|k| {
-        w[0] * a.position_km[k]
-            + w[1] * a.velocity_km_s[k]
-            + w[2] * a.acceleration_km_s2[k]
-            + w[3] * b.position_km[k]
-            + w[4] * b.velocity_km_s[k]
-            + w[5] * b.acceleration_km_s2[k]
-    })
-}
+    /// Position at fraction `s` ∈ [0, 1] of the step.
+    #[inline]
+    pub fn position(&self, s: f64) -> Vec3 {
+        let c = &self.coefficients;
+        std::array::from_fn(|k| {
+            ((((c[5][k] * s + c[4][k]) * s + c[3][k]) * s + c[2][k]) * s + c[1][k]) * s + c[0][k]
+        })
+    }
 
-/// Position at fraction `s` ∈ [0, 1] of a step of `step_s` seconds from `a`
-/// to `b`, by quintic Hermite interpolation.
-#[inline]
-pub fn quintic_position(a: &Sample5, b: &Sample5, step_s: f64, s: f64) -> Vec3 {
-    combine(&quintic_weights(step_s, s), a, b)
-}
-
-/// Position and velocity (the interpolant's own derivative) at fraction `s`
-/// of a step, as [`quintic_position`].
-pub fn quintic(a: &Sample5, b: &Sample5, step_s: f64, s: f64) -> (Vec3, Vec3) {
-    (
-        combine(&quintic_weights(step_s, s), a, b),
-        combine(&quintic_rate_weights(step_s, s), a, b),
-    )
+    /// Position and velocity (the polynomial's own derivative) at fraction
+    /// `s` of the step.
+    pub fn state(&self, s: f64) -> (Vec3, Vec3) {
+        let c = &self.coefficients;
+        let velocity = std::array::from_fn(|k| {
+            ((((5.0 * c[5][k] * s + 4.0 * c[4][k]) * s + 3.0 * c[3][k]) * s + 2.0 * c[2][k]) * s
+                + c[1][k])
+                / self.step_s
+        });
+        (self.position(s), velocity)
+    }
 }
 
 #[cfg(test)]
@@ -157,14 +155,14 @@ mod tests {
             velocity_km_s: [dx(t), 2.0 * dx(t), 0.0],
             acceleration_km_s2: [ddx(t), 2.0 * ddx(t), 0.0],
         };
-        let (sa, sb) = (sample(a), sample(b));
+        let q = Quintic::through(&sample(a), &sample(b), b - a);
         for i in 0..=20 {
             let s = i as f64 / 20.0;
             let t = a + s * (b - a);
-            let (p, v) = quintic(&sa, &sb, b - a, s);
+            let (p, v) = q.state(s);
             assert!((p[0] - x(t)).abs() < 1e-12 && (p[1] - 2.0 * x(t)).abs() < 1e-12);
             assert!((v[0] - dx(t)).abs() < 1e-11 && (v[1] - 2.0 * dx(t)).abs() < 1e-11);
-            assert_eq!(quintic_position(&sa, &sb, b - a, s), p);
+            assert_eq!(q.position(s), p);
         }
     }
 }

@@ -5,7 +5,7 @@
 
 use passlane_orbit::constants::{EARTH_RADIUS_WGS72_KM, MU_WGS72_KM3_S2};
 use passlane_orbit::frames::{Vec3, cross, dot, norm, sub};
-use passlane_orbit::interpolate::{Sample5, quintic, quintic_position};
+use passlane_orbit::interpolate::{Quintic, Sample5};
 use passlane_orbit::{EarthFixed, ElementSet, Site, UtcTime};
 
 use crate::station::Station;
@@ -128,6 +128,8 @@ fn azimuth_of(east: f64, north: f64) -> f64 {
 pub(super) struct Track {
     pub(super) times_s: Vec<f64>,
     pub(super) states: Vec<Sample5>,
+    /// The polynomial between samples i and i + 1.
+    steps: Vec<Quintic>,
     t0: UtcTime,
 }
 
@@ -136,6 +138,7 @@ impl Track {
         Track {
             times_s: Vec::new(),
             states: Vec::new(),
+            steps: Vec::new(),
             t0,
         }
     }
@@ -143,17 +146,24 @@ impl Track {
     pub(super) fn clear(&mut self) {
         self.times_s.clear();
         self.states.clear();
+        self.steps.clear();
     }
 
     /// Adds a sample: its state and its acceleration (for SGP4 samples,
     /// [`EarthFixed::model_acceleration_km_s2`]).
     pub(super) fn push(&mut self, t: UtcTime, s: EarthFixed, acceleration_km_s2: Vec3) {
-        self.times_s.push(t.s_since(self.t0));
-        self.states.push(Sample5 {
+        let sample = Sample5 {
             position_km: s.position_km,
             velocity_km_s: s.velocity_km_s,
             acceleration_km_s2,
-        });
+        };
+        let t_s = t.s_since(self.t0);
+        if let (Some(&t_prev), Some(prev)) = (self.times_s.last(), self.states.last()) {
+            self.steps
+                .push(Quintic::through(prev, &sample, t_s - t_prev));
+        }
+        self.times_s.push(t_s);
+        self.states.push(sample);
     }
 
     pub(super) fn time(&self, i: usize) -> f64 {
@@ -180,12 +190,7 @@ impl Track {
             return self.states[i].position_km;
         }
         let h = self.times_s[j] - self.times_s[i];
-        quintic_position(
-            &self.states[i],
-            &self.states[j],
-            h,
-            (t_s - self.times_s[i]) / h,
-        )
+        self.steps[i].position((t_s - self.times_s[i]) / h)
     }
 
     /// Interpolated Earth-fixed state at `t_s` (seconds since `t0`), clamped to the track.
@@ -195,12 +200,7 @@ impl Track {
             (self.states[i].position_km, self.states[i].velocity_km_s)
         } else {
             let h = self.times_s[j] - self.times_s[i];
-            quintic(
-                &self.states[i],
-                &self.states[j],
-                h,
-                (t_s - self.times_s[i]) / h,
-            )
+            self.steps[i].state((t_s - self.times_s[i]) / h)
         };
         EarthFixed {
             position_km,
