@@ -8,6 +8,7 @@ pub mod cdm_cmd;
 pub mod common;
 pub mod elements_cmd;
 pub mod ephemeris_cmd;
+pub mod pass_json;
 pub mod passes_cmd;
 pub mod plan_cmd;
 pub mod progress;

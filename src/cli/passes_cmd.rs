@@ -63,9 +63,7 @@ pub fn run(args: &PassesArgs, out: &mut dyn Write) -> Result<()> {
         ));
     }
     match format {
-        Format::Json => {
-            common::write_json(&mut *out, &report.passes)?;
-        }
+        Format::Json => super::pass_json::write_passes(&mut *out, &report.passes)?,
         Format::Csv => write_csv(out, &report.passes)?,
         Format::Table => write_table(
             out,

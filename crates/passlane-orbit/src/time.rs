@@ -203,6 +203,15 @@ impl UtcTime {
         self.iso_with_fraction(6)
     }
 
+    /// Appends [`UtcTime::to_iso_us`]'s text to `out` without an
+    /// allocation (for writers of long listings).
+    pub fn push_iso_us(self, out: &mut Vec<u8>) {
+        match self.iso_text(6) {
+            IsoLayout::Fixed(text) => out.extend_from_slice(text.as_str().as_bytes()),
+            IsoLayout::Wide(text) => out.extend_from_slice(text.as_bytes()),
+        }
+    }
+
     /// The nearest whole millisecond (times on a printed grid).
     pub fn round_to_ms(self) -> Self {
         UtcTime {

@@ -155,7 +155,7 @@ fn printed_instants_do_not_depend_on_where_the_samples_fell() {
 ///   search's instant wanders up to 2.3 ms from ours there). The printed
 ///   maximum elevation is direct SGP4's at the printed instant (1e-6°);
 /// - the closest range is direct SGP4's minimum range over the pass, to
-///   1 cm (measured worst 0.2 mm; SGP4's velocity taken at one end of the
+///   1 cm (measured worst 0.5 mm; SGP4's velocity taken at one end of the
 ///   bracket had put it 21 cm off on the eccentric orbit).
 #[test]
 fn printed_figures_are_direct_sgp4s() {
