@@ -231,51 +231,65 @@ impl UtcTime {
     /// the stack for the years 0000–9999 (the serialisers write it without
     /// an allocation: a pass listing prints tens of thousands of times).
     fn iso_text(self, digits: u32) -> IsoLayout {
+        if digits == 6 {
+            self.iso_text_in::<1_000_000>(6)
+        } else {
+            self.iso_text_in::<1_000>(3)
+        }
+    }
+
+    /// [`UtcTime::iso_text`] in units of 1/`PER_S` s (`PER_S` = 10^digits;
+    /// a constant, so the divisions below are multiplications).
+    fn iso_text_in<const PER_S: i64>(self, digits: usize) -> IsoLayout {
         // Whole units (ms or µs) since 2000-01-01T00:00:00, split into a day
         // number and a time of day, then the civil date by Hinnant's
         // days-to-civil algorithm: exact, and far cheaper than a general
         // formatter (outputs print thousands of these).
-        let per_s = 10i64.pow(digits);
-        let units = (self.s_since_j2000 * per_s as f64).round();
+        let units = (self.s_since_j2000 * PER_S as f64).round();
         // Far inside i64 for any date that means something (±3,000 years in µs).
         if !units.is_finite() || units.abs() > 1e17 {
             return IsoLayout::Wide("invalid-time".to_string());
         }
-        let per_day = 86_400 * per_s;
-        let since_midnight_2000 = units as i64 + 43_200 * per_s;
-        let day = since_midnight_2000.div_euclid(per_day);
-        let of_day = since_midnight_2000.rem_euclid(per_day);
+        let since_midnight_2000 = units as i64 + 43_200 * PER_S;
+        let day = since_midnight_2000.div_euclid(86_400 * PER_S);
+        let of_day = since_midnight_2000.rem_euclid(86_400 * PER_S);
         let (y, m, d) = civil_from_days(day + 10_957);
-        let (h, rest) = (of_day / (3_600 * per_s), of_day % (3_600 * per_s));
-        let (min, rest) = (rest / (60 * per_s), rest % (60 * per_s));
-        let (sec, frac) = (rest / per_s, rest % per_s);
+        let (h, rest) = (of_day / (3_600 * PER_S), of_day % (3_600 * PER_S));
+        let (min, rest) = (rest / (60 * PER_S), rest % (60 * PER_S));
+        let (sec, frac) = (rest / PER_S, rest % PER_S);
         if !(0..=9999).contains(&y) {
             return IsoLayout::Wide(format!(
-                "{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0width$}Z",
-                width = digits as usize
+                "{y:04}-{m:02}-{d:02}T{h:02}:{min:02}:{sec:02}.{frac:0digits$}Z"
             ));
         }
-        // Digits written straight into a buffer: `format!` with padded
-        // fields cost about ten times as much.
-        let mut text = IsoText {
-            bytes: [0; 27],
-            len: 0,
+        // Digits written in pairs at fixed places of a template: `format!`
+        // with padded fields cost about ten times as much.
+        let mut bytes = *b"0000-00-00T00:00:00.000000Z";
+        let mut put = |at: usize, v: i64| {
+            let i = 2 * (v as usize % 100);
+            bytes[at] = DIGIT_PAIRS[i];
+            bytes[at + 1] = DIGIT_PAIRS[i + 1];
         };
-        text.digits(y, 4);
-        text.byte(b'-');
-        text.digits(m, 2);
-        text.byte(b'-');
-        text.digits(d, 2);
-        text.byte(b'T');
-        text.digits(h, 2);
-        text.byte(b':');
-        text.digits(min, 2);
-        text.byte(b':');
-        text.digits(sec, 2);
-        text.byte(b'.');
-        text.digits(frac, digits as usize);
-        text.byte(b'Z');
-        IsoLayout::Fixed(text)
+        put(0, y / 100);
+        put(2, y % 100);
+        put(5, m);
+        put(8, d);
+        put(11, h);
+        put(14, min);
+        put(17, sec);
+        if digits == 6 {
+            put(20, frac / 10_000);
+            put(22, frac / 100 % 100);
+            put(24, frac % 100);
+        } else {
+            put(20, frac / 10);
+            bytes[22] = b'0' + (frac % 10) as u8;
+            bytes[23] = b'Z';
+        }
+        IsoLayout::Fixed(IsoText {
+            bytes,
+            len: 21 + digits,
+        })
     }
 
     /// ISO 8601 UTC rounded to the second, without fraction (for tables).
@@ -377,22 +391,10 @@ struct IsoText {
     len: usize,
 }
 
+/// "00" to "99", two bytes each.
+const DIGIT_PAIRS: &[u8; 200] = b"00010203040506070809101112131415161718192021222324252627282930313233343536373839404142434445464748495051525354555657585960616263646566676869707172737475767778798081828384858687888990919293949596979899";
+
 impl IsoText {
-    fn byte(&mut self, b: u8) {
-        self.bytes[self.len] = b;
-        self.len += 1;
-    }
-
-    /// Appends `value` (0 ≤ value < 10^width) with exactly `width` digits.
-    fn digits(&mut self, value: i64, width: usize) {
-        let mut v = value.unsigned_abs();
-        for slot in self.bytes[self.len..self.len + width].iter_mut().rev() {
-            *slot = b'0' + (v % 10) as u8;
-            v /= 10;
-        }
-        self.len += width;
-    }
-
     fn as_str(&self) -> &str {
         // Only ASCII digits and separators are ever written.
         std::str::from_utf8(&self.bytes[..self.len]).unwrap_or("invalid-time")

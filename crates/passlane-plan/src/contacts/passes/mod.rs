@@ -344,6 +344,7 @@ fn passes_of_satellite(
         .iter()
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
         .collect();
+    let cone_cosines: Vec<f64> = cones.iter().map(|c| c.cos()).collect();
     let plane_bounds = PlaneBounds::of(&bounds);
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
@@ -389,12 +390,16 @@ fn passes_of_satellite(
             b.skip_s(&stations[k].up_geocentric, &n, &ecef.position_km, cones[k])
         };
         plain.clear();
-        plain.extend(
-            cosines
-                .iter()
-                .zip(&cones)
-                .map(|(c, cone)| (c.acos() - cone) / bounds.max_angle_rate_rad_s),
-        );
+        // Inside a cone the bound is zero (and the acos not needed).
+        plain.extend(cosines.iter().zip(cones.iter().zip(&cone_cosines)).map(
+            |(&c, (cone, &cos_cone))| {
+                if c >= cos_cone {
+                    0.0
+                } else {
+                    (c.acos() - cone) / bounds.max_angle_rate_rad_s
+                }
+            },
+        ));
         let mut skip = f64::INFINITY;
         for k in (0..stations.len()).filter(|&k| plain[k] < h) {
             skip = skip.min(plain[k].max(plane_skip(k)));
