@@ -3,7 +3,7 @@
 //! sunlight spans and mount-rate warnings.
 
 use passlane_orbit::constants::SPEED_OF_LIGHT_KM_S;
-use passlane_orbit::frames::{norm, sub};
+use passlane_orbit::frames::{dot, norm, sub};
 use passlane_orbit::{
     EarthFixed, EarthOrientation, ElementSet, Illumination, LookAngles, Propagator,
     TemeToEarthFixed, UtcTime, shadow_margins, sun_position_teme_km,
@@ -62,13 +62,6 @@ pub(super) fn describe_pass(
     );
     let (tmax_s, straddle) =
         polish_culmination(prop, st, track, options, tmax_guess_s, aos_s, los_s);
-    let (tmin_range_s, interpolated_min_range_km) = brent_extremum(
-        |t| norm(&sub(&track.position_at(t), &st.site.position_km)),
-        aos_s,
-        los_s,
-        false,
-        GUESS_TOL_S,
-    );
     let at_edge = |e: Edge| e.state.map_or_else(|| look(e.t_s), |s| st.site.look(&s));
     let at_aos = at_edge(aos);
     // The culmination lies between the two direct states its last Newton
@@ -100,26 +93,39 @@ pub(super) fn describe_pass(
         })
         .elevation_deg;
     // Range acceleration at closest approach gives the largest Doppler rate
-    // (a central difference of direct SGP4 range rates over ±0.5 s).
-    // The same two looks give the closest range itself on direct SGP4: the
-    // range is a parabola through the vertex t* = lo − ṙ(lo)/r̈ over a second
-    // (the cubic term is below a micrometre), so the printed minimum does
-    // not depend on where the samples fell (the interpolant's was up to 4 m
-    // off for the slower orbits' longer steps).
+    // (a difference of direct SGP4 range rates a second or less apart).
+    // The same two looks give the closest range itself on direct SGP4
+    // (`closest_on_parabola`), so the printed minimum does not depend on
+    // where the samples fell (the interpolant's was up to 4 m off).
     // Most passes come closest within a second of their culmination: there
-    // the culmination's two direct states serve (two SGP4 calls fewer).
+    // (the interpolated range rate changes sign within SHARE_S of it, so no
+    // search for the minimum is needed) the culmination's two direct states
+    // serve (two SGP4 calls fewer).
+    let range_rate_at = |t_s: f64| {
+        let s = track.at(t_s);
+        let d = sub(&s.position_km, &st.site.position_km);
+        dot(&d, &s.velocity_km_s) / norm(&d)
+    };
     let shared = straddle
         .as_ref()
         .filter(|p| {
-            (tmin_range_s - p.mid_s()).abs() <= SHARE_S && p.lo_s >= aos_s && p.hi_s <= los_s
+            let (lo, hi) = (p.mid_s() - SHARE_S, p.mid_s() + SHARE_S);
+            lo >= aos_s && hi <= los_s && range_rate_at(lo) < 0.0 && range_rate_at(hi) > 0.0
         })
         .and_then(|p| {
             let (a, b) = (st.site.look(&p.lo), st.site.look(&p.hi));
             closest_on_parabola(&a, &b, p.lo_s, p.hi_s, SHARE_S)
         });
-    let (range_accel, min_range_km) = if let Some(found) = shared {
+    let (range_accel, min_range_km, tmin_range_s) = if let Some(found) = shared {
         found
     } else {
+        let (tmin_range_s, interpolated_min_range_km) = brent_extremum(
+            |t| norm(&sub(&track.position_at(t), &st.site.position_km)),
+            aos_s,
+            los_s,
+            false,
+            GUESS_TOL_S,
+        );
         let dt = 0.5;
         let lo = (tmin_range_s - dt).max(aos_s);
         let hi = (tmin_range_s + dt).min(los_s);
@@ -129,10 +135,10 @@ pub(super) fn describe_pass(
                 // The closest point is at an end of the bracket (a pass cut
                 // by the window): the nearer end's direct range.
                 let accel = (b.range_rate_km_s - a.range_rate_km_s) / (hi - lo);
-                (accel, a.range_km.min(b.range_km))
+                (accel, a.range_km.min(b.range_km), tmin_range_s)
             })
         } else {
-            (0.0, interpolated_min_range_km)
+            (0.0, interpolated_min_range_km, tmin_range_s)
         }
     };
     let doppler = st
@@ -204,7 +210,7 @@ pub(super) fn describe_pass(
     }
 }
 
-/// Range acceleration and closest range from direct looks at `lo_s` and
+/// Range acceleration, closest range and its instant from direct looks at `lo_s` and
 /// `hi_s`, a second or less apart: over that the range is a parabola (its
 /// cubic term is below a millimetre). Its slope at the midpoint is the
 /// difference quotient of the two direct ranges, its curvature r̈ that of
@@ -219,14 +225,14 @@ fn closest_on_parabola(
     lo_s: f64,
     hi_s: f64,
     reach_s: f64,
-) -> Option<(f64, f64)> {
+) -> Option<(f64, f64, f64)> {
     let span = hi_s - lo_s;
     let accel = (b.range_rate_km_s - a.range_rate_km_s) / span;
     let slope = (b.range_km - a.range_km) / span;
     let vertex_s = 0.5 * (lo_s + hi_s) - slope / accel;
     (accel > 0.0 && (lo_s - reach_s..=hi_s + reach_s).contains(&vertex_s)).then(|| {
         let at_mid = 0.5 * (a.range_km + b.range_km) - accel * span * span / 8.0;
-        (accel, at_mid - slope * slope / (2.0 * accel))
+        (accel, at_mid - slope * slope / (2.0 * accel), vertex_s)
     })
 }
 
