@@ -52,6 +52,7 @@ use crate::station::{LinkDirection, Station};
 pub use details::{doppler_shift_hz, tuned_frequency_hz};
 
 use details::describe_pass;
+use passlane_orbit::interpolate::Sample5;
 use track::{OrbitBounds, PlaneBounds, PreparedStation, Track};
 
 /// Settings of one pass search.
@@ -460,14 +461,13 @@ fn scan_segment(
         // outside its cone cannot see the satellite anywhere in the segment.
         let reach = bounds.max_angle_rate_rad_s * bounds.step_s;
         let cos_reach = (cone + reach).min(std::f64::consts::PI).cos();
-        let reachable_at: Vec<bool> = track
-            .states
-            .iter()
-            .map(|s| st.cos_central_angle(&s.position_km) >= cos_reach)
-            .collect();
-        if !reachable_at.iter().any(|&r| r) {
+        let reachable = |s: &Sample5| st.cos_central_angle(&s.position_km) >= cos_reach;
+        // Most segments concern one station: the others are ruled out here
+        // without building anything.
+        if !track.states.iter().any(reachable) {
             continue;
         }
+        let reachable_at: Vec<bool> = track.states.iter().map(reachable).collect();
         // Where the clearance is known: the samples, and for a station with
         // a mask the instants the azimuth crosses a corner of the horizon,
         // so that between two of these points the clearance is smooth and
@@ -485,13 +485,13 @@ fn scan_segment(
             base.extend(corner_crossings(st, track, &reachable_at));
             base.sort_by(|a, b| a.0.total_cmp(&b.0));
         }
-        let f: Vec<f64> = base.iter().map(|b| b.1).collect();
+        let f = |i: usize| base[i].1;
         let mut points: Vec<(f64, f64)> = base.iter().map(|b| (b.0, b.1)).collect();
         for i in 1..base.len().saturating_sub(1) {
-            let is_max = f[i] >= f[i - 1] && f[i] >= f[i + 1];
-            let is_min = f[i] <= f[i - 1] && f[i] <= f[i + 1];
+            let is_max = f(i) >= f(i - 1) && f(i) >= f(i + 1);
+            let is_min = f(i) <= f(i - 1) && f(i) <= f(i + 1);
             let reachable = base[i - 1].2 || base[i].2 || base[i + 1].2;
-            if is_max && f[i] <= 0.0 && reachable {
+            if is_max && f(i) <= 0.0 && reachable {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.position_at(t)),
                     base[i - 1].0,
@@ -506,7 +506,7 @@ fn scan_segment(
                 {
                     points.push((t, d));
                 }
-            } else if is_min && f[i] >= 0.0 {
+            } else if is_min && f(i) >= 0.0 {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.position_at(t)),
                     base[i - 1].0,
