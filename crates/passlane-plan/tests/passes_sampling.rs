@@ -214,3 +214,53 @@ fn printed_figures_are_direct_sgp4s() {
     }
     assert!(compared > 400, "{compared}");
 }
+
+/// A pass that rises a few seconds after the window starts, or sets a few
+/// seconds before it ends, lies between the window's first (or last) two
+/// samples: it is found all the same, with the same AOS and LOS. (Three
+/// such passes at the start of the 1,000-satellite × 10-station benchmark
+/// week were missed when only samples with a neighbour on each side were
+/// searched for a peak.)
+#[test]
+fn passes_at_the_very_edges_of_a_window_are_found() {
+    let sets = bench_fleet(12);
+    let stations = bench_stations();
+    let base = find_passes(
+        &sets,
+        &stations,
+        &PassOptions::new(t("2026-12-01T00:00:00Z"), t("2026-12-02T00:00:00Z")),
+        &Silent,
+    )
+    .passes;
+    let mut compared = 0;
+    for p in base.iter().filter(|p| !p.aos_clipped && !p.los_clipped) {
+        let set = std::slice::from_ref(
+            sets.iter()
+                .find(|s| s.catalog_number == p.catalog_number)
+                .unwrap(),
+        );
+        let station = std::slice::from_ref(&stations[p.station_index]);
+        let same =
+            |q: &Pass| q.aos.s_since(p.aos).abs() < 1e-5 && q.los.s_since(p.los).abs() < 1e-5;
+        let rising = PassOptions::new(p.aos.add_s(-3.0), p.los.add_s(3_600.0));
+        let found = find_passes(set, station, &rising, &Silent).passes;
+        assert!(
+            found.iter().any(same),
+            "{} over {}: the pass rising 3 s into the window ({}) is not found: {found:?}",
+            p.satellite,
+            p.station,
+            p.aos
+        );
+        let setting = PassOptions::new(p.aos.add_s(-3_600.0), p.los.add_s(3.0));
+        let found = find_passes(set, station, &setting, &Silent).passes;
+        assert!(
+            found.iter().any(same),
+            "{} over {}: the pass setting 3 s before the window ends ({}) is not found",
+            p.satellite,
+            p.station,
+            p.los
+        );
+        compared += 1;
+    }
+    assert!(compared > 150, "{compared}");
+}

@@ -487,15 +487,25 @@ fn scan_segment(
         }
         let f = |i: usize| base[i].1;
         let mut points: Vec<(f64, f64)> = base.iter().map(|b| (b.0, b.1)).collect();
-        for i in 1..base.len().saturating_sub(1) {
-            let is_max = f(i) >= f(i - 1) && f(i) >= f(i + 1);
-            let is_min = f(i) <= f(i - 1) && f(i) <= f(i + 1);
-            let reachable = base[i - 1].2 || base[i].2 || base[i + 1].2;
+        // The first and last points count too, with their one neighbour: a
+        // pass can rise and set between the first two samples of a window
+        // or of a segment (three such passes at the start of the 1,000 ×
+        // 10-station week were missed when only interior points counted).
+        let n_points = base.len();
+        for i in 0..n_points {
+            let left = i.checked_sub(1).unwrap_or(i);
+            let right = (i + 1).min(n_points - 1);
+            if left == right {
+                continue;
+            }
+            let is_max = f(i) >= f(left) && f(i) >= f(right);
+            let is_min = f(i) <= f(left) && f(i) <= f(right);
+            let reachable = base[left].2 || base[i].2 || base[right].2;
             if is_max && f(i) <= 0.0 && reachable {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.position_at(t)),
-                    base[i - 1].0,
-                    base[i + 1].0,
+                    base[left].0,
+                    base[right].0,
                     true,
                 );
                 if v > 0.0 {
@@ -509,8 +519,8 @@ fn scan_segment(
             } else if is_min && f(i) >= 0.0 {
                 let (t, v) = golden_extremum(
                     |t| st.clearance(&track.position_at(t)),
-                    base[i - 1].0,
-                    base[i + 1].0,
+                    base[left].0,
+                    base[right].0,
                     false,
                 );
                 if v < 0.0 {
