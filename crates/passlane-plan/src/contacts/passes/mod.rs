@@ -226,26 +226,27 @@ pub struct PassReport {
 ///
 /// Measured (`cargo bench -p passlane-plan --bench passes`, first N of the
 /// synthetic 1,000 × the 3 demo stations × 7 days, 2 cores, release, idle
-/// machine; ms of CPU / wall per run, serial | on rayon's pool; three runs
-/// after the orbit-plane skip and the 120 s step, the first shown, the
-/// others within ±10 % of it):
+/// machine; ms of CPU / wall per run, serial | on rayon's pool; two runs
+/// after the quintic track and its 240 s step, the second shown, the first
+/// within ±15 % of it):
 ///
 /// | N | serial | pool |
 /// | --- | --- | --- |
-/// | 1 | 1.30 / 1.28 | 1.20 / 1.21 |
-/// | 3 | 3.94 / 4.01 | 4.39 / 2.78 |
-/// | 6 | 10.00 / 10.10 | 9.39 / 5.01 |
-/// | 12 | 16.88 / 17.32 | 20.63 / 11.95 |
-/// | 24 | 36.25 / 36.95 | 36.25 / 23.44 |
-/// | 50 | 75.00 / 74.62 | 77.50 / 40.89 |
-/// | 100 | 155.00 / 155.74 | 157.50 / 83.62 |
+/// | 1 | 1.15 / 1.11 | 1.10 / 1.10 |
+/// | 3 | 3.48 / 3.48 | 3.33 / 2.47 |
+/// | 6 | 7.58 / 7.73 | 7.88 / 4.39 |
+/// | 12 | 16.25 / 16.44 | 16.25 / 9.56 |
+/// | 24 | 32.50 / 33.02 | 32.50 / 18.27 |
+/// | 50 | 70.00 / 68.83 | 62.50 / 35.87 |
+/// | 100 | 135.00 / 132.82 | 135.00 / 73.30 |
 ///
 /// At every size the pool's CPU is within the run-to-run spread of the
-/// serial CPU (the 12-satellite row's 22 % was 3 % and 0 % in the other two
-/// runs; CPU is read at a coarse clock), while from 3 satellites on the
-/// wall time falls by 30–50 %. Below 3 (about 1 ms of work each) a 2-way
-/// split cannot gain a millisecond and the pool's start-up is a fixed cost,
-/// so those stay on the calling thread; from 3 on the pool is used.
+/// serial CPU (CPU is read at a coarse clock; the whole `passes` command's
+/// mean CPU over 60 runs was the same with one thread or two, 12
+/// satellites), while from 3 satellites on the wall time falls by 30–45 %.
+/// Below 3 (about 1 ms of work each) a 2-way split cannot gain a
+/// millisecond and the pool's start-up is a fixed cost, so those stay on
+/// the calling thread; from 3 on the pool is used.
 const PARALLEL_FROM_SATELLITES: usize = 3;
 
 /// Finds every pass of every satellite over every station in the window.
