@@ -42,109 +42,106 @@ pub fn write_passes(out: &mut dyn Write, passes: &[Pass]) -> Result<()> {
 }
 
 fn pass(b: &mut Vec<u8>, p: &Pass) -> Result<()> {
-    b.extend_from_slice(b"{\"satellite\":");
-    string(b, &p.satellite)?;
+    text(b, b"{\"satellite\":", &p.satellite)?;
     b.extend_from_slice(b",\"catalog_number\":");
     CompactFormatter.write_u32(b, p.catalog_number)?;
-    b.extend_from_slice(b",\"station\":");
-    string(b, &p.station)?;
-    b.extend_from_slice(b",\"aos\":");
-    time(b, p.aos);
-    b.extend_from_slice(b",\"max_elevation_time\":");
-    time(b, p.max_elevation_time);
-    b.extend_from_slice(b",\"los\":");
-    time(b, p.los);
-    b.extend_from_slice(b",\"max_elevation_deg\":");
-    number(b, p.max_elevation_deg)?;
-    b.extend_from_slice(b",\"aos_azimuth_deg\":");
-    number(b, p.aos_azimuth_deg)?;
-    b.extend_from_slice(b",\"max_elevation_azimuth_deg\":");
-    number(b, p.max_elevation_azimuth_deg)?;
-    b.extend_from_slice(b",\"los_azimuth_deg\":");
-    number(b, p.los_azimuth_deg)?;
-    b.extend_from_slice(b",\"duration_s\":");
-    number(b, p.duration_s)?;
+    text(b, b",\"station\":", &p.station)?;
+    at(b, b",\"aos\":", p.aos);
+    at(b, b",\"max_elevation_time\":", p.max_elevation_time);
+    at(b, b",\"los\":", p.los);
+    num(b, b",\"max_elevation_deg\":", p.max_elevation_deg)?;
+    num(b, b",\"aos_azimuth_deg\":", p.aos_azimuth_deg)?;
+    num(
+        b,
+        b",\"max_elevation_azimuth_deg\":",
+        p.max_elevation_azimuth_deg,
+    )?;
+    num(b, b",\"los_azimuth_deg\":", p.los_azimuth_deg)?;
+    num(b, b",\"duration_s\":", p.duration_s)?;
     b.extend_from_slice(b",\"aos_clipped\":");
     CompactFormatter.write_bool(b, p.aos_clipped)?;
     b.extend_from_slice(b",\"los_clipped\":");
     CompactFormatter.write_bool(b, p.los_clipped)?;
-    b.extend_from_slice(b",\"min_range_km\":");
-    number(b, p.min_range_km)?;
-    b.extend_from_slice(b",\"direction\":");
+    num(b, b",\"min_range_km\":", p.min_range_km)?;
     b.extend_from_slice(match p.direction {
-        PassDirection::Ascending => b"\"ascending\"",
-        PassDirection::Descending => b"\"descending\"",
+        PassDirection::Ascending => b",\"direction\":\"ascending\"",
+        PassDirection::Descending => b",\"direction\":\"descending\"",
     });
-    b.extend_from_slice(b",\"sun_elevation_deg\":");
-    number(b, p.sun_elevation_deg)?;
-    b.extend_from_slice(b",\"sky\":");
+    num(b, b",\"sun_elevation_deg\":", p.sun_elevation_deg)?;
     b.extend_from_slice(match p.sky {
-        SkyAtStation::Daylight => b"\"daylight\"",
-        SkyAtStation::CivilTwilight => b"\"civil_twilight\"",
-        SkyAtStation::NauticalTwilight => b"\"nautical_twilight\"",
-        SkyAtStation::AstronomicalTwilight => b"\"astronomical_twilight\"",
-        SkyAtStation::Night => b"\"night\"",
+        SkyAtStation::Daylight => b",\"sky\":\"daylight\"",
+        SkyAtStation::CivilTwilight => b",\"sky\":\"civil_twilight\"",
+        SkyAtStation::NauticalTwilight => b",\"sky\":\"nautical_twilight\"",
+        SkyAtStation::AstronomicalTwilight => b",\"sky\":\"astronomical_twilight\"",
+        SkyAtStation::Night => b",\"sky\":\"night\"",
     });
-    b.extend_from_slice(b",\"doppler\":[");
-    for (i, d) in p.doppler.iter().enumerate() {
-        if i > 0 {
-            b.push(b',');
-        }
-        b.extend_from_slice(b"{\"channel\":");
-        string(b, &d.channel)?;
+    list(b, b",\"doppler\":[", &p.doppler, |b, d| {
+        text(b, b"{\"channel\":", &d.channel)?;
         b.extend_from_slice(b",\"direction\":");
         value(b, &d.direction)?;
-        b.extend_from_slice(b",\"frequency_hz\":");
-        number(b, d.frequency_hz)?;
-        b.extend_from_slice(b",\"aos_shift_hz\":");
-        number(b, d.aos_shift_hz)?;
-        b.extend_from_slice(b",\"los_shift_hz\":");
-        number(b, d.los_shift_hz)?;
-        b.extend_from_slice(b",\"max_rate_hz_s\":");
-        number(b, d.max_rate_hz_s)?;
-        b.push(b'}');
-    }
-    b.extend_from_slice(b"],\"illumination\":[");
-    for (i, s) in p.illumination.iter().enumerate() {
-        if i > 0 {
-            b.push(b',');
-        }
-        b.extend_from_slice(b"{\"state\":");
-        b.push(b'"');
+        num(b, b",\"frequency_hz\":", d.frequency_hz)?;
+        num(b, b",\"aos_shift_hz\":", d.aos_shift_hz)?;
+        num(b, b",\"los_shift_hz\":", d.los_shift_hz)?;
+        num(b, b",\"max_rate_hz_s\":", d.max_rate_hz_s)
+    })?;
+    list(b, b",\"illumination\":[", &p.illumination, |b, s| {
+        b.extend_from_slice(b"{\"state\":\"");
         b.extend_from_slice(s.state.label().as_bytes());
         b.push(b'"');
-        b.extend_from_slice(b",\"start\":");
-        time(b, s.start);
-        b.extend_from_slice(b",\"end\":");
-        time(b, s.end);
-        b.push(b'}');
-    }
-    b.extend_from_slice(b"],\"mount_warnings\":[");
-    for (i, w) in p.mount_warnings.iter().enumerate() {
-        if i > 0 {
-            b.push(b',');
-        }
-        b.extend_from_slice(b"{\"axis\":");
-        string(b, &w.axis)?;
-        b.extend_from_slice(b",\"start\":");
-        time(b, w.start);
-        b.extend_from_slice(b",\"end\":");
-        time(b, w.end);
-        b.extend_from_slice(b",\"required_rate_deg_s\":");
-        number(b, w.required_rate_deg_s)?;
-        b.extend_from_slice(b",\"limit_deg_s\":");
-        number(b, w.limit_deg_s)?;
-        b.extend_from_slice(b",\"excess_deg_s\":");
-        number(b, w.excess_deg_s)?;
-        b.push(b'}');
-    }
-    b.extend_from_slice(b"],\"element_age_days\":");
+        at(b, b",\"start\":", s.start);
+        at(b, b",\"end\":", s.end);
+        Ok(())
+    })?;
+    list(b, b",\"mount_warnings\":[", &p.mount_warnings, |b, w| {
+        text(b, b"{\"axis\":", &w.axis)?;
+        at(b, b",\"start\":", w.start);
+        at(b, b",\"end\":", w.end);
+        num(b, b",\"required_rate_deg_s\":", w.required_rate_deg_s)?;
+        num(b, b",\"limit_deg_s\":", w.limit_deg_s)?;
+        num(b, b",\"excess_deg_s\":", w.excess_deg_s)
+    })?;
+    b.extend_from_slice(b",\"element_age_days\":");
     match p.element_age_days {
         Some(days) => number(b, days)?,
         None => b.extend_from_slice(b"null"),
     }
     b.push(b'}');
     Ok(())
+}
+
+/// `key` (with its punctuation), then a JSON array of `items`, each an
+/// object `each` writes up to its closing brace.
+fn list<T>(
+    b: &mut Vec<u8>,
+    key: &[u8],
+    items: &[T],
+    each: impl Fn(&mut Vec<u8>, &T) -> Result<()>,
+) -> Result<()> {
+    b.extend_from_slice(key);
+    for (i, item) in items.iter().enumerate() {
+        if i > 0 {
+            b.push(b',');
+        }
+        each(b, item)?;
+        b.push(b'}');
+    }
+    b.push(b']');
+    Ok(())
+}
+
+fn text(b: &mut Vec<u8>, key: &[u8], value: &str) -> Result<()> {
+    b.extend_from_slice(key);
+    string(b, value)
+}
+
+fn num(b: &mut Vec<u8>, key: &[u8], x: f64) -> Result<()> {
+    b.extend_from_slice(key);
+    number(b, x)
+}
+
+fn at(b: &mut Vec<u8>, key: &[u8], t: UtcTime) {
+    b.extend_from_slice(key);
+    time(b, t);
 }
 
 /// Any value as serde_json writes it (link directions).
