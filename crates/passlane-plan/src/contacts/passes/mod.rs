@@ -46,7 +46,7 @@ use passlane_orbit::{
 use rayon::prelude::*;
 use serde::Serialize;
 
-use crate::numeric::{brent_root, golden_extremum};
+use crate::numeric::{brent_extremum, brent_root};
 use crate::progress::Progress;
 use crate::station::{LinkDirection, Station};
 
@@ -506,11 +506,12 @@ fn scan_segment(
             let is_min = f(i) <= f(left) && f(i) <= f(right);
             let reachable = base[left].2 || base[i].2 || base[right].2;
             if is_max && f(i) <= 0.0 && reachable {
-                let (t, v) = golden_extremum(
+                let (t, v) = brent_extremum(
                     |t| st.clearance(&track.position_at(t)),
                     base[left].0,
                     base[right].0,
                     true,
+                    PEAK_TOL_S,
                 );
                 if v > 0.0 {
                     points.push((t, v));
@@ -521,11 +522,12 @@ fn scan_segment(
                     points.push((t, d));
                 }
             } else if is_min && f(i) >= 0.0 {
-                let (t, v) = golden_extremum(
+                let (t, v) = brent_extremum(
                     |t| st.clearance(&track.position_at(t)),
                     base[left].0,
                     base[right].0,
                     false,
+                    PEAK_TOL_S,
                 );
                 if v < 0.0 {
                     points.push((t, v));
@@ -579,6 +581,14 @@ fn scan_segment(
         }
     }
 }
+
+/// How closely (s) a peak or dip between samples is located. Only its sign
+/// matters here (the crossings on either side are found afterwards): 0.1 s
+/// from a peak the clearance is below it by at most ½·|f''|·0.1², under
+/// 2e-6 for any LEO pass (|f''| ≤ (v/ρ)² ≈ 3.5e-4 s⁻² at ρ = 400 km), far
+/// inside `GRAZE`, within which direct SGP4 decides. (0.5 ms, the general
+/// default, cost 1 % more of a 100-satellite, 10-station week.)
+const PEAK_TOL_S: f64 = 0.1;
 
 /// How far the interpolated clearance (a difference of sines) can be from
 /// direct SGP4's: the interpolant is within ~1 m of SGP4 on near-circular
