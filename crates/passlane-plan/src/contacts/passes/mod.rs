@@ -350,6 +350,20 @@ fn passes_of_satellite(
         .map(|s| s.cone_half_angle_rad(bounds.max_radius_km))
         .collect();
     let cone_cosines: Vec<f64> = cones.iter().map(|c| c.cos()).collect();
+    let rate = bounds.max_angle_rate_rad_s;
+    // Above this cosine of its central angle a station could be entered
+    // within a step (its plain bound is under a step).
+    let near_cosines: Vec<f64> = cones
+        .iter()
+        .map(|c| {
+            let reach = c + rate * bounds.step_s;
+            if reach >= std::f64::consts::PI {
+                f64::NEG_INFINITY
+            } else {
+                reach.cos()
+            }
+        })
+        .collect();
     let plane_bounds = PlaneBounds::of(&bounds);
     let eop = options.earth_orientation;
     let mut cursor = prop.cursor();
@@ -362,7 +376,6 @@ fn passes_of_satellite(
     // Reused at every sample (an allocation per sample: ~1 % of a week's
     // search, callgrind).
     let mut cosines: Vec<f64> = Vec::with_capacity(stations.len());
-    let mut plain: Vec<f64> = Vec::with_capacity(stations.len());
     loop {
         let t = options.start.add_s(t_s);
         let teme = match cursor.state_at(t) {
@@ -394,27 +407,35 @@ fn passes_of_satellite(
             });
             b.skip_s(&stations[k].up_geocentric, &n, &ecef.position_km, cones[k])
         };
-        plain.clear();
-        // Inside a cone the bound is zero (and the acos not needed).
-        plain.extend(cosines.iter().zip(cones.iter().zip(&cone_cosines)).map(
-            |(&c, (cone, &cos_cone))| {
-                if c >= cos_cone {
-                    0.0
-                } else {
-                    (c.acos() - cone) / bounds.max_angle_rate_rad_s
-                }
-            },
-        ));
+        // The plain bound; inside a cone it is zero (and no acos is needed).
+        let plain = |k: usize| {
+            if cosines[k] >= cone_cosines[k] {
+                0.0
+            } else {
+                (cosines[k].acos() - cones[k]) / rate
+            }
+        };
         let mut skip = f64::INFINITY;
-        for k in (0..stations.len()).filter(|&k| plain[k] < h) {
-            skip = skip.min(plain[k].max(plane_skip(k)));
+        for k in (0..stations.len()).filter(|&k| cosines[k] > near_cosines[k]) {
+            skip = skip.min(plain(k).max(plane_skip(k)));
             if skip < h {
                 break;
             }
         }
         if skip >= h {
-            for k in (0..stations.len()).filter(|&k| plain[k] >= h) {
-                skip = skip.min(plain[k].max(plane_skip(k)));
+            for k in (0..stations.len()).filter(|&k| cosines[k] <= near_cosines[k]) {
+                // A station that cannot lower the minimum is not asked
+                // further: first by a lower bound on its plain bound
+                // (acos c ≥ √(2(1 − c)), as 2·sin(x/2) ≤ x), then by the
+                // plain bound itself, before the plane bounds' atan2.
+                let c = cosines[k];
+                if ((2.0 * (1.0 - c)).max(0.0).sqrt() - cones[k]) / rate >= skip {
+                    continue;
+                }
+                let p = plain(k);
+                if p < skip {
+                    skip = skip.min(p.max(plane_skip(k)));
+                }
             }
         }
         let far = skip >= h;
