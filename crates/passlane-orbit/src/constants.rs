@@ -5,8 +5,6 @@
 pub const MU_WGS72_KM3_S2: f64 = 398_600.8;
 /// WGS-72 equatorial radius, km (same source).
 pub const EARTH_RADIUS_WGS72_KM: f64 = 6378.135;
-/// WGS-72 second zonal harmonic J2 (same source: XJ2 = 1.082616E-3).
-pub const J2_WGS72: f64 = 1.082_616e-3;
 /// WGS-84 Earth gravitational parameter, km³/s² (NIMA TR8350.2, 3rd ed.).
 pub const MU_WGS84_KM3_S2: f64 = 398_600.441_8;
 /// WGS-84 semi-major axis, km (NIMA TR8350.2).

@@ -70,30 +70,22 @@ pub struct EarthFixed {
 
 impl EarthFixed {
     /// The acceleration of this state in the Earth-fixed frame under the
-    /// gravity SGP4 models to first order: two-body plus J2 (WGS-72, the
-    /// constants SGP4 uses), with the rotating frame's Coriolis (−2ω×v) and
-    /// centrifugal (−ω×(ω×r)) terms. For interpolating SGP4 samples to
-    /// fifth order ([`crate::interpolate::Quintic`]), not for propagating:
-    /// it leaves out drag, the higher zonal terms and SGP4's own mismatch
-    /// between its positions and velocities.
+    /// numerical propagator's gravity (`numerical::ForceModel::zonal`:
+    /// central term with J2, J3 and J4 of WGS-72, the constants SGP4 uses;
+    /// the zonal field is symmetric about the Earth-fixed z axis, which is
+    /// TEME's), with the rotating frame's Coriolis (−2ω×v) and centrifugal
+    /// (−ω×(ω×r)) terms. For interpolating SGP4 samples to fifth order
+    /// ([`crate::interpolate::Quintic`]), not for propagating: it leaves out
+    /// drag and SGP4's own mismatch between its positions and velocities.
     pub fn model_acceleration_km_s2(&self) -> Vec3 {
-        use crate::constants::{
-            EARTH_RADIUS_WGS72_KM, EARTH_ROTATION_RAD_S, J2_WGS72, MU_WGS72_KM3_S2,
-        };
-        let [x, y, z] = self.position_km;
+        let g = crate::numerical::ForceModel::zonal(None).gravity(&self.position_km);
+        let [x, y, _] = self.position_km;
         let [vx, vy, _] = self.velocity_km_s;
-        let r2 = x * x + y * y + z * z;
-        let r = r2.sqrt();
-        // The Earth-fixed z axis is TEME's (a rotation about it; polar
-        // motion, when given, tilts it by arcseconds).
-        let k = 1.5 * J2_WGS72 * EARTH_RADIUS_WGS72_KM * EARTH_RADIUS_WGS72_KM / r2;
-        let zz = z * z / r2;
-        let f = -MU_WGS72_KM3_S2 / (r2 * r);
-        let w = EARTH_ROTATION_RAD_S;
+        let w = crate::constants::EARTH_ROTATION_RAD_S;
         [
-            f * x * (1.0 + k * (1.0 - 5.0 * zz)) + 2.0 * w * vy + w * w * x,
-            f * y * (1.0 + k * (1.0 - 5.0 * zz)) - 2.0 * w * vx + w * w * y,
-            f * z * (1.0 + k * (3.0 - 5.0 * zz)),
+            g[0] + 2.0 * w * vy + w * w * x,
+            g[1] - 2.0 * w * vx + w * w * y,
+            g[2],
         ]
     }
 }

@@ -3,7 +3,8 @@
 //! Through position and velocity at both ends of a step, the cubic Hermite
 //! polynomial follows an orbit to well under a metre in LEO at 60 s steps
 //! (error ≈ h⁴/384·|r⁗| with |r⁗| ≈ ω⁴r). With the acceleration at both
-//! ends as well (from a gravity model: [`crate::EarthFixed::model_acceleration_km_s2`]),
+//! ends as well (from a gravity model:
+//! [`crate::EarthFixed::model_acceleration_km_s2`]),
 //! the quintic Hermite polynomial's own error is h⁶/46080·|r⁽⁶⁾|, centimetres
 //! at 240 s; what is left is the model's and SGP4's own mismatch between its
 //! positions, velocities and accelerations. Planners sample SGP4 coarsely and
@@ -34,18 +35,6 @@ pub fn hermite(p0: &Vec3, v0: &Vec3, p1: &Vec3, v1: &Vec3, step_s: f64, s: f64) 
         v[k] = (d00 * p0[k] + d01 * p1[k]) / step_s + d10 * v0[k] + d11 * v1[k];
     }
     (p, v)
-}
-
-/// The position part of [`hermite`] alone (half the arithmetic), for
-/// searches that only look at where the object is.
-pub fn hermite_position(p0: &Vec3, v0: &Vec3, p1: &Vec3, v1: &Vec3, step_s: f64, s: f64) -> Vec3 {
-    let s2 = s * s;
-    let s3 = s2 * s;
-    let h00 = 2.0 * s3 - 3.0 * s2 + 1.0;
-    let h10 = (s3 - 2.0 * s2 + s) * step_s;
-    let h01 = -2.0 * s3 + 3.0 * s2;
-    let h11 = (s3 - s2) * step_s;
-    std::array::from_fn(|k| h00 * p0[k] + h10 * v0[k] + h01 * p1[k] + h11 * v1[k])
 }
 
 /// A sample for quintic Hermite interpolation: position (km), velocity

@@ -17,7 +17,7 @@
 //! 3. Near a station it samples at a step chosen from the orbit (about 240 s
 //!    in LEO), and in between it interpolates the Earth-fixed state with a
 //!    quintic Hermite polynomial through position, velocity and the
-//!    two-body + J2 acceleration (within ~1 m of SGP4 on near-circular LEO,
+//!    zonal-gravity acceleration (within ~1 m of SGP4 on near-circular LEO,
 //!    ~30 m on an eccentric orbit). Every figure printed at an instant
 //!    (AOS, LOS, culmination, closest range, sunlight edges, look angles,
 //!    Doppler) is then moved onto direct SGP4, so none depends on where the
@@ -351,9 +351,11 @@ fn passes_of_satellite(
         .collect();
     let cone_cosines: Vec<f64> = cones.iter().map(|c| c.cos()).collect();
     let rate = bounds.max_angle_rate_rad_s;
-    // Above this cosine of its central angle a station could be entered
-    // within a step (its plain bound is under a step).
-    let near_cosines: Vec<f64> = cones
+    // Cosine of each station's cone widened by what the central angle can
+    // shrink in a step: a sample above it could be in the cone within a
+    // step (its plain bound is under a step), one below it cannot be
+    // before the next sample.
+    let reach_cosines: Vec<f64> = cones
         .iter()
         .map(|c| {
             let reach = c + rate * bounds.step_s;
@@ -416,14 +418,14 @@ fn passes_of_satellite(
             }
         };
         let mut skip = f64::INFINITY;
-        for k in (0..stations.len()).filter(|&k| cosines[k] > near_cosines[k]) {
+        for k in (0..stations.len()).filter(|&k| cosines[k] > reach_cosines[k]) {
             skip = skip.min(plain(k).max(plane_skip(k)));
             if skip < h {
                 break;
             }
         }
         if skip >= h {
-            for k in (0..stations.len()).filter(|&k| cosines[k] <= near_cosines[k]) {
+            for k in (0..stations.len()).filter(|&k| cosines[k] <= reach_cosines[k]) {
                 // A station that cannot lower the minimum is not asked
                 // further: first by a lower bound on its plain bound
                 // (acos c ≥ √(2(1 − c)), as 2·sin(x/2) ≤ x), then by the
@@ -443,7 +445,15 @@ fn passes_of_satellite(
         if far && !at_end {
             if in_segment {
                 track.push(t, ecef, ecef.model_acceleration_km_s2());
-                scan_segment(set, &prop, stations, &track, &bounds, options, &mut passes);
+                scan_segment(
+                    set,
+                    &prop,
+                    stations,
+                    &track,
+                    &reach_cosines,
+                    options,
+                    &mut passes,
+                );
                 track.clear();
                 in_segment = false;
             }
@@ -459,7 +469,15 @@ fn passes_of_satellite(
         }
     }
     if in_segment && track.times_s.len() >= 2 {
-        scan_segment(set, &prop, stations, &track, &bounds, options, &mut passes);
+        scan_segment(
+            set,
+            &prop,
+            stations,
+            &track,
+            &reach_cosines,
+            options,
+            &mut passes,
+        );
     }
     (passes, fail)
 }
@@ -470,7 +488,7 @@ fn scan_segment(
     prop: &Propagator,
     stations: &[PreparedStation],
     track: &Track,
-    bounds: &OrbitBounds,
+    reach_cosines: &[f64],
     options: &PassOptions,
     passes: &mut Vec<Pass>,
 ) {
@@ -479,13 +497,10 @@ fn scan_segment(
         return;
     }
     let total_s = options.end.s_since(options.start);
-    for st in stations {
-        let cone = st.cone_half_angle_rad(bounds.max_radius_km);
+    for (st, &cos_reach) in stations.iter().zip(reach_cosines) {
         // Between two samples the central angle can shrink by at most
         // rate × step; a station every sample of which stays farther than that
         // outside its cone cannot see the satellite anywhere in the segment.
-        let reach = bounds.max_angle_rate_rad_s * bounds.step_s;
-        let cos_reach = (cone + reach).min(std::f64::consts::PI).cos();
         let reachable = |s: &Sample5| st.cos_central_angle(&s.position_km) >= cos_reach;
         // Most segments concern one station: the others are ruled out here
         // without building anything.

@@ -252,7 +252,7 @@ impl OrbitBounds {
         // below; the cubic through position and velocity at 120 s: ~6 m and
         // ~12 m). Its own error (Δt⁶/46080·ω⁶·r, centimetres) is not what
         // limits it: SGP4's velocity is not exactly the derivative of its
-        // positions, nor the J2 model's acceleration SGP4's, and both grow
+        // positions, nor the zonal model's acceleration SGP4's, and both grow
         // with the step. Twice the cubic's step halved the samples near
         // stations, the bulk of a week's search (callgrind: 132 M → 122 M
         // instructions for the whole 12 × 3 × 7-day command). The same ω·Δt
