@@ -237,11 +237,11 @@ fn closest_on_parabola(
 }
 
 /// Two direct SGP4 states, 0.5 s apart, around a culmination.
-pub(super) struct Straddle {
-    pub(super) lo_s: f64,
-    pub(super) lo: EarthFixed,
-    pub(super) hi_s: f64,
-    pub(super) hi: EarthFixed,
+struct Straddle {
+    lo_s: f64,
+    lo: EarthFixed,
+    hi_s: f64,
+    hi: EarthFixed,
 }
 
 impl Straddle {
