@@ -207,7 +207,9 @@ impl UtcTime {
     /// allocation (for writers of long listings).
     pub fn push_iso_us(self, out: &mut Vec<u8>) {
         match self.iso_text(6) {
-            IsoLayout::Fixed(text) => out.extend_from_slice(text.as_str().as_bytes()),
+            // The bytes as they are (only ASCII is written): checking them
+            // as UTF-8 was 0.7 % of a pass listing (callgrind).
+            IsoLayout::Fixed(text) => out.extend_from_slice(text.as_bytes()),
             IsoLayout::Wide(text) => out.extend_from_slice(text.as_bytes()),
         }
     }
@@ -400,6 +402,10 @@ const DIGIT_PAIRS: &[u8; 200] = b"\
     8081828384858687888990919293949596979899";
 
 impl IsoText {
+    fn as_bytes(&self) -> &[u8] {
+        &self.bytes[..self.len]
+    }
+
     fn as_str(&self) -> &str {
         // Only ASCII digits and separators are ever written.
         std::str::from_utf8(&self.bytes[..self.len]).unwrap_or("invalid-time")

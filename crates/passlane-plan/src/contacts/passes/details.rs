@@ -155,7 +155,15 @@ pub(super) fn describe_pass(
         })
         .collect();
     let direct_position = |t_s: f64| direct_state(prop, options, t_s).map(|s| s.position_km);
-    let illumination = illumination_spans(track, &direct_position, t0, aos_s, los_s, &eop);
+    let illumination = illumination_spans(
+        track,
+        &direct_position,
+        t0,
+        aos_s,
+        los_s,
+        &eop,
+        track.angle_rate_bound_rad_s,
+    );
     let mount_warnings = match &st.station.mount {
         Some(m) => {
             // Azimuth and elevation rates from the Earth-fixed state, exactly
@@ -356,6 +364,7 @@ pub(super) fn illumination_spans(
     aos_s: f64,
     los_s: f64,
     eop: &EarthOrientation,
+    angle_rate_bound_rad_s: f64,
 ) -> Vec<IlluminationSpan> {
     let sun_teme = sun_position_teme_km(t0.add_s(0.5 * (aos_s + los_s)));
     // The Sun turns with the Earth-fixed frame by ~2.5° per 10 minutes; a
@@ -390,24 +399,24 @@ pub(super) fn illumination_spans(
     // directions, less a constant) cannot rise above its samples by more than
     // ½·f''·(step/2)² with |f''| ≤ 2ω², ω the satellite's angular rate about
     // the Earth's centre (plus the Earth's, as the Sun turns in this frame);
-    // only extrema within that reach of zero are refined.
+    // only extrema within that reach of zero are refined. ω is bounded by
+    // the orbit's bound on the Earth-fixed angular rate (`OrbitBounds`),
+    // which also holds between the samples, so the samples need positions
+    // only.
     // 60 s rather than the 20 s of the first version: the bound below keeps
     // the refinement exact at any step (only more extrema fall within reach),
     // and the sampling was a third of a week's pass search (callgrind, 12
     // satellites × 3 stations × 7 days).
     const STEP_S: f64 = 60.0;
     let n = ((los_s - aos_s) / STEP_S).ceil().max(1.0) as usize;
-    let mut omega = 0.0f64;
     let samples: Vec<(f64, f64, f64)> = (0..=n)
         .map(|k| {
             let t = (aos_s + k as f64 * STEP_S).min(los_s);
-            let s = track.at(t);
-            omega = omega.max(norm(&s.velocity_km_s) / norm(&s.position_km));
-            let (p, u) = margins_of(t, &s.position_km);
+            let (p, u) = margins_of(t, &track.position_at(t));
             (t, p, u)
         })
         .collect();
-    let omega = 1.5 * (omega + passlane_orbit::constants::EARTH_ROTATION_RAD_S);
+    let omega = 1.5 * (angle_rate_bound_rad_s + passlane_orbit::constants::EARTH_ROTATION_RAD_S);
     let reach = 0.5 * 2.0 * omega * omega * (0.5 * STEP_S).powi(2);
     let mut cuts: Vec<f64> = Vec::new();
     for which in 0..2 {
@@ -699,7 +708,8 @@ mod tests {
         let (peak, t_in, t_out) = brush(rho, tm);
         assert!((peak - 90.0).abs() < 0.5 && (t_out - t_in - 10.0).abs() < 1e-3);
         assert!(margin(rho, tm, 60.0) < 0.0 && margin(rho, tm, 120.0) < 0.0);
-        let mut track = Track::new(t0);
+        // |v|/|r| ≤ v/rho on this track (|r| ≥ rho): its angular-rate bound.
+        let mut track = Track::new(t0, v / rho);
         let mut t = aos_s;
         while t <= los_s + 1e-9 {
             track.push(
@@ -713,7 +723,7 @@ mod tests {
             t += 1.0;
         }
         let exact = |t: f64| Some(at(rho, tm, t));
-        let spans = illumination_spans(&track, &exact, t0, aos_s, los_s, &eop);
+        let spans = illumination_spans(&track, &exact, t0, aos_s, los_s, &eop, v / rho);
         let pen: Vec<_> = spans
             .iter()
             .filter(|s| s.state == Illumination::Penumbra)

@@ -131,15 +131,20 @@ pub(super) struct Track {
     /// The polynomial between samples i and i + 1.
     steps: Vec<Quintic>,
     t0: UtcTime,
+    /// A bound on the satellite's angular rate about the Earth's centre in
+    /// the Earth-fixed frame, rad/s (`OrbitBounds::max_angle_rate_rad_s`):
+    /// holds between the samples too.
+    pub(super) angle_rate_bound_rad_s: f64,
 }
 
 impl Track {
-    pub(super) fn new(t0: UtcTime) -> Self {
+    pub(super) fn new(t0: UtcTime, angle_rate_bound_rad_s: f64) -> Self {
         Track {
             times_s: Vec::new(),
             states: Vec::new(),
             steps: Vec::new(),
             t0,
+            angle_rate_bound_rad_s,
         }
     }
 
@@ -385,8 +390,9 @@ mod tests {
             let s = prop.state_at(t).unwrap();
             TemeToEarthFixed::at(t, &eop).state(&s.position_km, &s.velocity_km_s)
         };
-        let h = OrbitBounds::of(set, 2.0).step_s;
-        let mut track = Track::new(t0);
+        let bounds = OrbitBounds::of(set, 2.0);
+        let h = bounds.step_s;
+        let mut track = Track::new(t0, bounds.max_angle_rate_rad_s);
         let mut t_s = 0.0;
         while t_s <= 2.0 * 86_400.0 {
             let s = direct(t_s);
